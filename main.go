@@ -1,0 +1,42 @@
+// Command nutate is a Jupyter kernel and headless runner for the Nutate RF-pulse
+// language: design, simulate and justify MR pulses.
+package main
+
+import (
+	"fmt"
+	"os"
+)
+
+// version is the program version, stamped into notebook metadata.
+const version = "0.1.0"
+
+func main() {
+	os.Exit(realMain(os.Args[1:]))
+}
+
+func realMain(args []string) int {
+	if len(args) == 0 {
+		fmt.Fprintln(os.Stderr, usage)
+		return 2
+	}
+	switch args[0] {
+	case "version", "--version":
+		fmt.Println("nutate", version)
+		return 0
+	case "help", "-h", "--help":
+		fmt.Println(usage)
+		return 0
+	}
+	fmt.Fprintf(os.Stderr, "nutate: unknown command %q\n%s\n", args[0], usage)
+	return 2
+}
+
+const usage = `usage: nutate COMMAND [ARGS]
+
+commands:
+  kernel --connection-file F   run as a Jupyter kernel (what the kernelspec launches)
+  install [--user | --prefix DIR | --sys-prefix] [--uninstall]
+                               install the kernelspec "nutate"
+  run [--output F] [--json] [--check] [--set NAME=VALUE] FILE...
+                               execute notebooks (.ipynb) or scripts headless
+  version                      print the version`

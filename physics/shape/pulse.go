@@ -1,0 +1,241 @@
+// Package shape builds RF pulse waveforms (hard, sinc, Gaussian, adiabatic,
+// composite, imported) and computes their properties. Units are those of package
+// physics: seconds, tesla, hertz, radians, metres, T/m.
+//
+// Each shape is one file with a constructor that takes the shape's own parameters
+// and the Common ones, and returns a *Pulse whose amplitude is solved exactly for
+// the requested nominal flip or set by the requested peak.
+package shape
+
+import (
+	"fmt"
+	"math"
+
+	"nutate/physics"
+)
+
+// Role is what a pulse is for; it picks the default quantity and the target
+// against which properties (bandwidth, threshold, ripple) are measured.
+type Role int
+
+// Roles.
+const (
+	RoleNone Role = iota
+	RoleExcite
+	RoleInvert
+	RoleRefocus
+	RoleSaturate
+)
+
+var roleNames = [...]string{"", "excite", "invert", "refocus", "saturate"}
+
+func (r Role) String() string { return roleNames[r] }
+
+// ParseRole reads a role name.
+func ParseRole(s string) (Role, bool) {
+	for i, n := range roleNames {
+		if i > 0 && n == s {
+			return Role(i), true
+		}
+	}
+	return RoleNone, false
+}
+
+// Common holds the arguments every shape takes. Unset float fields are NaN
+// (use NewCommon), except Gradient and Thickness where 0 means unset.
+type Common struct {
+	Duration  float64 // s
+	Samples   int     // 0: the shape's default
+	Dwell     float64 // s; NaN: derived from Samples
+	Phase     float64 // rad, constant phase added to the whole pulse
+	Center    float64 // Hz, carrier offset of the pulse's band (applies a phase ramp)
+	Flip      float64 // rad, nominal on-resonance flip; NaN if Peak is given
+	Peak      float64 // T, peak |B1|; NaN if Flip is given
+	Gradient  float64 // T/m slice-select gradient; 0: none
+	Thickness float64 // m slice thickness (derives Gradient from the bandwidth); 0: none
+	Role      Role
+}
+
+// NewCommon returns Common with every optional value unset.
+func NewCommon() Common {
+	return Common{Dwell: math.NaN(), Flip: math.NaN(), Peak: math.NaN()}
+}
+
+// Pulse is a built RF pulse with what is known of it by design.
+type Pulse struct {
+	Shape     string
+	Wave      physics.Waveform
+	Gamma     float64   // rad·s⁻¹·T⁻¹ used to scale the amplitude
+	Role      Role
+	Flip      float64   // rad, nominal on-resonance flip; NaN where not defined (adiabatic)
+	Bandwidth float64   // Hz, design bandwidth; 0 where none
+	TBW       float64   // time-bandwidth product; 0 where none
+	Adiabatic bool      // amplitude set by peak, flip by adiabatic passage
+	Freq      []float64 // Hz, instantaneous RF frequency relative to the carrier, per sample; nil if none
+	Gradient  float64   // T/m, constant slice-select gradient; 0: none
+	Center    float64   // Hz
+}
+
+// Duration is the pulse length in seconds.
+func (p *Pulse) Duration() float64 { return p.Wave.Duration() }
+
+// Peak is the largest |B1| in tesla.
+func (p *Pulse) Peak() float64 {
+	m := 0.0
+	for _, b := range p.Wave.B1 {
+		m = math.Max(m, cabs(b))
+	}
+	return m
+}
+
+// Energy is ∫|B1|² dt in T²·s: a relative, waveform-only figure.
+func (p *Pulse) Energy() float64 {
+	e := 0.0
+	for j, b := range p.Wave.B1 {
+		e += (real(b)*real(b) + imag(b)*imag(b)) * p.Wave.Dwell[j]
+	}
+	return e
+}
+
+func cabs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }
+
+// times returns the sample dwell for a uniform waveform of c.Duration and the
+// sample count, checking c.
+func (c *Common) times(defaultSamples int) (n int, dt float64, err error) {
+	if !(c.Duration > 0) || math.IsInf(c.Duration, 0) {
+		return 0, 0, fmt.Errorf("duration must be positive, got %g s", c.Duration)
+	}
+	hasFlip, hasPeak := !math.IsNaN(c.Flip), !math.IsNaN(c.Peak)
+	if hasFlip && hasPeak {
+		return 0, 0, fmt.Errorf("give flip or peak, not both")
+	}
+	if !hasFlip && !hasPeak {
+		return 0, 0, fmt.Errorf("give flip or peak for the amplitude")
+	}
+	if hasPeak && !(c.Peak >= 0) {
+		return 0, 0, fmt.Errorf("peak must not be negative, got %g T", c.Peak)
+	}
+	n = c.Samples
+	if !math.IsNaN(c.Dwell) {
+		if !(c.Dwell > 0) {
+			return 0, 0, fmt.Errorf("dwell must be positive, got %g s", c.Dwell)
+		}
+		if c.Samples != 0 {
+			return 0, 0, fmt.Errorf("give samples or dwell, not both")
+		}
+		n = int(math.Round(c.Duration / c.Dwell))
+		if n < 1 || math.Abs(float64(n)*c.Dwell-c.Duration) > 1e-9*c.Duration {
+			return 0, 0, fmt.Errorf("dwell %g s does not divide duration %g s", c.Dwell, c.Duration)
+		}
+	}
+	if n == 0 {
+		n = defaultSamples
+	}
+	if n < 1 || n > maxSamples {
+		return 0, 0, fmt.Errorf("samples must be 1 to %d, got %d", maxSamples, n)
+	}
+	return n, c.Duration / float64(n), nil
+}
+
+const maxSamples = 1 << 22
+
+// amplitudeModulated builds a pulse from a real unit-peak envelope u (one value per
+// sample), scaling it so that its nominal on-resonance flip γ·∫B1 dt equals c.Flip,
+// or its peak equals c.Peak; then applies Phase, Center and the gradient.
+func amplitudeModulated(name string, c Common, gamma float64, u []float64, dt float64) (*Pulse, error) {
+	area := 0.0
+	peak := 0.0
+	for _, v := range u {
+		area += v * dt
+		peak = math.Max(peak, math.Abs(v))
+	}
+	var scale float64
+	if !math.IsNaN(c.Flip) {
+		if area == 0 {
+			return nil, fmt.Errorf("%s: the shape has zero area, so no amplitude gives a flip", name)
+		}
+		scale = c.Flip / (math.Abs(gamma) * area)
+	} else {
+		scale = c.Peak / peak
+	}
+	p := &Pulse{Shape: name, Gamma: gamma, Role: c.Role, Center: c.Center, Flip: math.Abs(gamma) * scale * area}
+	p.Wave.Dwell = make([]float64, len(u))
+	p.Wave.B1 = make([]complex128, len(u))
+	for j, v := range u {
+		p.Wave.Dwell[j] = dt
+		p.Wave.B1[j] = complex(scale*v, 0)
+	}
+	p.applyPhase(c.Phase, c.Center)
+	return p, nil
+}
+
+// applyPhase rotates the waveform by a constant phase and moves its band to
+// center Hz: B1(t) → B1(t)·exp(i(φ + 2π·center·(t − T/2))), the phase referenced to
+// the pulse's midpoint so the centre of the band keeps the phase given.
+func (p *Pulse) applyPhase(phase, center float64) {
+	if phase == 0 && center == 0 {
+		return
+	}
+	T := p.Wave.Duration()
+	t := 0.0
+	for j := range p.Wave.B1 {
+		mid := t + p.Wave.Dwell[j]/2
+		ph := phase + 2*math.Pi*center*(mid-T/2)
+		s, c := math.Sincos(ph)
+		p.Wave.B1[j] *= complex(c, s)
+		t += p.Wave.Dwell[j]
+	}
+	if p.Freq != nil {
+		for j := range p.Freq {
+			p.Freq[j] += center
+		}
+	}
+}
+
+// Rect is a hard pulse: constant amplitude. Its default is one sample, which is
+// exact for a constant field.
+func Rect(c Common, gamma float64) (*Pulse, error) {
+	n, dt, err := c.times(1)
+	if err != nil {
+		return nil, fmt.Errorf("rect: %w", err)
+	}
+	u := make([]float64, n)
+	for j := range u {
+		u[j] = 1
+	}
+	p, err := amplitudeModulated("rect", c, gamma, u, dt)
+	if err != nil {
+		return nil, err
+	}
+	// Rectangular pulse main-lobe width: first nulls of a small-tip sinc profile at ±1/T.
+	p.Bandwidth = 1 / c.Duration
+	p.TBW = 1
+	return p, p.setSlice(c)
+}
+
+// setSlice derives the slice-select gradient from thickness and bandwidth:
+// thickness = BW/(γ̄·G) (common practice).
+func (p *Pulse) setSlice(c Common) error {
+	if c.Gradient != 0 && c.Thickness != 0 {
+		return fmt.Errorf("%s: give gradient or thickness, not both", p.Shape)
+	}
+	g := c.Gradient
+	if c.Thickness != 0 {
+		if !(c.Thickness > 0) {
+			return fmt.Errorf("%s: thickness must be positive, got %g m", p.Shape, c.Thickness)
+		}
+		if p.Bandwidth == 0 {
+			return fmt.Errorf("%s: thickness needs a pulse with a bandwidth", p.Shape)
+		}
+		g = 2 * math.Pi * p.Bandwidth / (math.Abs(p.Gamma) * c.Thickness)
+	}
+	if g == 0 {
+		return nil
+	}
+	p.Gradient = g
+	p.Wave.Gradient = make([]float64, p.Wave.Len())
+	for j := range p.Wave.Gradient {
+		p.Wave.Gradient[j] = g
+	}
+	return nil
+}

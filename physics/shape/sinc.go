@@ -1,0 +1,78 @@
+package shape
+
+import (
+	"fmt"
+	"math"
+)
+
+// Window tapers a sinc.
+type Window int
+
+// Windows: generalised cosine windows w = α + (1−α)cos(2πt/T), t ∈ [−T/2, T/2];
+// Hann α = 0.5, Hamming α = 0.46 (common practice).
+const (
+	WindowNone Window = iota
+	WindowHann
+	WindowHamming
+)
+
+var windowNames = [...]string{"none", "hann", "hamming"}
+
+func (w Window) String() string { return windowNames[w] }
+
+// ParseWindow reads a window name.
+func ParseWindow(s string) (Window, bool) {
+	for i, n := range windowNames {
+		if n == s {
+			return Window(i), true
+		}
+	}
+	return WindowNone, false
+}
+
+// WindowNames lists the window names.
+func WindowNames() []string { return windowNames[:] }
+
+// Sinc is a windowed sinc with tbw zero crossings over the duration (the
+// time-bandwidth product; bandwidth ≈ tbw/T, Bernstein, King & Zhou 2004).
+// Sample times are sample midpoints.
+func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
+	if !(tbw > 0) || math.IsInf(tbw, 0) {
+		return nil, fmt.Errorf("sinc: tbw must be positive, got %g", tbw)
+	}
+	n, dt, err := c.times(256)
+	if err != nil {
+		return nil, fmt.Errorf("sinc: %w", err)
+	}
+	T := c.Duration
+	u := make([]float64, n)
+	for j := range u {
+		t := (float64(j)+0.5)*dt - T/2
+		x := tbw * t / T
+		v := 1.0
+		if x != 0 {
+			v = math.Sin(math.Pi*x) / (math.Pi * x)
+		}
+		u[j] = v * window(win, t, T)
+	}
+	p, err := amplitudeModulated("sinc", c, gamma, u, dt)
+	if err != nil {
+		return nil, err
+	}
+	p.TBW = tbw
+	p.Bandwidth = tbw / T
+	return p, p.setSlice(c)
+}
+
+func window(w Window, t, T float64) float64 {
+	var a float64
+	switch w {
+	case WindowHann:
+		a = 0.5
+	case WindowHamming:
+		a = 0.46
+	default:
+		return 1
+	}
+	return a + (1-a)*math.Cos(2*math.Pi*t/T)
+}
