@@ -65,7 +65,7 @@ func NewCommon() Common {
 type Pulse struct {
 	Shape     string
 	Wave      physics.Waveform
-	Gamma     float64   // rad·s⁻¹·T⁻¹ used to scale the amplitude
+	Gamma     float64 // rad·s⁻¹·T⁻¹ used to scale the amplitude
 	Role      Role
 	Flip      float64   // rad, nominal on-resonance flip; NaN where not defined (adiabatic)
 	Bandwidth float64   // Hz, design bandwidth; 0 where none
