@@ -23,6 +23,12 @@ func realMain(args []string) int {
 	case "version", "--version":
 		fmt.Println("nutate", version)
 		return 0
+	case "kernel":
+		return cmdKernel(args[1:])
+	case "install":
+		return cmdInstall(args[1:])
+	case "run":
+		return cmdRun(args[1:])
 	case "help", "-h", "--help":
 		fmt.Println(usage)
 		return 0
