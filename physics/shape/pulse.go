@@ -99,11 +99,12 @@ func (p *Pulse) Energy() float64 {
 
 func cabs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }
 
-// times returns the sample dwell for a uniform waveform of c.Duration and the
-// sample count, checking c.
+// times returns the sample count and dwell for a uniform waveform of c.Duration,
+// checking c, including that exactly one of flip and peak is given.
 func (c *Common) times(defaultSamples int) (n int, dt float64, err error) {
-	if !(c.Duration > 0) || math.IsInf(c.Duration, 0) {
-		return 0, 0, fmt.Errorf("duration must be positive, got %g s", c.Duration)
+	n, dt, err = c.grid(defaultSamples)
+	if err != nil {
+		return 0, 0, err
 	}
 	hasFlip, hasPeak := !math.IsNaN(c.Flip), !math.IsNaN(c.Peak)
 	if hasFlip && hasPeak {
@@ -112,18 +113,61 @@ func (c *Common) times(defaultSamples int) (n int, dt float64, err error) {
 	if !hasFlip && !hasPeak {
 		return 0, 0, fmt.Errorf("give flip or peak for the amplitude")
 	}
-	if hasPeak && !(c.Peak >= 0) {
-		return 0, 0, fmt.Errorf("peak must not be negative, got %g T", c.Peak)
+	if hasFlip && (math.IsInf(c.Flip, 0)) {
+		return 0, 0, fmt.Errorf("flip must be finite, got %g rad", c.Flip)
+	}
+	if hasPeak && (!(c.Peak >= 0) || math.IsInf(c.Peak, 0)) {
+		return 0, 0, fmt.Errorf("peak must be finite and not negative, got %g T", c.Peak)
+	}
+	return n, dt, nil
+}
+
+// adiabaticTimes is times for a pulse whose amplitude is set by peak only; flip
+// says whether the shape itself uses c.Flip (as BIR-4 does for its rotation).
+func (c *Common) adiabaticTimes(defaultSamples int, flip bool) (n int, dt float64, err error) {
+	n, dt, err = c.grid(defaultSamples)
+	if err != nil {
+		return 0, 0, err
+	}
+	if !flip && !math.IsNaN(c.Flip) {
+		return 0, 0, fmt.Errorf("flip is not defined for an adiabatic pulse: give peak instead")
+	}
+	if math.IsNaN(c.Peak) {
+		return 0, 0, fmt.Errorf("an adiabatic pulse needs peak (its flip comes from the sweep, not the area)")
+	}
+	if !(c.Peak >= 0) || math.IsInf(c.Peak, 0) {
+		return 0, 0, fmt.Errorf("peak must be finite and not negative, got %g T", c.Peak)
+	}
+	return n, dt, nil
+}
+
+// grid checks duration, samples and dwell and returns the sample count and dwell.
+func (c *Common) grid(defaultSamples int) (n int, dt float64, err error) {
+	if !(c.Duration > 0) || math.IsInf(c.Duration, 0) {
+		return 0, 0, fmt.Errorf("duration must be positive, got %g s", c.Duration)
+	}
+	if math.IsNaN(c.Phase) || math.IsInf(c.Phase, 0) {
+		return 0, 0, fmt.Errorf("phase must be finite, got %g rad", c.Phase)
+	}
+	if math.IsNaN(c.Center) || math.IsInf(c.Center, 0) {
+		return 0, 0, fmt.Errorf("center must be finite, got %g Hz", c.Center)
+	}
+	if c.Samples < 0 {
+		return 0, 0, fmt.Errorf("samples must be positive, got %d", c.Samples)
 	}
 	n = c.Samples
 	if !math.IsNaN(c.Dwell) {
-		if !(c.Dwell > 0) {
+		if !(c.Dwell > 0) || math.IsInf(c.Dwell, 0) {
 			return 0, 0, fmt.Errorf("dwell must be positive, got %g s", c.Dwell)
 		}
 		if c.Samples != 0 {
 			return 0, 0, fmt.Errorf("give samples or dwell, not both")
 		}
-		n = int(math.Round(c.Duration / c.Dwell))
+		k := math.Round(c.Duration / c.Dwell)
+		if k > maxSamples {
+			return 0, 0, fmt.Errorf("dwell %g s gives %.0f samples, want at most %d", c.Dwell, k, maxSamples)
+		}
+		n = int(k)
 		if n < 1 || math.Abs(float64(n)*c.Dwell-c.Duration) > 1e-9*c.Duration {
 			return 0, 0, fmt.Errorf("dwell %g s does not divide duration %g s", c.Dwell, c.Duration)
 		}
@@ -218,6 +262,9 @@ func Rect(c Common, gamma float64) (*Pulse, error) {
 func (p *Pulse) setSlice(c Common) error {
 	if c.Gradient != 0 && c.Thickness != 0 {
 		return fmt.Errorf("%s: give gradient or thickness, not both", p.Shape)
+	}
+	if math.IsNaN(c.Gradient) || math.IsInf(c.Gradient, 0) {
+		return fmt.Errorf("%s: gradient must be finite, got %g T/m", p.Shape, c.Gradient)
 	}
 	g := c.Gradient
 	if c.Thickness != 0 {

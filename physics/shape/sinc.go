@@ -40,7 +40,7 @@ func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 	if !(tbw > 0) || math.IsInf(tbw, 0) {
 		return nil, fmt.Errorf("sinc: tbw must be positive, got %g", tbw)
 	}
-	n, dt, err := c.times(256)
+	n, dt, err := c.times(257)
 	if err != nil {
 		return nil, fmt.Errorf("sinc: %w", err)
 	}
@@ -63,6 +63,21 @@ func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 	p.Bandwidth = tbw / T
 	return p, p.setSlice(c)
 }
+
+// SincLobes is Sinc with the width given as a number of lobes instead of tbw.
+// lobes counts the main lobe and every side lobe over the whole pulse; a lobe
+// runs between neighbouring zero crossings, and the ends of the pulse are zero
+// crossings, so tbw = lobes + 1 (3 lobes: tbw 4, zeros at ±T/4 and ±T/2).
+func SincLobes(c Common, gamma float64, lobes int, win Window) (*Pulse, error) {
+	if lobes < 1 || lobes > 1_000_000 {
+		return nil, fmt.Errorf("sinc: lobes must be 1 to 1000000, got %d", lobes)
+	}
+	return Sinc(c, gamma, TBWFromLobes(lobes), win)
+}
+
+// TBWFromLobes is the time-bandwidth product of a sinc of the given number of
+// lobes (main lobe plus all side lobes): lobes + 1.
+func TBWFromLobes(lobes int) float64 { return float64(lobes + 1) }
 
 func window(w Window, t, T float64) float64 {
 	var a float64

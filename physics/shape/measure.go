@@ -1,0 +1,440 @@
+package shape
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"nutate/physics"
+)
+
+// MeasureOptions control Measure.
+type MeasureOptions struct {
+	// TR (s) is the repetition time for B1rms; 0: not computed.
+	TR float64
+	// Field (T) is B0 for the chemical-shift displacement; 0: not computed.
+	Field float64
+	// Points is the number of offsets of the simulated profile (made odd so the
+	// centre is a point); 0: 401.
+	Points int
+	// Span (Hz) is the half-width of the simulated profile about the pulse's
+	// centre; 0: twice the design bandwidth, at least 4/T. It widens (up to 16×)
+	// until the profile falls below half of its on-band value on both sides.
+	Span float64
+	// Workers is passed to the simulation; 0: GOMAXPROCS.
+	Workers int
+}
+
+// Profile is a simulated response against frequency offset.
+type Profile struct {
+	Offset []float64 // Hz from the carrier
+	Value  []float64 // the role's quantity, see Measure
+}
+
+// Properties are what Measure finds. NaN marks a figure that does not apply or
+// could not be found.
+type Properties struct {
+	Duration float64 // s
+	Peak     float64 // T, largest |B1|
+	PeakHz   float64 // Hz, γ̄·Peak
+	Flip     float64 // rad, nominal on-resonance flip by design (γ∫B1 dt); NaN for adiabatic pulses and trains
+	// Rotation (rad) is the simulated rotation angle at the pulse's centre
+	// frequency, 2·asin|β| (Pauly et al., IEEE TMI 10:53, 1991).
+	Rotation float64
+	// Energy is ∫|B1|² dt (T²·s) and B1rms = √(Energy/TR) (T): relative,
+	// waveform-only estimates, never a substitute for the scanner's SAR
+	// supervision, IEC 60601-2-33, local regulations or the site's MR safety
+	// officer.
+	Energy, B1rms float64
+	// Role is the role whose profile was measured: for excite and none |Mxy|,
+	// invert (1 − Mz)/2, refocus |β|², saturate 1 − |Mz|, all from +z.
+	Role Role
+	// OnBand is the profile's value at the pulse's centre frequency.
+	OnBand float64
+	// Bandwidth (Hz) is the distance between the offsets, nearest the centre on
+	// either side, where the simulated profile crosses OnBand/2 (refined by
+	// bisection on single-isochromat simulations); Edges are those offsets.
+	Bandwidth float64
+	Edges     [2]float64
+	// Transition (Hz) is the mean over both edges of the distance between the
+	// crossings of 90 % and 10 % of OnBand, searched outward from the centre.
+	Transition float64
+	// PassRipple is max|v − OnBand|/OnBand over the offsets within
+	// Bandwidth/2 − Transition of the centre; StopRipple is max v/OnBand over the
+	// simulated offsets beyond Bandwidth/2 + Transition. NaN where a band is empty.
+	PassRipple, StopRipple float64
+	// Threshold (T) is the adiabatic threshold, for adiabatic pulses only: the
+	// lowest peak B1 at which the role's target is met at every offset within a
+	// quarter of the design bandwidth of the centre (21 offsets; only the centre
+	// without a design bandwidth): the lowest B1 of a geometric scan, from 1/64 to
+	// 16 times the pulse's own peak, at which the target is met and also met at
+	// the next scan step. Targets: invert Mz ≤ −0.9; excite |Mxy| ≥ 0.9; refocus
+	// |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; none |Mz − cos θ| ≤ 0.1 with θ the nominal
+	// flip. The scan uses steps of 2^(1/4) from 1/64 of the peak; the last step
+	// is refined by bisection to 1e-4 relative. ThresholdHz is γ̄·Threshold.
+	Threshold, ThresholdHz float64
+	// Thickness (m) is Bandwidth/(γ̄|G|) for a pulse with a constant gradient.
+	Thickness float64
+	// ShiftPerPPM (m/ppm) is the chemical-shift displacement of the slice per ppm
+	// at MeasureOptions.Field.
+	ShiftPerPPM float64
+	// Profile is the simulated profile the figures come from (gradient off: a
+	// constant gradient G maps offset f to position f/(γ̄G)).
+	Profile Profile
+}
+
+// Threshold targets, see Properties.Threshold.
+const (
+	thresholdTarget = 0.9
+	thresholdScans  = 45 // 2^(-6) to 2^(5) in steps of 2^(1/4)
+)
+
+// Measure computes a pulse's properties, simulating its profile with
+// physics.Simulate (gradient off). It returns ctx.Err() when cancelled.
+func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, error) {
+	var pr Properties
+	if p == nil || p.Wave.Len() == 0 {
+		return pr, fmt.Errorf("measure: empty pulse")
+	}
+	if err := p.Wave.Validate(); err != nil {
+		return pr, fmt.Errorf("measure: %w", err)
+	}
+	if p.Gamma == 0 || math.IsNaN(p.Gamma) {
+		return pr, fmt.Errorf("measure: gyromagnetic ratio is %g, want non-zero", p.Gamma)
+	}
+	if opt.TR < 0 || math.IsNaN(opt.TR) {
+		return pr, fmt.Errorf("measure: tr must be positive, got %g s", opt.TR)
+	}
+	if opt.Points < 0 || opt.Points > 100001 {
+		return pr, fmt.Errorf("measure: points must be 3 to 100001, got %d", opt.Points)
+	}
+	m := &meter{ctx: ctx, p: p, gammaBar: math.Abs(p.Gamma) / (2 * math.Pi), workers: opt.Workers}
+	m.w = p.Wave
+	m.w.Gradient = nil
+	m.role = p.Role
+
+	T := p.Duration()
+	pr.Duration = T
+	pr.Peak = p.Peak()
+	pr.PeakHz = m.gammaBar * pr.Peak
+	pr.Flip = p.Flip
+	pr.Energy = p.Energy()
+	pr.B1rms = math.NaN()
+	if opt.TR > 0 {
+		if opt.TR < T {
+			return pr, fmt.Errorf("measure: tr %g s is shorter than the pulse (%g s)", opt.TR, T)
+		}
+		// B1rms over one repetition: √(∫B1² dt / TR) (common practice).
+		pr.B1rms = math.Sqrt(pr.Energy / opt.TR)
+	}
+	pr.Role = m.role
+	nan := math.NaN()
+	pr.Bandwidth, pr.Edges, pr.Transition, pr.PassRipple, pr.StopRipple = nan, [2]float64{nan, nan}, nan, nan, nan
+	pr.Threshold, pr.ThresholdHz, pr.Thickness, pr.ShiftPerPPM = nan, nan, nan, nan
+
+	r, err := m.sim([]float64{p.Center}, nil)
+	if err != nil {
+		return pr, err
+	}
+	pr.Rotation = 2 * math.Asin(math.Min(1, cabs(r.Beta[0])))
+
+	points := opt.Points
+	if points == 0 {
+		points = 401
+	}
+	if points < 3 {
+		points = 3
+	}
+	if points%2 == 0 {
+		points++
+	}
+	span := opt.Span
+	if span == 0 {
+		span = math.Max(2*p.Bandwidth, 4/T)
+	}
+	if !(span > 0) || math.IsInf(span, 0) {
+		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
+	}
+	for widen := 0; ; widen++ {
+		if err := m.profile(span, points); err != nil {
+			return pr, err
+		}
+		if m.crossesHalf() || widen == 4 {
+			break
+		}
+		span *= 2
+	}
+	pr.Profile = Profile{Offset: m.off, Value: m.val}
+	if err := m.features(&pr); err != nil {
+		return pr, err
+	}
+	if p.Gradient != 0 && !math.IsNaN(pr.Bandwidth) {
+		pr.Thickness = SliceThickness(pr.Bandwidth, p.Gamma, p.Gradient)
+	}
+	if opt.Field > 0 && p.Gradient != 0 {
+		pr.ShiftPerPPM = ShiftPerPPM(opt.Field, p.Gradient)
+	}
+	if p.Adiabatic && pr.Peak > 0 {
+		th, err := m.threshold()
+		if err != nil {
+			return pr, err
+		}
+		pr.Threshold = th
+		pr.ThresholdHz = m.gammaBar * th
+	}
+	return pr, nil
+}
+
+// SliceThickness is the thickness (m) excited by a band of bandwidth Hz under a
+// gradient G (T/m): bandwidth/(γ̄|G|) (common practice), γ in rad·s⁻¹·T⁻¹.
+func SliceThickness(bandwidth, gamma, gradient float64) float64 {
+	return bandwidth * 2 * math.Pi / math.Abs(gamma*gradient)
+}
+
+// ShiftPerPPM is the slice displacement (m) per ppm of chemical shift at field B0
+// (T) under gradient G (T/m): a shift of 1 ppm is Δf = γ̄·B0·1e-6 Hz, and a
+// frequency Δf moves the slice by Δf/(γ̄G) = (Δf/bandwidth)·thickness, so γ
+// cancels: B0·1e-6/G. The sign follows G.
+func ShiftPerPPM(field, gradient float64) float64 {
+	return field * 1e-6 / gradient
+}
+
+type meter struct {
+	ctx      context.Context
+	p        *Pulse
+	w        physics.Waveform
+	role     Role
+	gammaBar float64
+	workers  int
+	off, val []float64
+	center   int // index of the centre in off
+}
+
+func (m *meter) sim(offsets, scales []float64) (*physics.Result, error) {
+	iso := physics.Grid(offsets, scales, nil, nil, nil)
+	return physics.Simulate(m.ctx, &m.w, m.p.Gamma, &iso, physics.Options{Workers: m.workers})
+}
+
+// value is the role's profile quantity for isochromat i of r.
+func (m *meter) value(r *physics.Result, i int) float64 {
+	switch m.role {
+	case RoleInvert:
+		return (1 - r.Mz[i]) / 2
+	case RoleRefocus:
+		b := r.Beta[i]
+		return real(b)*real(b) + imag(b)*imag(b)
+	case RoleSaturate:
+		return 1 - math.Abs(r.Mz[i])
+	default:
+		return math.Hypot(r.Mx[i], r.My[i])
+	}
+}
+
+func (m *meter) at(f float64) (float64, error) {
+	r, err := m.sim([]float64{f}, nil)
+	if err != nil {
+		return 0, err
+	}
+	return m.value(r, 0), nil
+}
+
+func (m *meter) profile(span float64, points int) error {
+	c := m.p.Center
+	m.off = make([]float64, points)
+	for i := range m.off {
+		m.off[i] = c - span + 2*span*float64(i)/float64(points-1)
+	}
+	m.center = points / 2
+	m.off[m.center] = c
+	r, err := m.sim(m.off, nil)
+	if err != nil {
+		return err
+	}
+	m.val = make([]float64, points)
+	for i := range m.val {
+		m.val[i] = m.value(r, i)
+	}
+	return nil
+}
+
+func (m *meter) onBand() float64 { return m.val[m.center] }
+
+// crossing searches outward from the centre (dir ±1) for the first grid point
+// below level and refines the crossing by bisection. ok is false when the
+// profile stays at or above level to the end of the grid.
+func (m *meter) crossing(level float64, dir int) (f float64, ok bool, err error) {
+	i := m.center
+	for {
+		j := i + dir
+		if j < 0 || j >= len(m.val) {
+			return math.NaN(), false, nil
+		}
+		if m.val[j] < level {
+			break
+		}
+		i = j
+	}
+	a, b := m.off[i], m.off[i+dir] // v(a) ≥ level > v(b)
+	for k := 0; k < 40 && math.Abs(b-a) > 1e-9*math.Max(1, math.Abs(a)); k++ {
+		mid := (a + b) / 2
+		v, err := m.at(mid)
+		if err != nil {
+			return 0, false, err
+		}
+		if v >= level {
+			a = mid
+		} else {
+			b = mid
+		}
+	}
+	return (a + b) / 2, true, nil
+}
+
+func (m *meter) crossesHalf() bool {
+	v0 := m.onBand()
+	if !(v0 > 0.01) {
+		return true // no band to find; widening would not help
+	}
+	return m.val[0] < v0/2 && m.val[len(m.val)-1] < v0/2
+}
+
+func (m *meter) features(pr *Properties) error {
+	v0 := m.onBand()
+	pr.OnBand = v0
+	if !(v0 > 0.01) {
+		return nil
+	}
+	var cross [3][2]float64 // levels 0.5, 0.9, 0.1; sides left, right
+	for k, lv := range []float64{0.5, 0.9, 0.1} {
+		for s, dir := range []int{-1, 1} {
+			f, ok, err := m.crossing(lv*v0, dir)
+			if err != nil {
+				return err
+			}
+			if !ok {
+				f = math.NaN()
+			}
+			cross[k][s] = f
+		}
+	}
+	pr.Edges = cross[0]
+	pr.Bandwidth = cross[0][1] - cross[0][0]
+	pr.Transition = ((cross[2][1] - cross[1][1]) + (cross[1][0] - cross[2][0])) / 2
+	if math.IsNaN(pr.Bandwidth) || math.IsNaN(pr.Transition) {
+		return nil
+	}
+	c := m.p.Center
+	pass, stop := math.NaN(), math.NaN()
+	for i, f := range m.off {
+		d := math.Abs(f - c)
+		v := m.val[i]
+		if d <= pr.Bandwidth/2-pr.Transition {
+			pass = maxNaN(pass, math.Abs(v-v0)/v0)
+		}
+		if d >= pr.Bandwidth/2+pr.Transition {
+			stop = maxNaN(stop, v/v0)
+		}
+	}
+	pr.PassRipple, pr.StopRipple = pass, stop
+	return nil
+}
+
+func maxNaN(a, b float64) float64 {
+	if math.IsNaN(a) {
+		return b
+	}
+	return math.Max(a, b)
+}
+
+// met reports, for each B1 scale, whether the role's target holds at every
+// threshold offset.
+func (m *meter) met(scales []float64) ([]bool, error) {
+	offs := m.thresholdOffsets()
+	r, err := m.sim(offs, scales)
+	if err != nil {
+		return nil, err
+	}
+	ok := make([]bool, len(scales))
+	for s := range ok {
+		ok[s] = true
+	}
+	cosFlip := math.Cos(m.p.Flip)
+	for io := range offs {
+		for s := range scales {
+			i := io*len(scales) + s
+			var good bool
+			switch m.role {
+			case RoleInvert:
+				good = r.Mz[i] <= -thresholdTarget
+			case RoleExcite:
+				good = math.Hypot(r.Mx[i], r.My[i]) >= thresholdTarget
+			case RoleRefocus:
+				b := r.Beta[i]
+				good = real(b)*real(b)+imag(b)*imag(b) >= thresholdTarget
+			case RoleSaturate:
+				good = math.Abs(r.Mz[i]) <= 1-thresholdTarget
+			default:
+				good = math.Abs(r.Mz[i]-cosFlip) <= 1-thresholdTarget
+			}
+			ok[s] = ok[s] && good
+		}
+	}
+	return ok, nil
+}
+
+func (m *meter) thresholdOffsets() []float64 {
+	c, bw := m.p.Center, m.p.Bandwidth
+	if !(bw > 0) {
+		return []float64{c}
+	}
+	const k = 21
+	offs := make([]float64, k)
+	for i := range offs {
+		offs[i] = c + bw/4*(2*float64(i)/(k-1)-1)
+	}
+	return offs
+}
+
+func (m *meter) threshold() (float64, error) {
+	if m.role == RoleNone && math.IsNaN(m.p.Flip) {
+		return math.NaN(), nil
+	}
+	peak := m.p.Peak()
+	scales := make([]float64, thresholdScans)
+	for i := range scales {
+		scales[i] = math.Exp2(-6 + float64(i)/4)
+	}
+	ok, err := m.met(scales)
+	if err != nil {
+		return 0, err
+	}
+	// The lowest scale that meets the target with its next scale (a guard
+	// against an isolated hit below threshold).
+	lowest := -1
+	for i := 0; i+1 < len(ok); i++ {
+		if ok[i] && ok[i+1] {
+			lowest = i
+			break
+		}
+	}
+	switch lowest {
+	case -1:
+		return math.NaN(), nil
+	case 0:
+		return scales[0] * peak, nil
+	}
+	lo, hi := scales[lowest-1], scales[lowest]
+	for hi-lo > 1e-4*hi {
+		mid := (lo + hi) / 2
+		r, err := m.met([]float64{mid})
+		if err != nil {
+			return 0, err
+		}
+		if r[0] {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi * peak, nil
+}

@@ -1,0 +1,99 @@
+package shape
+
+import (
+	"fmt"
+	"math"
+)
+
+// sweepSamples is the default sample count of a frequency-swept pulse: at least
+// 1000, and enough that the carrier-frame phase advances by at most 1/20 cycle
+// per sample at the edge of a sweep of the given bandwidth (Hz) over T (s).
+func sweepSamples(bandwidth, T float64) int {
+	n := math.Ceil(10 * math.Abs(bandwidth) * T)
+	if n < 1000 {
+		return 1000
+	}
+	if n > maxSamples {
+		return maxSamples
+	}
+	return int(n)
+}
+
+// sampleTimes returns the sample midpoints of n samples of dt, measured from the
+// middle of the pulse.
+func sampleTimes(n int, dt float64) []float64 {
+	T := float64(n) * dt
+	ts := make([]float64, n)
+	for j := range ts {
+		ts[j] = (float64(j)+0.5)*dt - T/2
+	}
+	return ts
+}
+
+// integratePhase returns φ(t_j) = 2π ∫₀^{t_j} f(t) dt at the sample midpoints t_j
+// (times from the middle of the pulse), by composite Simpson's rule on four
+// sub-intervals between neighbouring midpoints. The phase is zero at the middle of
+// the pulse.
+func integratePhase(f func(t float64) float64, ts []float64) []float64 {
+	simpson := func(a, b float64) float64 {
+		const k = 4
+		h := (b - a) / k
+		s := f(a) + f(b)
+		for i := 1; i < k; i++ {
+			w := 2.0
+			if i%2 == 1 {
+				w = 4
+			}
+			s += w * f(a+float64(i)*h)
+		}
+		return s * h / 3
+	}
+	ph := make([]float64, len(ts))
+	if len(ts) == 0 {
+		return ph
+	}
+	// Start from the midpoint nearest the middle, integrating from t = 0.
+	m := len(ts) / 2
+	ph[m] = 2 * math.Pi * simpson(0, ts[m])
+	for j := m + 1; j < len(ts); j++ {
+		ph[j] = ph[j-1] + 2*math.Pi*simpson(ts[j-1], ts[j])
+	}
+	for j := m - 1; j >= 0; j-- {
+		ph[j] = ph[j+1] - 2*math.Pi*simpson(ts[j], ts[j+1])
+	}
+	return ph
+}
+
+// polar builds a pulse from a unit-peak amplitude u, a phase (rad) and an
+// instantaneous frequency (Hz) per sample, scaled to c.Peak; then applies Phase,
+// Center and the slice gradient. The pulse is marked adiabatic with an undefined
+// nominal flip; the caller may set Flip.
+func polar(name string, c Common, gamma float64, u, phase, freq []float64, dt float64) (*Pulse, error) {
+	peak := 0.0
+	for _, v := range u {
+		peak = math.Max(peak, math.Abs(v))
+	}
+	if peak == 0 {
+		return nil, fmt.Errorf("%s: the shape is zero everywhere", name)
+	}
+	scale := c.Peak / peak
+	p := &Pulse{Shape: name, Gamma: gamma, Role: c.Role, Center: c.Center, Flip: math.NaN(), Adiabatic: true}
+	p.Wave.Dwell = make([]float64, len(u))
+	p.Wave.B1 = make([]complex128, len(u))
+	for j, v := range u {
+		p.Wave.Dwell[j] = dt
+		s, co := math.Sincos(phase[j])
+		p.Wave.B1[j] = complex(scale*v*co, scale*v*s)
+	}
+	p.Freq = append([]float64(nil), freq...)
+	p.applyPhase(c.Phase, c.Center)
+	return p, nil
+}
+
+// checkBandwidth checks a sweep bandwidth argument.
+func checkBandwidth(name string, bw float64) error {
+	if !(bw > 0) || math.IsInf(bw, 0) {
+		return fmt.Errorf("%s: bandwidth must be positive, got %g Hz", name, bw)
+	}
+	return nil
+}
