@@ -1,12 +1,40 @@
 package main
 
 import (
+	"context"
+	"flag"
 	"fmt"
+	"io"
 	"os"
+
+	"nutate/kernel"
 )
 
-// cmdKernel runs the Jupyter kernel.
+// cmdKernel runs the Jupyter kernel on the sockets of a connection file; this is
+// what the kernelspec launches. Relative paths in cells resolve against the
+// working directory, which Jupyter sets to the notebook's folder.
 func cmdKernel(args []string) int {
-	fmt.Fprintln(os.Stderr, "nutate kernel: not built yet")
-	return 1
+	fs := flag.NewFlagSet("kernel", flag.ContinueOnError)
+	fs.SetOutput(io.Discard)
+	conn := fs.String("connection-file", "", "Jupyter connection file")
+	if err := fs.Parse(args); err != nil {
+		fmt.Fprintf(os.Stderr, "nutate kernel: %v\nusage: nutate kernel --connection-file FILE\n", err)
+		return 2
+	}
+	if *conn == "" && fs.NArg() == 1 {
+		*conn = fs.Arg(0)
+	}
+	if *conn == "" || fs.NArg() > 1 {
+		fmt.Fprintln(os.Stderr, "nutate kernel: --connection-file: got none, want the path Jupyter passes\nusage: nutate kernel --connection-file FILE")
+		return 2
+	}
+	dir, err := os.Getwd()
+	if err != nil {
+		dir = "."
+	}
+	if err := kernel.Run(context.Background(), *conn, newExecutor(dir)); err != nil {
+		fmt.Fprintf(os.Stderr, "nutate kernel: %v\n", err)
+		return 1
+	}
+	return 0
 }

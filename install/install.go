@@ -1,0 +1,172 @@
+// Package install writes and removes the Jupyter kernelspec of the nutate
+// kernel: a directory named "nutate" holding kernel.json and two logos
+// (logo-32x32.png, logo-64x64.png) inside a Jupyter "kernels" directory.
+//
+// Entry points: UserKernelsDir, PrefixKernelsDir and SysPrefixKernelsDir find
+// where to install; Install writes the spec (idempotently: running it again
+// rewrites the same files); Uninstall removes it.
+package install
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"runtime"
+)
+
+// Name is the kernelspec's directory name, the kernel name clients select.
+const Name = "nutate"
+
+// Spec is the content of kernel.json.
+type Spec struct {
+	Argv          []string          `json:"argv"`
+	DisplayName   string            `json:"display_name"`
+	Language      string            `json:"language"`
+	InterruptMode string            `json:"interrupt_mode,omitempty"`
+	Env           map[string]string `json:"env,omitempty"`
+	Metadata      map[string]any    `json:"metadata,omitempty"`
+}
+
+// NewSpec returns the kernelspec that launches binary (an absolute path) as
+// `binary kernel --connection-file {connection_file}`. Interrupts travel as
+// messages on the control channel.
+func NewSpec(binary, version string) Spec {
+	return Spec{
+		Argv:          []string{binary, "kernel", "--connection-file", "{connection_file}"},
+		DisplayName:   "Nutate (RF pulses)",
+		Language:      "nutate",
+		InterruptMode: "message",
+		Metadata: map[string]any{
+			"nutate_version": version,
+			"debugger":       false,
+		},
+	}
+}
+
+// UserKernelsDir returns the per-user Jupyter kernels directory, as Jupyter
+// finds it: $JUPYTER_DATA_DIR/kernels if set; otherwise on Linux and other
+// Unix $XDG_DATA_HOME/jupyter/kernels (default ~/.local/share/jupyter/kernels),
+// on macOS ~/Library/Jupyter/kernels, on Windows %APPDATA%\jupyter\kernels.
+func UserKernelsDir() (string, error) {
+	if d := os.Getenv("JUPYTER_DATA_DIR"); d != "" {
+		return filepath.Join(d, "kernels"), nil
+	}
+	home, err := os.UserHomeDir()
+	switch runtime.GOOS {
+	case "darwin":
+		if err != nil {
+			return "", fmt.Errorf("user kernels directory: %w", err)
+		}
+		return filepath.Join(home, "Library", "Jupyter", "kernels"), nil
+	case "windows":
+		if a := os.Getenv("APPDATA"); a != "" {
+			return filepath.Join(a, "jupyter", "kernels"), nil
+		}
+	}
+	if x := os.Getenv("XDG_DATA_HOME"); x != "" {
+		return filepath.Join(x, "jupyter", "kernels"), nil
+	}
+	if err != nil {
+		return "", fmt.Errorf("user kernels directory: %w", err)
+	}
+	return filepath.Join(home, ".local", "share", "jupyter", "kernels"), nil
+}
+
+// PrefixKernelsDir returns prefix/share/jupyter/kernels, where Jupyter looks
+// for the kernels of an installation prefix.
+func PrefixKernelsDir(prefix string) string {
+	return filepath.Join(prefix, "share", "jupyter", "kernels")
+}
+
+// SysPrefix returns the prefix of the Python environment Jupyter most likely
+// runs in, without running Python: $VIRTUAL_ENV if set, else $CONDA_PREFIX if
+// set, else /usr/local (which Jupyter searches on every Unix system).
+func SysPrefix() string {
+	for _, v := range []string{"VIRTUAL_ENV", "CONDA_PREFIX"} {
+		if p := os.Getenv(v); p != "" {
+			return p
+		}
+	}
+	return "/usr/local"
+}
+
+// Install writes the kernelspec into kernelsDir/nutate, creating directories
+// as needed and replacing any earlier files, and returns the spec directory.
+// Each file is written to a temporary name and renamed, so a reader never sees
+// half a file.
+func Install(kernelsDir string, spec Spec) (string, error) {
+	if len(spec.Argv) == 0 || !filepath.IsAbs(spec.Argv[0]) {
+		return "", fmt.Errorf("install: argv[0]: got %q, want an absolute path to the binary", first(spec.Argv))
+	}
+	dir := filepath.Join(kernelsDir, Name)
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return "", fmt.Errorf("install: %w", err)
+	}
+	js, err := json.MarshalIndent(spec, "", "  ")
+	if err != nil {
+		return "", fmt.Errorf("install: kernel.json: %w", err)
+	}
+	files := []struct {
+		name string
+		data []byte
+	}{
+		{"kernel.json", append(js, '\n')},
+		{"logo-32x32.png", LogoPNG(32)},
+		{"logo-64x64.png", LogoPNG(64)},
+	}
+	for _, f := range files {
+		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
+			return "", fmt.Errorf("install: %w", err)
+		}
+	}
+	return dir, nil
+}
+
+// Uninstall removes kernelsDir/nutate and reports the directory and whether
+// it existed. Only the files Install writes are removed, then the directory if
+// it is empty, so nothing a user put there is lost.
+func Uninstall(kernelsDir string) (string, bool, error) {
+	dir := filepath.Join(kernelsDir, Name)
+	if _, err := os.Stat(dir); errors.Is(err, os.ErrNotExist) {
+		return dir, false, nil
+	}
+	for _, name := range []string{"kernel.json", "logo-32x32.png", "logo-64x64.png"} {
+		if err := os.Remove(filepath.Join(dir, name)); err != nil && !errors.Is(err, os.ErrNotExist) {
+			return dir, true, fmt.Errorf("uninstall: %w", err)
+		}
+	}
+	if err := os.Remove(dir); err != nil {
+		return dir, true, fmt.Errorf("uninstall: %s still holds other files: %w", dir, err)
+	}
+	return dir, true, nil
+}
+
+func writeAtomic(path string, data []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*")
+	if err != nil {
+		return err
+	}
+	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		os.Remove(tmp.Name())
+		return err
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(tmp.Name())
+		return err
+	}
+	if err := os.Chmod(tmp.Name(), 0o644); err != nil {
+		os.Remove(tmp.Name())
+		return err
+	}
+	return os.Rename(tmp.Name(), path)
+}
+
+func first(s []string) string {
+	if len(s) == 0 {
+		return ""
+	}
+	return s[0]
+}

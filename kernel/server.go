@@ -1,0 +1,325 @@
+package kernel
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"log"
+	"net"
+	"os"
+	"os/signal"
+	"strconv"
+	"sync"
+	"sync/atomic"
+	"syscall"
+	"time"
+
+	"github.com/go-zeromq/zmq4"
+	"github.com/google/uuid"
+)
+
+// ConnectionInfo is the content of a Jupyter connection file.
+type ConnectionInfo struct {
+	Transport       string `json:"transport"` // "tcp" or "ipc"
+	IP              string `json:"ip"`
+	ShellPort       int    `json:"shell_port"`
+	IOPubPort       int    `json:"iopub_port"`
+	StdinPort       int    `json:"stdin_port"`
+	ControlPort     int    `json:"control_port"`
+	HBPort          int    `json:"hb_port"`
+	Key             string `json:"key"`
+	SignatureScheme string `json:"signature_scheme"`
+	KernelName      string `json:"kernel_name,omitempty"`
+}
+
+// ReadConnectionFile reads and checks a connection file.
+func ReadConnectionFile(path string) (ConnectionInfo, error) {
+	var ci ConnectionInfo
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return ci, fmt.Errorf("connection file: %w", err)
+	}
+	if err := json.Unmarshal(b, &ci); err != nil {
+		return ci, fmt.Errorf("connection file %s: %w", path, err)
+	}
+	if ci.Transport == "" {
+		ci.Transport = "tcp"
+	}
+	if ci.Transport != "tcp" && ci.Transport != "ipc" {
+		return ci, fmt.Errorf("connection file %s: transport: got %q, want tcp or ipc", path, ci.Transport)
+	}
+	if ci.IP == "" {
+		ci.IP = "127.0.0.1"
+	}
+	return ci, nil
+}
+
+// Server is a running kernel: five endpoints, the shell and control goroutines
+// and the dispatcher.
+type Server struct {
+	info   ConnectionInfo
+	signer *Signer
+	d      *dispatcher
+	log    *log.Logger
+
+	shell, control, stdin, iopub, hb *endpoint
+
+	shellQ, controlQ chan request
+	pubMu            sync.Mutex
+	topicPrefix      string
+
+	stop      chan struct{} // closed when shutting down
+	stopOnce  sync.Once
+	shellDone chan struct{}
+	ctrlDone  chan struct{}
+	done      chan struct{}
+	restart   bool
+
+	drops atomic.Int64
+}
+
+// Timing of a shutdown: the running cell gets cellGrace to notice its
+// cancelled context, then pending messages get flushGrace to leave.
+const (
+	cellGrace  = 2 * time.Second
+	flushGrace = time.Second
+)
+
+// Start binds the five sockets described by info (a port of 0 picks a free one)
+// and starts serving exec. Logs go to lg (nil: standard error).
+func Start(info ConnectionInfo, exec Executor, lg *log.Logger) (*Server, error) {
+	if lg == nil {
+		lg = log.New(os.Stderr, "nutate kernel: ", log.LstdFlags)
+	}
+	signer, err := NewSigner(info.Key, info.SignatureScheme)
+	if err != nil {
+		return nil, err
+	}
+	if info.Transport == "" {
+		info.Transport = "tcp"
+	}
+	if info.IP == "" {
+		info.IP = "127.0.0.1"
+	}
+	session := uuid.NewString()
+	s := &Server{
+		info:        info,
+		signer:      signer,
+		log:         lg,
+		shellQ:      make(chan request, 64),
+		controlQ:    make(chan request, 64),
+		topicPrefix: "kernel." + session + ".",
+		stop:        make(chan struct{}),
+		shellDone:   make(chan struct{}),
+		ctrlDone:    make(chan struct{}),
+		done:        make(chan struct{}),
+	}
+	s.d = newDispatcher(exec, session, lg, s.publish)
+
+	var eps []*endpoint
+	fail := func(err error) (*Server, error) {
+		for _, e := range eps {
+			e.close()
+		}
+		return nil, err
+	}
+	listen := func(name string, port *int, typ zmq4.SocketType, onMsg func(*peer, [][]byte)) (*endpoint, error) {
+		ln, err := s.listen(*port)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", name, err)
+		}
+		if a, ok := ln.Addr().(*net.TCPAddr); ok {
+			*port = a.Port
+		}
+		e := newEndpoint(name, typ, ln, lg, onMsg)
+		eps = append(eps, e)
+		return e, nil
+	}
+	if s.iopub, err = listen("iopub", &s.info.IOPubPort, zmq4.Pub, func(*peer, [][]byte) {}); err != nil {
+		return fail(err)
+	}
+	if s.hb, err = listen("hb", &s.info.HBPort, zmq4.Rep, func(p *peer, f [][]byte) { p.send(f) }); err != nil {
+		return fail(err)
+	}
+	if s.stdin, err = listen("stdin", &s.info.StdinPort, zmq4.Router, func(*peer, [][]byte) {}); err != nil {
+		return fail(err)
+	}
+	if s.control, err = listen("control", &s.info.ControlPort, zmq4.Router, s.queue("control", s.controlQ)); err != nil {
+		return fail(err)
+	}
+	if s.shell, err = listen("shell", &s.info.ShellPort, zmq4.Router, s.queue("shell", s.shellQ)); err != nil {
+		return fail(err)
+	}
+
+	go s.serve(s.shellQ, s.shellDone, false)
+	go s.serve(s.controlQ, s.ctrlDone, true)
+	go s.waitShutdown()
+	return s, nil
+}
+
+func (s *Server) listen(port int) (net.Listener, error) {
+	if s.info.Transport == "ipc" {
+		path := s.info.IP + "-" + strconv.Itoa(port)
+		return GuardedTransport{Network: "unix"}.Listen(context.Background(), path)
+	}
+	return GuardedTransport{Network: "tcp"}.Listen(context.Background(), net.JoinHostPort(s.info.IP, strconv.Itoa(port)))
+}
+
+// Info returns the connection information with the ports actually bound.
+func (s *Server) Info() ConnectionInfo { return s.info }
+
+// queue returns the endpoint callback that decodes and verifies a message and
+// queues it for the shell or control goroutine. Bad messages are dropped.
+func (s *Server) queue(name string, q chan request) func(*peer, [][]byte) {
+	return func(p *peer, frames [][]byte) {
+		m, err := s.signer.Decode(frames)
+		if err != nil {
+			if n := s.drops.Add(1); n <= 10 || n%1000 == 0 {
+				s.log.Printf("%s: message dropped (%d so far): %v", name, n, err)
+			}
+			return
+		}
+		r := request{msg: m, reply: func(out Message) {
+			frames, err := s.signer.Encode(out)
+			if err != nil {
+				s.log.Printf("%s: cannot encode %s: %v", name, out.Header.MsgType, err)
+				return
+			}
+			p.send(frames)
+		}}
+		select {
+		case q <- r:
+		case <-s.stop:
+		}
+	}
+}
+
+// publish sends m on iopub with a topic naming its type. Publications are
+// serialised so every subscriber sees them in order.
+func (s *Server) publish(m Message) {
+	m.Idents = [][]byte{[]byte(s.topicPrefix + m.Header.MsgType)}
+	frames, err := s.signer.Encode(m)
+	if err != nil {
+		s.log.Printf("iopub: cannot encode %s: %v", m.Header.MsgType, err)
+		return
+	}
+	s.pubMu.Lock()
+	s.iopub.broadcast(frames)
+	s.pubMu.Unlock()
+}
+
+// serve runs the requests of one channel in order until shutdown.
+func (s *Server) serve(q chan request, done chan struct{}, control bool) {
+	defer close(done)
+	for {
+		select {
+		case r := <-q:
+			s.d.handle(r, control)
+		case <-s.stop:
+			return
+		}
+	}
+}
+
+// Interrupt cancels the running cell, as interrupt_request does.
+func (s *Server) Interrupt() { s.d.Interrupt() }
+
+// Shutdown stops the kernel as shutdown_request does, without a reply.
+func (s *Server) Shutdown() {
+	s.d.Interrupt()
+	s.d.stopOnce.Do(func() { s.d.shutdown <- false })
+}
+
+// Done is closed once the kernel has stopped and its sockets are closed.
+func (s *Server) Done() <-chan struct{} { return s.done }
+
+// Restart reports whether the shutdown that stopped the kernel asked for a
+// restart. It is meaningful once Done is closed.
+func (s *Server) Restart() bool { return s.restart }
+
+func (s *Server) waitShutdown() {
+	s.restart = <-s.d.shutdown
+	s.stopOnce.Do(func() { close(s.stop) })
+	// The control goroutine is answering the shutdown (or idle); the shell one
+	// may be finishing a cancelled cell.
+	t := time.NewTimer(cellGrace)
+	wait := func(ch chan struct{}) bool {
+		select {
+		case <-ch:
+			return true
+		case <-t.C:
+			return false
+		}
+	}
+	if !wait(s.ctrlDone) || !wait(s.shellDone) {
+		s.log.Printf("the running cell did not stop within %v; exiting anyway", cellGrace)
+	}
+	t.Stop()
+	deadline := time.Now().Add(flushGrace)
+	for _, e := range []*endpoint{s.iopub, s.shell, s.control} {
+		e.flush(deadline)
+	}
+	for _, e := range []*endpoint{s.shell, s.control, s.stdin, s.hb, s.iopub} {
+		e.close()
+	}
+	if s.info.Transport == "ipc" {
+		for _, port := range []int{s.info.ShellPort, s.info.IOPubPort, s.info.StdinPort, s.info.ControlPort, s.info.HBPort} {
+			os.Remove(s.info.IP + "-" + strconv.Itoa(port))
+		}
+	}
+	close(s.done)
+}
+
+// parentPollInterval is how often Run checks that the parent process lives.
+const parentPollInterval = time.Second
+
+// Run serves exec on the sockets named by connectionFile until a shutdown
+// request, SIGTERM, the end of ctx, or the death of the parent process named by
+// the JPY_PARENT_PID environment variable. SIGINT interrupts the running cell.
+func Run(ctx context.Context, connectionFile string, exec Executor) error {
+	info, err := ReadConnectionFile(connectionFile)
+	if err != nil {
+		return err
+	}
+	s, err := Start(info, exec, nil)
+	if err != nil {
+		return err
+	}
+	sig := make(chan os.Signal, 4)
+	signal.Notify(sig, os.Interrupt, syscall.SIGTERM)
+	defer signal.Stop(sig)
+
+	var parent <-chan time.Time
+	var parentProc *os.Process
+	if pid, err := strconv.Atoi(os.Getenv("JPY_PARENT_PID")); err == nil && pid > 1 {
+		if p, err := os.FindProcess(pid); err == nil {
+			parentProc = p
+			tk := time.NewTicker(parentPollInterval)
+			defer tk.Stop()
+			parent = tk.C
+		}
+	}
+	ctxDone := ctx.Done()
+	for {
+		select {
+		case <-s.Done():
+			return nil
+		case v := <-sig:
+			if v == os.Interrupt {
+				s.Interrupt()
+			} else {
+				s.Shutdown()
+			}
+		case <-ctxDone:
+			s.Shutdown()
+			ctxDone = nil
+		case <-parent:
+			if err := parentProc.Signal(syscall.Signal(0)); errors.Is(err, os.ErrProcessDone) {
+				s.log.Printf("parent process %d is gone; shutting down", parentProc.Pid)
+				s.Shutdown()
+				parent = nil
+			}
+		}
+	}
+}

@@ -1,0 +1,297 @@
+package kernel
+
+import (
+	"context"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"io"
+	"net"
+	"sync"
+	"sync/atomic"
+	"time"
+
+	"github.com/go-zeromq/zmq4"
+	"github.com/go-zeromq/zmq4/transport"
+)
+
+// Limits of the guarded transport.
+const (
+	// MaxFrameSize is the largest ZMTP frame accepted. A frame header claiming more
+	// closes that connection before anything is allocated.
+	MaxFrameSize = 256 << 20
+	// handshakeTimeout bounds the time from accept to the peer's READY command.
+	handshakeTimeout = 5 * time.Second
+	// writeTimeout bounds one write to a peer; a peer that does not read for this
+	// long is disconnected.
+	writeTimeout = 30 * time.Second
+	// maxPending bounds connections accepted but still in their handshake.
+	maxPending = 256
+	// zmtpGreeting is the length of the ZMTP 3 greeting; its first 10 bytes are
+	// the signature.
+	zmtpGreeting  = 64
+	zmtpSignature = 10
+)
+
+// ErrFrameTooLarge is returned by a guarded connection's Read when the peer
+// announces a frame larger than MaxFrameSize.
+var ErrFrameTooLarge = errors.New("kernel: zmtp frame larger than 256 MiB refused")
+
+// GuardedTransport is a zmq4 transport (TCP or Unix sockets) hardened for a
+// kernel that any local process may connect to:
+//   - it accepts on its own goroutine and hands a connection over only after the
+//     10-byte ZMTP signature has arrived (waiting for more would deadlock against
+//     libzmq, which sends the rest of its greeting only after ours), so an idle
+//     TCP connection blocks nobody;
+//   - the handshake has a deadline, lifted when the peer's first command (READY)
+//     has been read;
+//   - every frame header is parsed as it passes and a frame over MaxFrameSize
+//     closes the connection before zmq4 allocates its body;
+//   - each write has a deadline, so a peer that never reads is eventually dropped.
+//
+// It is registered with zmq4 as "guarded-tcp" and "guarded-ipc" (see
+// RegisterTransports), and the kernel's own endpoints listen through it.
+type GuardedTransport struct {
+	Network string // "tcp" or "unix"
+}
+
+var registerOnce sync.Once
+
+// RegisterTransports registers the guarded transports with zmq4 under the names
+// "guarded-tcp" and "guarded-ipc". It is safe to call more than once.
+func RegisterTransports() {
+	registerOnce.Do(func() {
+		zmq4.RegisterTransport("guarded-tcp", GuardedTransport{Network: "tcp"})
+		zmq4.RegisterTransport("guarded-ipc", GuardedTransport{Network: "unix"})
+	})
+}
+
+// Dial connects without guarding (the kernel only listens).
+func (g GuardedTransport) Dial(ctx context.Context, d transport.Dialer, addr string) (net.Conn, error) {
+	return d.DialContext(ctx, g.Network, addr)
+}
+
+// Listen announces on addr and returns a guarded listener.
+func (g GuardedTransport) Listen(ctx context.Context, addr string) (net.Listener, error) {
+	l, err := net.Listen(g.Network, addr)
+	if err != nil {
+		return nil, err
+	}
+	return newGuardedListener(l), nil
+}
+
+// Addr normalises an end-point address as zmq4's own transports do.
+func (g GuardedTransport) Addr(ep string) (string, error) {
+	if g.Network == "unix" {
+		return ep, nil
+	}
+	host, port, err := net.SplitHostPort(ep)
+	if err != nil {
+		return "", err
+	}
+	if port == "*" || port == "" {
+		port = "0"
+	}
+	if host == "*" || host == "" {
+		host = "0.0.0.0"
+	}
+	return net.JoinHostPort(host, port), nil
+}
+
+// guardedListener accepts on its own goroutine and passes on connections whose
+// ZMTP signature has arrived.
+type guardedListener struct {
+	inner   net.Listener
+	ready   chan net.Conn
+	done    chan struct{}
+	once    sync.Once
+	pending atomic.Int32
+}
+
+func newGuardedListener(inner net.Listener) *guardedListener {
+	l := &guardedListener{inner: inner, ready: make(chan net.Conn), done: make(chan struct{})}
+	go l.acceptLoop()
+	return l
+}
+
+func (l *guardedListener) acceptLoop() {
+	for {
+		c, err := l.inner.Accept()
+		if err != nil {
+			var ne net.Error
+			if errors.As(err, &ne) && ne.Timeout() {
+				continue
+			}
+			l.Close()
+			return
+		}
+		if l.pending.Load() >= maxPending {
+			c.Close()
+			continue
+		}
+		l.pending.Add(1)
+		go l.screen(c)
+	}
+}
+
+// screen waits (with a deadline) for the 10-byte signature, then offers the
+// connection to Accept.
+func (l *guardedListener) screen(c net.Conn) {
+	defer l.pending.Add(-1)
+	c.SetDeadline(time.Now().Add(handshakeTimeout))
+	sig := make([]byte, zmtpSignature)
+	if _, err := io.ReadFull(c, sig); err != nil || sig[0] != 0xff || sig[9] != 0x7f {
+		c.Close()
+		return
+	}
+	gc := &guardedConn{Conn: c, prefix: sig}
+	gc.guard.greeting = zmtpGreeting
+	select {
+	case l.ready <- gc:
+	case <-l.done:
+		c.Close()
+	}
+}
+
+// Accept returns the next connection that has sent its ZMTP signature.
+func (l *guardedListener) Accept() (net.Conn, error) {
+	select {
+	case c := <-l.ready:
+		return c, nil
+	case <-l.done:
+		return nil, net.ErrClosed
+	}
+}
+
+func (l *guardedListener) Close() error {
+	var err error
+	l.once.Do(func() {
+		close(l.done)
+		err = l.inner.Close()
+	})
+	return err
+}
+
+func (l *guardedListener) Addr() net.Addr { return l.inner.Addr() }
+
+// guardedConn replays the screened signature, parses the incoming ZMTP stream
+// to refuse oversized frames, lifts the handshake deadline once the peer's
+// first command has arrived, and puts a deadline on every write.
+type guardedConn struct {
+	net.Conn
+	prefix []byte
+	guard  frameGuard
+	mu     sync.Mutex // serialises Read's parser state (zmq4 reads from one goroutine, but be safe)
+}
+
+func (c *guardedConn) Read(p []byte) (int, error) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	var n int
+	var err error
+	if len(c.prefix) > 0 {
+		n = copy(p, c.prefix)
+		c.prefix = c.prefix[n:]
+	} else {
+		n, err = c.Conn.Read(p)
+	}
+	if n > 0 {
+		commands := c.guard.commands
+		if gerr := c.guard.feed(p[:n]); gerr != nil {
+			c.Conn.Close()
+			return 0, gerr
+		}
+		if commands == 0 && c.guard.commands > 0 {
+			c.Conn.SetReadDeadline(time.Time{})
+		}
+	}
+	return n, err
+}
+
+func (c *guardedConn) Write(p []byte) (int, error) {
+	c.Conn.SetWriteDeadline(time.Now().Add(writeTimeout))
+	n, err := c.Conn.Write(p)
+	if err != nil {
+		var ne net.Error
+		if errors.As(err, &ne) && ne.Timeout() {
+			// A peer that has not read for writeTimeout is gone for our purposes;
+			// closing makes zmq4 and our endpoints forget it.
+			c.Conn.Close()
+		}
+	}
+	return n, err
+}
+
+// frameGuard follows a ZMTP 3 byte stream (greeting, then frames of flags,
+// size and body) and refuses frames larger than MaxFrameSize.
+// Frame layout: ZMTP 3.0, https://rfc.zeromq.org/spec/23/ (flags bit 1 = long
+// size of 8 bytes network order, bit 2 = command).
+type frameGuard struct {
+	greeting int // greeting bytes still to pass
+	state    int // 0: flags, 1: size bytes, 2: body
+	flags    byte
+	size     [8]byte
+	sizeGot  int
+	sizeLen  int
+	body     uint64
+	commands int // command frames completed
+}
+
+func (g *frameGuard) feed(p []byte) error {
+	for len(p) > 0 {
+		if g.greeting > 0 {
+			k := min(g.greeting, len(p))
+			g.greeting -= k
+			p = p[k:]
+			continue
+		}
+		switch g.state {
+		case 0:
+			g.flags = p[0]
+			p = p[1:]
+			g.sizeGot = 0
+			g.sizeLen = 1
+			if g.flags&0x02 != 0 {
+				g.sizeLen = 8
+			}
+			g.state = 1
+		case 1:
+			k := copy(g.size[g.sizeGot:g.sizeLen], p)
+			g.sizeGot += k
+			p = p[k:]
+			if g.sizeGot < g.sizeLen {
+				continue
+			}
+			if g.sizeLen == 1 {
+				g.body = uint64(g.size[0])
+			} else {
+				g.body = binary.BigEndian.Uint64(g.size[:8])
+			}
+			if g.body > MaxFrameSize {
+				return fmt.Errorf("%w (header claims %d bytes)", ErrFrameTooLarge, g.body)
+			}
+			g.state = 2
+			if g.body == 0 {
+				g.endFrame()
+			}
+		case 2:
+			k := uint64(len(p))
+			if k > g.body {
+				k = g.body
+			}
+			g.body -= k
+			p = p[k:]
+			if g.body == 0 {
+				g.endFrame()
+			}
+		}
+	}
+	return nil
+}
+
+func (g *frameGuard) endFrame() {
+	if g.flags&0x04 != 0 {
+		g.commands++
+	}
+	g.state = 0
+}

@@ -1,0 +1,78 @@
+package kernel
+
+import (
+	"encoding/binary"
+	"errors"
+	"testing"
+)
+
+// zmtpFrame builds one ZMTP 3 frame: flags, 1- or 8-byte size, body
+// (ZMTP 3.0 specification, rfc.zeromq.org/spec/23, "Framing").
+func zmtpFrame(flags byte, body []byte) []byte {
+	if len(body) > 255 {
+		out := []byte{flags | 0x02, 0, 0, 0, 0, 0, 0, 0, 0}
+		binary.BigEndian.PutUint64(out[1:], uint64(len(body)))
+		return append(out, body...)
+	}
+	return append([]byte{flags, byte(len(body))}, body...)
+}
+
+func TestFrameGuard(t *testing.T) {
+	greeting := make([]byte, zmtpGreeting)
+	greeting[0], greeting[9] = 0xff, 0x7f
+	ready := zmtpFrame(0x04, []byte("\x05READY"))
+	small := zmtpFrame(0x01, []byte("hello"))
+	long := zmtpFrame(0x00, make([]byte, 1000))
+	huge := []byte{0x02, 0, 0, 1, 0, 0, 0, 0, 0} // claims 2^40 bytes (1 TiB)
+	justOver := []byte{0x02, 0, 0, 0, 0, 0x10, 0, 0, 1}
+
+	stream := func(parts ...[]byte) []byte {
+		var b []byte
+		for _, p := range parts {
+			b = append(b, p...)
+		}
+		return b
+	}
+	tests := []struct {
+		name     string
+		data     []byte
+		wantErr  bool
+		commands int
+	}{
+		{"greeting ready frames", stream(greeting, ready, small, long), false, 1},
+		{"1 TiB header", stream(greeting, ready, huge), true, 1},
+		{"just over the bound", stream(greeting, ready, justOver), true, 1},
+		{"huge header during handshake", stream(greeting, huge), true, 0},
+	}
+	for _, tc := range tests {
+		// Feed in every chunking from 1 byte to the whole stream: the parser
+		// must not depend on how reads split the bytes.
+		for _, chunk := range []int{1, 2, 3, 7, 64, len(tc.data)} {
+			t.Run(tc.name, func(t *testing.T) {
+				g := frameGuard{greeting: zmtpGreeting}
+				var err error
+				for i := 0; i < len(tc.data) && err == nil; i += chunk {
+					err = g.feed(tc.data[i:min(i+chunk, len(tc.data))])
+				}
+				if (err != nil) != tc.wantErr {
+					t.Fatalf("chunk %d: got error %v, want error=%v", chunk, err, tc.wantErr)
+				}
+				if err != nil && !errors.Is(err, ErrFrameTooLarge) {
+					t.Fatalf("chunk %d: got %v, want ErrFrameTooLarge", chunk, err)
+				}
+				if g.commands != tc.commands {
+					t.Fatalf("chunk %d: commands: got %d, want %d", chunk, g.commands, tc.commands)
+				}
+			})
+		}
+	}
+}
+
+func TestFrameGuardAtBound(t *testing.T) {
+	g := frameGuard{}
+	hdr := []byte{0x02, 0, 0, 0, 0, 0, 0, 0, 0}
+	binary.BigEndian.PutUint64(hdr[1:], MaxFrameSize)
+	if err := g.feed(hdr); err != nil {
+		t.Fatalf("frame of exactly MaxFrameSize: got %v, want accepted", err)
+	}
+}
