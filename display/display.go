@@ -59,8 +59,10 @@ type Profile struct {
 	Summary Table // features of the curves (widths, ripple, extremes), shown as the table
 }
 
-// Map is one quantity over two axes (X horizontal), Z[iy][ix]. Contour, when
-// HasContour, draws the level at the role's target.
+// Map is one quantity over two axes (X horizontal), Z[iy][ix] at (X.Values[ix],
+// Y.Values[iy]). Contour, when HasContour, draws the level at the role's target.
+// The colour scale spans ZMin…ZMax when ZMin < ZMax (e.g. −1…1 for Mz), else the
+// range of the data.
 type Map struct {
 	Title      string
 	X, Y       Axis
@@ -71,6 +73,7 @@ type Map struct {
 	Contour    float64
 	HasContour bool
 	Summary    Table
+	ZMin, ZMax float64
 }
 
 // Waveform is a pulse's samples against time for `describe`: amplitude (µT),

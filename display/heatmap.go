@@ -1,0 +1,420 @@
+package display
+
+import (
+	"fmt"
+	"image"
+	"image/color"
+	"math"
+	"strings"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// maxPixels bounds the heat-map image on each side: about twice the points the
+// data area spans, beyond which a viewer cannot see more. Larger maps are
+// averaged down in the image only; the JSON keeps every value.
+const maxPixels = 640
+
+// Bundle shows the map as a heat map with a colour bar (image/svg+xml; text/html
+// holds the same SVG inline followed by the table), a table in text/plain and
+// text/html (the caller's Summary, or else the extremes and the contour level),
+// and every value in application/json: {"kind": "map", "title", "pulse",
+// "quantity", "unit", "x", "y" (axes as in a profile), "z": [[row at y[0]], ...],
+// "contour": level or null, "summary": table}; non-finite values are null.
+//
+// The heat map is an embedded PNG of the cells (smoothly scaled by the viewer),
+// coloured with this package's own perceptually uniform scale (see rampAnchors);
+// NaN cells are left transparent. The contour, when HasContour, is traced on the
+// full-resolution grid by marching squares and drawn black on a white halo so it
+// shows over dark and light colours alike.
+func (m Map) Bundle() Bundle {
+	svg := m.SVG()
+	t := m.table()
+	plain := t.Plain()
+	if m.Title != "" && t.Title == "" {
+		plain = m.Title + "\n" + plain
+	}
+	plain += "\n" + m.caption()
+	return Bundle{
+		"text/plain":       strings.TrimLeft(plain, "\n"),
+		"text/html":        figureHTML(svg, t),
+		"image/svg+xml":    svg,
+		"application/json": mustJSON(m.jsonValue()),
+	}
+}
+
+func (m Map) caption() string {
+	nx, ny := m.dims()
+	return fmt.Sprintf("(figure: %s over %s × %s, %d × %d points; all values in application/json)",
+		axisLabel(orDefault(m.Quantity, "z"), m.Unit), axisLabel(orDefault(m.X.Label, "x"), m.X.Unit),
+		axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit), nx, ny)
+}
+
+// dims is the usable grid size: the axis lengths, cut to what Z holds.
+func (m Map) dims() (nx, ny int) {
+	nx, ny = len(m.X.Values), min(len(m.Y.Values), len(m.Z))
+	for _, row := range m.Z[:ny] {
+		nx = min(nx, len(row))
+	}
+	if ny == 0 {
+		nx = 0
+	}
+	return nx, ny
+}
+
+// zRange is the colour scale's range: ZMin…ZMax when given, else the data's.
+func (m Map) zRange() (lo, hi float64) {
+	if finite(m.ZMin) && finite(m.ZMax) && m.ZMin < m.ZMax {
+		return m.ZMin, m.ZMax
+	}
+	nx, ny := m.dims()
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, row := range m.Z[:ny] {
+		a, b := finiteRange(row[:nx])
+		lo, hi = math.Min(lo, a), math.Max(hi, b)
+	}
+	return padRange(lo, hi, 0)
+}
+
+func (m Map) table() Table {
+	if !m.Summary.isEmpty() {
+		return m.Summary
+	}
+	nx, ny := m.dims()
+	t := Table{Columns: []Column{{Name: "feature"}, {Name: orDefault(m.Quantity, "z"), Unit: m.Unit},
+		{Name: orDefault(m.X.Label, "x"), Unit: m.X.Unit}, {Name: orDefault(m.Y.Label, "y"), Unit: m.Y.Unit}}}
+	lo, hi := [2]int{-1, -1}, [2]int{-1, -1}
+	for j := range ny {
+		for i := range nx {
+			z := m.Z[j][i]
+			if !finite(z) {
+				continue
+			}
+			if lo[0] < 0 || z < m.Z[lo[1]][lo[0]] {
+				lo = [2]int{i, j}
+			}
+			if hi[0] < 0 || z > m.Z[hi[1]][hi[0]] {
+				hi = [2]int{i, j}
+			}
+		}
+	}
+	if lo[0] >= 0 {
+		for _, e := range []struct {
+			name string
+			at   [2]int
+		}{{"min", lo}, {"max", hi}} {
+			t.Rows = append(t.Rows, []string{e.name, Num(m.Z[e.at[1]][e.at[0]], 4),
+				Num(m.X.Values[e.at[0]], 6), Num(m.Y.Values[e.at[1]], 6)})
+		}
+	}
+	if m.HasContour {
+		t.Rows = append(t.Rows, []string{"contour", Num(m.Contour, 4), "", ""})
+	}
+	return t
+}
+
+// SVG renders the map figure alone.
+func (m Map) SVG() string {
+	nx, ny := m.dims()
+	zlo, zhi := m.zRange()
+	const bodyH = 300
+
+	var legend []legendItem
+	if m.HasContour {
+		legend = append(legend, legendItem{
+			name:  fmt.Sprintf("%s = %s", orDefault(m.Quantity, "z"), strings.TrimSpace(Num(m.Contour, 4)+" "+m.Unit)),
+			style: contourStyle, halo: true,
+		})
+	}
+	rows := legendRows(legend, figWidth-20)
+	var headH vg.Length = headPad
+	if m.Title != "" {
+		headH += rowHeight + 3
+	}
+	headH += vg.Length(len(rows)) * rowHeight
+	H := headH + bodyH
+
+	c := vgsvg.New(figWidth, H)
+	full := draw.New(c)
+	full.SetColor(whiteColor)
+	full.Fill(full.Rectangle.Path())
+
+	p := newPlot()
+	p.X.Label.Text = axisLabel(orDefault(m.X.Label, "x"), m.X.Unit)
+	p.Y.Label.Text = axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit)
+	if m.X.Reverse {
+		p.X.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
+	}
+	if m.Y.Reverse {
+		p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
+	}
+	if nx > 0 {
+		r := &raster{x: m.X.Values[:nx], y: m.Y.Values[:ny], z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
+		p.Add(r)
+		if m.HasContour && finite(m.Contour) {
+			p.Add(contourLines(contour(m.X.Values[:nx], m.Y.Values[:ny], m.Z[:ny], m.Contour)))
+		}
+	}
+	p.Add(frame{})
+
+	// Colour bar column: gap, bar, ticks and labels, the rotated quantity label.
+	ticks := niceTicks{n: 5}.Ticks(zlo, zhi)
+	ts := textStyle(tickSize)
+	var tw vg.Length
+	for _, t := range ticks {
+		tw = max(tw, ts.Width(t.Label))
+	}
+	const barGap, barW, tickLen = 12, 12, 3
+	ls := textStyle(labelSize)
+	barCol := barGap + barW + tickLen + 2 + tw + 6 + ls.Height("M") + 6
+
+	body := draw.Crop(full, 0, 0, 0, -(H - bodyH))
+	main := draw.Crop(body, 4, -barCol, 4, 0)
+	p.Draw(main)
+	dc := p.DataCanvas(main)
+
+	y := H - headPad
+	if m.Title != "" {
+		tts := boldStyle(titleSize)
+		tts.XAlign, tts.YAlign = draw.XCenter, draw.YTop
+		full.FillText(tts, vg.Point{X: figWidth / 2, Y: y}, m.Title)
+		y -= rowHeight + 3
+	}
+	if len(rows) > 0 {
+		drawLegend(full, rows, dc.Min.X, dc.Max.X, y-rowHeight/2)
+	}
+
+	// The bar: a gradient image, a frame, ticks, labels, the contour level.
+	bx := dc.Max.X + barGap
+	bar := vg.Rectangle{Min: vg.Point{X: bx, Y: dc.Min.Y}, Max: vg.Point{X: bx + barW, Y: dc.Max.Y}}
+	grad := image.NewNRGBA(image.Rect(0, 0, 1, rampSize))
+	for i := range rampSize {
+		grad.SetNRGBA(0, rampSize-1-i, ramp[i])
+	}
+	full.DrawImage(bar, grad)
+	full.SetLineStyle(draw.LineStyle{Color: color.Black, Width: frameWidth})
+	full.Stroke(bar.Path())
+	yOf := func(v float64) vg.Length {
+		return bar.Min.Y + vg.Length((v-zlo)/(zhi-zlo))*(bar.Max.Y-bar.Min.Y)
+	}
+	ts.YAlign = draw.YCenter
+	var tpath vg.Path
+	for _, t := range ticks {
+		if t.Value < zlo || t.Value > zhi {
+			continue
+		}
+		ty := yOf(t.Value)
+		n := vg.Length(tickLen)
+		if t.IsMinor() {
+			n /= 2
+		}
+		tpath.Move(vg.Point{X: bar.Max.X, Y: ty})
+		tpath.Line(vg.Point{X: bar.Max.X + n, Y: ty})
+		if t.Label != "" {
+			full.FillText(ts, vg.Point{X: bar.Max.X + tickLen + 2, Y: ty}, t.Label)
+		}
+	}
+	full.SetLineStyle(draw.LineStyle{Color: color.Black, Width: frameWidth})
+	full.Stroke(tpath)
+	if m.HasContour && m.Contour >= zlo && m.Contour <= zhi {
+		cy := yOf(m.Contour)
+		full.StrokeLine2(contourHalo, bar.Min.X, cy, bar.Max.X, cy)
+		full.StrokeLine2(contourStyle, bar.Min.X, cy, bar.Max.X, cy)
+	}
+	ls.Rotation = math.Pi / 2
+	ls.XAlign, ls.YAlign = draw.XCenter, draw.YTop
+	full.FillText(ls, vg.Point{X: bar.Max.X + tickLen + 2 + tw + 6, Y: (bar.Min.Y + bar.Max.Y) / 2},
+		axisLabel(orDefault(m.Quantity, "z"), m.Unit))
+	return finishSVG(c)
+}
+
+var (
+	contourStyle = draw.LineStyle{Color: color.Black, Width: 1.1}
+	contourHalo  = draw.LineStyle{Color: color.White, Width: 3}
+)
+
+// raster draws the map cells as one image spanning the cells' outer edges.
+type raster struct {
+	x, y     []float64
+	z        [][]float64
+	nx       int
+	zlo, zhi float64
+}
+
+func (r *raster) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xe, ye := cellEdges(r.x), cellEdges(r.y)
+	return xe[0], xe[len(xe)-1], ye[0], ye[len(ye)-1]
+}
+
+func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	xe, ye := cellEdges(r.x), cellEdges(r.y)
+	x0, x1 := trX(xe[0]), trX(xe[len(xe)-1])
+	y0, y1 := trY(ye[0]), trY(ye[len(ye)-1])
+	xs := pixelCells(xe, max(int(math.Abs(float64(x1-x0))*2), 1))
+	ys := pixelCells(ye, max(int(math.Abs(float64(y1-y0))*2), 1))
+	toInput(xs, r.x)
+	toInput(ys, r.y)
+	// Pixels run left to right and top to bottom; cells run along the axes.
+	if x0 > x1 {
+		reverseRanges(xs)
+	}
+	if y0 < y1 {
+		reverseRanges(ys)
+	}
+	pal := make(color.Palette, rampSize+1)
+	for i, col := range ramp {
+		pal[i] = col
+	}
+	pal[rampSize] = color.NRGBA{}
+	img := image.NewPaletted(image.Rect(0, 0, len(xs), len(ys)), pal)
+	for py, yr := range ys {
+		for px, xr := range xs {
+			var sum float64
+			var n int
+			for j := yr[0]; j < yr[1]; j++ {
+				for i := xr[0]; i < xr[1]; i++ {
+					if v := r.z[j][i]; finite(v) {
+						sum += v
+						n++
+					}
+				}
+			}
+			idx := uint8(rampSize)
+			if n > 0 {
+				idx = uint8(rampIndex((sum/float64(n) - r.zlo) / (r.zhi - r.zlo)))
+			}
+			img.SetColorIndex(px, py, idx)
+		}
+	}
+	rect := vg.Rectangle{Min: vg.Point{X: min(x0, x1), Y: min(y0, y1)}, Max: vg.Point{X: max(x0, x1), Y: max(y0, y1)}}
+	c.DrawImage(rect, img)
+}
+
+// cellEdges turns cell centres into cell edges: midpoints between neighbours and
+// half a step beyond the ends; the result is ascending whatever the input order.
+func cellEdges(v []float64) []float64 {
+	n := len(v)
+	e := make([]float64, n+1)
+	if n == 1 {
+		d := math.Max(math.Abs(v[0])*0.05, 0.5)
+		return []float64{v[0] - d, v[0] + d}
+	}
+	for i := 1; i < n; i++ {
+		e[i] = (v[i-1] + v[i]) / 2
+	}
+	e[0] = v[0] - (v[1]-v[0])/2
+	e[n] = v[n-1] + (v[n-1]-v[n-2])/2
+	if e[0] > e[n] {
+		for i, j := 0, n; i < j; i, j = i+1, j-1 {
+			e[i], e[j] = e[j], e[i]
+		}
+	}
+	return e
+}
+
+// pixelCells maps image pixels along an axis (low to high) to the half-open range
+// of cells each shows. The image has one pixel per cell when cells are even and
+// at most maxPixels (capped also by the canvas resolution hint), else the cells
+// whose centres fall in a pixel are averaged, or for uneven cells the nearest is
+// taken at a finer pixel pitch. Index ranges refer to the ascending edge order;
+// cellIndex turns them back into input order.
+func pixelCells(edges []float64, hint int) [][2]int {
+	n := len(edges) - 1
+	even := true
+	w := (edges[n] - edges[0]) / float64(n)
+	for i := range n {
+		if math.Abs(edges[i+1]-edges[i]-w) > 0.01*math.Abs(w) {
+			even = false
+			break
+		}
+	}
+	limit := min(maxPixels, max(hint, 16))
+	if even && n <= limit {
+		out := make([][2]int, n)
+		for i := range out {
+			out[i] = [2]int{i, i + 1}
+		}
+		return out
+	}
+	np := limit
+	if even {
+		np = min(n, limit)
+	}
+	out := make([][2]int, np)
+	k := 0
+	for p := range np {
+		a := edges[0] + (edges[n]-edges[0])*float64(p)/float64(np)
+		b := edges[0] + (edges[n]-edges[0])*float64(p+1)/float64(np)
+		// Cells whose centre lies in [a, b).
+		for k < n && (edges[k]+edges[k+1])/2 < a {
+			k++
+		}
+		j := k
+		for j < n && (edges[j]+edges[j+1])/2 < b {
+			j++
+		}
+		if j == k { // no centre inside: the cell under the pixel centre
+			mid := (a + b) / 2
+			c := k
+			for c < n-1 && edges[c+1] <= mid {
+				c++
+			}
+			for c > 0 && edges[c] > mid {
+				c--
+			}
+			out[p] = [2]int{c, c + 1}
+			continue
+		}
+		out[p] = [2]int{k, j}
+	}
+	return out
+}
+
+// toInput turns cell ranges in ascending order into ranges of input indices, for
+// axes given high to low.
+func toInput(r [][2]int, v []float64) {
+	n := len(v)
+	if n < 2 || v[0] <= v[n-1] {
+		return
+	}
+	for i := range r {
+		r[i] = [2]int{n - r[i][1], n - r[i][0]}
+	}
+	reverseRanges(r)
+}
+
+func reverseRanges(r [][2]int) {
+	for i, j := 0, len(r)-1; i < j; i, j = i+1, j-1 {
+		r[i], r[j] = r[j], r[i]
+	}
+}
+
+type mapJSON struct {
+	Kind     string    `json:"kind"`
+	Title    string    `json:"title"`
+	Pulse    string    `json:"pulse"`
+	Quantity string    `json:"quantity"`
+	Unit     string    `json:"unit"`
+	X        axisJSON  `json:"x"`
+	Y        axisJSON  `json:"y"`
+	Z        []floats  `json:"z"`
+	Contour  *jnum     `json:"contour"`
+	Summary  tableJSON `json:"summary"`
+}
+
+func (m Map) jsonValue() mapJSON {
+	j := mapJSON{Kind: "map", Title: m.Title, Pulse: m.Pulse, Quantity: m.Quantity, Unit: m.Unit,
+		X: m.X.jsonValue(), Y: m.Y.jsonValue(), Z: []floats{}, Summary: m.Summary.jsonValue()}
+	for _, row := range m.Z {
+		j.Z = append(j.Z, floats(orEmpty(row)))
+	}
+	if m.HasContour {
+		c := jnum(m.Contour)
+		j.Contour = &c
+	}
+	return j
+}

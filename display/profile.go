@@ -1,0 +1,258 @@
+package display
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+)
+
+// maxListed is the longest curve listed row by row in a table; longer curves are
+// summarised and travel whole in the JSON.
+const maxListed = 50
+
+// Bundle shows the profile as a figure (image/svg+xml; text/html holds the same
+// SVG inline followed by the table) and a table in text/plain and text/html: the
+// caller's Summary when it has rows or notes, otherwise the data itself when there
+// are at most 50 points, otherwise each curve's extremes. application/json holds
+// every value: {"kind": "profile", "title", "x": {"label", "unit", "reverse",
+// "values"}, "curves": [{"pulse", "quantity", "unit", "y"}], "marks": [{"x",
+// "label"}], "summary": table}; non-finite values are null.
+//
+// Curves of one quantity and unit share a panel; different quantities get stacked
+// panels over the shared x axis, in order of first appearance. Each pulse keeps
+// one colour and dash pattern across panels, named in a legend when there are
+// several. Curves shorter or longer than X are cut to the common length.
+func (p Profile) Bundle() Bundle {
+	svg := p.SVG()
+	t := p.table()
+	plain := t.Plain()
+	if p.Title != "" && t.Title == "" {
+		plain = p.Title + "\n" + plain
+	}
+	plain += "\n" + p.caption()
+	return Bundle{
+		"text/plain":       strings.TrimLeft(plain, "\n"),
+		"text/html":        figureHTML(svg, t),
+		"image/svg+xml":    svg,
+		"application/json": mustJSON(p.jsonValue()),
+	}
+}
+
+// caption says in words what the figure shows, for text-only readers.
+func (p Profile) caption() string {
+	var qs []string
+	for _, g := range p.groups() {
+		qs = append(qs, axisLabel(g[0].Quantity, g[0].Unit))
+	}
+	if len(qs) == 0 {
+		return "(no curves)"
+	}
+	return fmt.Sprintf("(figure: %s against %s, %d points; all values in application/json)",
+		strings.Join(qs, ", "), axisLabel(orDefault(p.X.Label, "x"), p.X.Unit), len(p.X.Values))
+}
+
+func orDefault(s, d string) string {
+	if s == "" {
+		return d
+	}
+	return s
+}
+
+// groups splits the curves into panels: one per quantity and unit, in order of
+// first appearance.
+func (p Profile) groups() [][]Curve {
+	var out [][]Curve
+	index := map[[2]string]int{}
+	for _, c := range p.Curves {
+		k := [2]string{c.Quantity, c.Unit}
+		i, ok := index[k]
+		if !ok {
+			i = len(out)
+			index[k] = i
+			out = append(out, nil)
+		}
+		out[i] = append(out[i], c)
+	}
+	return out
+}
+
+// pulses lists the distinct pulse names in order of first appearance.
+func pulses(cs []Curve) []string {
+	var out []string
+	seen := map[string]bool{}
+	for _, c := range cs {
+		if !seen[c.Pulse] {
+			seen[c.Pulse] = true
+			out = append(out, c.Pulse)
+		}
+	}
+	return out
+}
+
+func isDegrees(unit string) bool { return unit == "deg" || unit == "°" || unit == "degree" }
+
+// SVG renders the profile figure alone.
+func (p Profile) SVG() string {
+	names := pulses(p.Curves)
+	style := map[string]int{}
+	for i, n := range names {
+		style[n] = i
+	}
+	s := stack{
+		title:   p.Title,
+		xlabel:  axisLabel(orDefault(p.X.Label, "x"), p.X.Unit),
+		reverse: p.X.Reverse,
+		marks:   p.Marks,
+	}
+	for _, g := range p.groups() {
+		pn := panel{label: axisLabel(orDefault(g[0].Quantity, "y"), g[0].Unit), degrees: isDegrees(g[0].Unit)}
+		for _, c := range g {
+			l := line{x: p.X.Values, y: c.Y, style: seriesStyle(style[c.Pulse])}
+			if pn.degrees {
+				l.jump = 180
+			}
+			pn.lines = append(pn.lines, l)
+		}
+		s.panels = append(s.panels, pn)
+	}
+	if len(s.panels) == 0 {
+		s.panels = []panel{{label: "(no curves)"}}
+	}
+	if len(names) > 1 {
+		for i, n := range names {
+			s.legend = append(s.legend, legendItem{name: orDefault(n, "(unnamed)"), style: seriesStyle(i)})
+		}
+	}
+	return s.svg()
+}
+
+// table is the table shown with the figure.
+func (p Profile) table() Table {
+	if !p.Summary.isEmpty() {
+		return p.Summary
+	}
+	if len(p.X.Values) <= maxListed {
+		return p.dataTable()
+	}
+	return p.extremes()
+}
+
+// curveName names a curve in a table: "mxy" for one pulse, "p1 mxy" for several.
+func (p Profile) curveName(c Curve) string {
+	if len(pulses(p.Curves)) > 1 && c.Pulse != "" {
+		return c.Pulse + " " + c.Quantity
+	}
+	return c.Quantity
+}
+
+func (p Profile) dataTable() Table {
+	t := Table{Columns: []Column{{Name: orDefault(p.X.Label, "x"), Unit: p.X.Unit}}}
+	for _, c := range p.Curves {
+		t.Columns = append(t.Columns, Column{Name: p.curveName(c), Unit: c.Unit})
+	}
+	for i, x := range p.X.Values {
+		row := []string{Num(x, 6)}
+		for _, c := range p.Curves {
+			v := "-"
+			if i < len(c.Y) {
+				v = Num(c.Y[i], 4)
+			}
+			row = append(row, v)
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	return t
+}
+
+// extremes lists each curve's lowest and highest value and where they occur.
+func (p Profile) extremes() Table {
+	xu := p.X.Unit
+	t := Table{Columns: []Column{
+		{Name: "curve"}, {Name: "unit"},
+		{Name: "min"}, {Name: "at", Unit: xu},
+		{Name: "max"}, {Name: "at", Unit: xu},
+	}}
+	for _, c := range p.Curves {
+		lo, hi := -1, -1
+		for i := range min(len(c.Y), len(p.X.Values)) {
+			if !finite(c.Y[i]) {
+				continue
+			}
+			if lo < 0 || c.Y[i] < c.Y[lo] {
+				lo = i
+			}
+			if hi < 0 || c.Y[i] > c.Y[hi] {
+				hi = i
+			}
+		}
+		row := []string{p.curveName(c), orDefault(c.Unit, "-"), "-", "-", "-", "-"}
+		if lo >= 0 {
+			row[2], row[3] = Num(c.Y[lo], 4), Num(p.X.Values[lo], 6)
+			row[4], row[5] = Num(c.Y[hi], 4), Num(p.X.Values[hi], 6)
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	return t
+}
+
+// jnum is a float that marshals non-finite values as null.
+type jnum float64
+
+// MarshalJSON implements json.Marshaler.
+func (v jnum) MarshalJSON() ([]byte, error) {
+	if !finite(float64(v)) {
+		return []byte("null"), nil
+	}
+	return strconv.AppendFloat(nil, float64(v), 'g', -1, 64), nil
+}
+
+type axisJSON struct {
+	Label   string `json:"label"`
+	Unit    string `json:"unit"`
+	Reverse bool   `json:"reverse"`
+	Values  floats `json:"values"`
+}
+
+func (a Axis) jsonValue() axisJSON {
+	return axisJSON{Label: a.Label, Unit: a.Unit, Reverse: a.Reverse, Values: floats(orEmpty(a.Values))}
+}
+
+func orEmpty(v []float64) []float64 {
+	if v == nil {
+		return []float64{}
+	}
+	return v
+}
+
+type curveJSON struct {
+	Pulse    string `json:"pulse"`
+	Quantity string `json:"quantity"`
+	Unit     string `json:"unit"`
+	Y        floats `json:"y"`
+}
+
+type markJSON struct {
+	X     jnum   `json:"x"`
+	Label string `json:"label"`
+}
+
+type profileJSON struct {
+	Kind    string      `json:"kind"`
+	Title   string      `json:"title"`
+	X       axisJSON    `json:"x"`
+	Curves  []curveJSON `json:"curves"`
+	Marks   []markJSON  `json:"marks"`
+	Summary tableJSON   `json:"summary"`
+}
+
+func (p Profile) jsonValue() profileJSON {
+	j := profileJSON{Kind: "profile", Title: p.Title, X: p.X.jsonValue(),
+		Curves: []curveJSON{}, Marks: []markJSON{}, Summary: p.Summary.jsonValue()}
+	for _, c := range p.Curves {
+		j.Curves = append(j.Curves, curveJSON{Pulse: c.Pulse, Quantity: c.Quantity, Unit: c.Unit, Y: floats(orEmpty(c.Y))})
+	}
+	for _, m := range p.Marks {
+		j.Marks = append(j.Marks, markJSON{X: jnum(m.X), Label: m.Label})
+	}
+	return j
+}

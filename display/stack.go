@@ -1,0 +1,219 @@
+package display
+
+import (
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// panel is one plot of a stacked figure: its y label and its lines.
+type panel struct {
+	label   string
+	lines   []line
+	degrees bool // phase axis: ticks at multiples of 90°
+	zero    bool // the y range includes 0 (amplitudes, gradients)
+}
+
+// stack is a figure of panels stacked vertically over one shared x axis, with a
+// title, a legend and labelled vertical marks above the top panel.
+type stack struct {
+	title   string
+	xlabel  string
+	reverse bool
+	panels  []panel
+	legend  []legendItem
+	marks   []Mark
+	// fromZero starts the x axis at 0 when the data start just after it (sample
+	// midpoints of a waveform).
+	fromZero bool
+}
+
+func panelHeightFor(n int) vg.Length {
+	switch {
+	case n <= 2:
+		return 1.8 * vg.Inch
+	case n == 3:
+		return 1.5 * vg.Inch
+	}
+	return 1.25 * vg.Inch
+}
+
+// plots builds the gonum plots of the panels, all on one x range.
+func (s stack) plots() []*plot.Plot {
+	xlo, xhi := math.Inf(1), math.Inf(-1)
+	for _, pn := range s.panels {
+		for _, l := range pn.lines {
+			a, b, _, _ := l.DataRange()
+			xlo, xhi = math.Min(xlo, a), math.Max(xhi, b)
+		}
+	}
+	if s.fromZero && xlo > 0 && xlo < 0.05*(xhi-xlo) {
+		xlo = 0
+	}
+	xlo, xhi = padRange(xlo, xhi, 0)
+	ps := make([]*plot.Plot, len(s.panels))
+	for i, pn := range s.panels {
+		p := newPlot()
+		ylo, yhi := math.Inf(1), math.Inf(-1)
+		for _, l := range pn.lines {
+			_, _, a, b := l.DataRange()
+			ylo, yhi = math.Min(ylo, a), math.Max(yhi, b)
+		}
+		if pn.zero && ylo <= yhi {
+			ylo, yhi = math.Min(ylo, 0), math.Max(yhi, 0)
+		}
+		ylo, yhi = padRange(ylo, yhi, 0.06)
+		p.X.Min, p.X.Max = xlo, xhi
+		p.Y.Min, p.Y.Max = ylo, yhi
+		if s.reverse {
+			p.X.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
+		}
+		if pn.degrees {
+			p.Y.Tick.Marker = degreeTicks{}
+		} else if n := len(s.panels); n >= 3 {
+			p.Y.Tick.Marker = niceTicks{n: 4}
+		}
+		p.Y.Label.Text = pn.label
+		if i == len(s.panels)-1 {
+			p.X.Label.Text = s.xlabel
+		} else {
+			p.X.Tick.Marker = noLabels{p.X.Tick.Marker}
+		}
+		p.Add(grid{x: true, y: true}, marks(s.marks))
+		for _, l := range pn.lines {
+			p.Add(l)
+		}
+		p.Add(frame{})
+		ps[i] = p
+	}
+	return ps
+}
+
+// marks draws dashed vertical lines at the marks inside the x range.
+type marks []Mark
+
+func (m marks) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, _ := p.Transforms(&c)
+	var path vg.Path
+	for _, mk := range m {
+		if !finite(mk.X) || mk.X < p.X.Min || mk.X > p.X.Max {
+			continue
+		}
+		x := trX(mk.X)
+		path.Move(vg.Point{X: x, Y: c.Min.Y})
+		path.Line(vg.Point{X: x, Y: c.Max.Y})
+	}
+	if len(path) > 0 {
+		c.SetLineStyle(draw.LineStyle{Color: markColor, Width: 0.7, Dashes: []vg.Length{3, 2}})
+		c.Stroke(path)
+	}
+}
+
+// placedMark is a mark label with its x position and row above the top panel.
+type placedMark struct {
+	x   vg.Length
+	row int
+	txt string
+}
+
+// placeMarks spreads mark labels over as few rows as keep them from overlapping:
+// left to right, each label takes the first row where it clears its neighbour.
+func placeMarks(ms []Mark, trX func(float64) vg.Length, lo, hi float64, x0, x1 vg.Length) ([]placedMark, int) {
+	ts := textStyle(markSize)
+	var out []placedMark
+	for _, m := range ms {
+		if m.Label == "" || !finite(m.X) || m.X < lo || m.X > hi {
+			continue
+		}
+		out = append(out, placedMark{x: trX(m.X), txt: m.Label})
+	}
+	sort.SliceStable(out, func(i, j int) bool { return out[i].x < out[j].x })
+	var rowEnd []vg.Length
+	for i := range out {
+		w := ts.Width(out[i].txt)
+		left := out[i].x - w/2
+		// Keep labels inside the figure.
+		left = max(min(left, x1-w), x0)
+		row := 0
+		for row < len(rowEnd) && left < rowEnd[row]+4 {
+			row++
+		}
+		if row == len(rowEnd) {
+			rowEnd = append(rowEnd, 0)
+		}
+		rowEnd[row] = left + w
+		out[i].row = row
+	}
+	return out, len(rowEnd)
+}
+
+// svg renders the stack.
+func (s stack) svg() string {
+	ps := s.plots()
+	n := len(ps)
+	ph := panelHeightFor(n)
+	bodyH := vg.Length(n)*ph + 0.35*vg.Inch
+	rows := legendRows(s.legend, figWidth-20)
+	tiles := draw.Tiles{Rows: n, Cols: 1, PadY: 6, PadLeft: 4, PadRight: 14, PadBottom: 4}
+	plotRows := make([][]*plot.Plot, n)
+	for i, p := range ps {
+		plotRows[i] = []*plot.Plot{p}
+	}
+
+	// The x layout does not depend on the height, so a first alignment on a
+	// canvas of the body's size places the mark labels.
+	probe := draw.Canvas{Rectangle: vg.Rectangle{Max: vg.Point{X: figWidth, Y: bodyH}}}
+	cs := plot.Align(plotRows, tiles, probe)
+	dc := ps[0].DataCanvas(cs[0][0])
+	trX, _ := ps[0].Transforms(&dc)
+	placed, markRows := placeMarks(s.marks, trX, ps[0].X.Min, ps[0].X.Max, 2, figWidth-2)
+
+	var headH vg.Length = headPad
+	if s.title != "" {
+		headH += rowHeight + 3
+	}
+	headH += vg.Length(len(rows)) * rowHeight
+	headH += vg.Length(markRows) * markRow
+	if markRows > 0 {
+		headH += 2
+	}
+	H := headH + bodyH
+
+	c := vgsvg.New(figWidth, H)
+	full := draw.New(c)
+	full.SetColor(whiteColor)
+	full.Fill(full.Rectangle.Path())
+
+	y := H - headPad
+	if s.title != "" {
+		ts := boldStyle(titleSize)
+		ts.XAlign, ts.YAlign = draw.XCenter, draw.YTop
+		full.FillText(ts, vg.Point{X: figWidth / 2, Y: y}, s.title)
+		y -= rowHeight + 3
+	}
+	if len(rows) > 0 {
+		drawLegend(full, rows, dc.Min.X, dc.Max.X, y-rowHeight/2)
+		y -= vg.Length(len(rows)) * rowHeight
+	}
+	body := draw.Crop(full, 0, 0, 0, -(H - bodyH))
+	cs = plot.Align(plotRows, tiles, body)
+	for i, row := range cs {
+		ps[i].Draw(row[0])
+	}
+	if markRows > 0 {
+		top := ps[0].DataCanvas(cs[0][0]).Max.Y
+		ms := textStyle(markSize)
+		ms.Color = markColor
+		ms.XAlign, ms.YAlign = draw.XCenter, draw.YBottom
+		for _, pm := range placed {
+			w := ms.Width(pm.txt)
+			cx := max(min(pm.x, figWidth-2-w/2), 2+w/2)
+			full.FillText(ms, vg.Point{X: cx, Y: top + 2 + vg.Length(pm.row)*markRow}, pm.txt)
+		}
+	}
+	return finishSVG(c)
+}

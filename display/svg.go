@@ -1,0 +1,440 @@
+package display
+
+import (
+	"bytes"
+	"image/color"
+	"math"
+	"strconv"
+	"strings"
+
+	xfont "golang.org/x/image/font"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// Figure geometry, in points. A notebook shows an SVG at its stated size, so the
+// width is that of a journal's single-and-a-half column.
+const (
+	figWidth   = 6 * vg.Inch
+	headPad    = 6  // space above the title and below the header
+	titleSize  = 11 // figure title, bold
+	labelSize  = 10 // axis labels, legend
+	tickSize   = 9  // tick labels
+	markSize   = 8  // mark labels
+	rowHeight  = 13 // one legend row
+	markRow    = 11 // one row of mark labels
+	sampleLen  = 22 // legend line sample
+	legendGap  = 14 // between legend items
+	lineWidth  = 1.3
+	frameWidth = 0.7
+)
+
+// Text is measured with the Liberation fonts gonum/plot carries; they are metric
+// compatible with Arial/Helvetica, which the SVG names as fallbacks (no font data
+// is embedded).
+var sansFont = font.Font{Typeface: "Liberation", Variant: "Sans"}
+
+func textStyle(size vg.Length) text.Style {
+	return text.Style{Color: color.Black, Font: font.From(sansFont, size), Handler: plot.DefaultTextHandler}
+}
+
+func boldStyle(size vg.Length) text.Style {
+	s := textStyle(size)
+	s.Font.Weight = xfont.WeightBold
+	return s
+}
+
+// Line colours are the Okabe–Ito colour-blind-safe set (Okabe & Ito, "Color
+// Universal Design", 2008), with yellow left out (too pale on white); each colour
+// also gets its own dash pattern so curves stay apart in grey print.
+var lineColors = []color.NRGBA{
+	{0x00, 0x72, 0xb2, 0xff}, // blue
+	{0xd5, 0x5e, 0x00, 0xff}, // vermillion
+	{0x00, 0x9e, 0x73, 0xff}, // bluish green
+	{0xcc, 0x79, 0xa7, 0xff}, // reddish purple
+	{0xe6, 0x9f, 0x00, 0xff}, // orange
+	{0x56, 0xb4, 0xe9, 0xff}, // sky blue
+	{0x00, 0x00, 0x00, 0xff}, // black
+}
+
+var lineDashes = [][]vg.Length{nil, {5, 2.5}, {1.5, 1.8}, {6, 2, 1.5, 2}, {9, 3}, {3, 2}, {1, 1}}
+
+// seriesStyle is the line style of the i-th pulse of a figure.
+func seriesStyle(i int) draw.LineStyle {
+	return draw.LineStyle{
+		Color:  lineColors[i%len(lineColors)],
+		Width:  lineWidth,
+		Dashes: lineDashes[(i/len(lineColors)+i)%len(lineDashes)],
+	}
+}
+
+var (
+	whiteColor = color.White
+	gridColor  = color.NRGBA{0xe4, 0xe4, 0xe4, 0xff}
+	markColor  = color.NRGBA{0x55, 0x55, 0x55, 0xff}
+)
+
+// newPlot is a plot with the house style: sans-serif text, thin outward ticks,
+// no gap between axes and data (a frame closes the box), no background of its own.
+func newPlot() *plot.Plot {
+	p := plot.New()
+	p.BackgroundColor = nil
+	for _, a := range []*plot.Axis{&p.X, &p.Y} {
+		a.Label.TextStyle.Font = font.From(sansFont, labelSize)
+		a.Label.Padding = 3
+		a.Tick.Label.Font = font.From(sansFont, tickSize)
+		a.Tick.Length = 4
+		a.Tick.Width = frameWidth
+		a.Width = frameWidth
+		a.Padding = 0
+		a.Tick.Marker = niceTicks{n: 5}
+	}
+	p.X.Tick.Marker = niceTicks{n: 7}
+	return p
+}
+
+// axisLabel joins a label and its unit: "offset (Hz)", or the bare label.
+func axisLabel(label, unit string) string {
+	if unit == "" {
+		return label
+	}
+	return label + " (" + unit + ")"
+}
+
+// frame strokes the border of the data area.
+type frame struct{}
+
+func (frame) Plot(c draw.Canvas, _ *plot.Plot) {
+	c.SetLineStyle(draw.LineStyle{Color: color.Black, Width: frameWidth})
+	c.Stroke(c.Rectangle.Path())
+}
+
+// grid draws light lines at the labelled ticks of both axes.
+type grid struct{ x, y bool }
+
+func (g grid) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	var path vg.Path
+	if g.x {
+		for _, t := range p.X.Tick.Marker.Ticks(p.X.Min, p.X.Max) {
+			if t.IsMinor() || t.Value < p.X.Min || t.Value > p.X.Max {
+				continue
+			}
+			x := trX(t.Value)
+			path.Move(vg.Point{X: x, Y: c.Min.Y})
+			path.Line(vg.Point{X: x, Y: c.Max.Y})
+		}
+	}
+	if g.y {
+		for _, t := range p.Y.Tick.Marker.Ticks(p.Y.Min, p.Y.Max) {
+			if t.IsMinor() || t.Value < p.Y.Min || t.Value > p.Y.Max {
+				continue
+			}
+			y := trY(t.Value)
+			path.Move(vg.Point{X: c.Min.X, Y: y})
+			path.Line(vg.Point{X: c.Max.X, Y: y})
+		}
+	}
+	if len(path) > 0 {
+		c.SetLineStyle(draw.LineStyle{Color: gridColor, Width: 0.5})
+		c.Stroke(path)
+	}
+}
+
+// line is a polyline through (x, y), broken at non-finite values. It is drawn as
+// one SVG path, thinned in canvas space to what half-point columns can show (the
+// first, lowest, highest and last point of each column), which keeps the outline
+// of any curve while bounding the file size.
+type line struct {
+	x, y  []float64
+	style draw.LineStyle
+	// jump, when positive, breaks the line where consecutive values differ by more
+	// than it: a wrapped phase (jump 180°) is not drawn as a vertical stroke.
+	jump float64
+}
+
+func (l line) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	var path vg.Path
+	var run []vg.Point
+	flush := func() {
+		pts := thin(run)
+		if len(pts) == 1 {
+			// A lone point: a short tick so it stays visible.
+			pts = append(pts, vg.Point{X: pts[0].X + 0.8, Y: pts[0].Y})
+		}
+		for i, q := range pts {
+			if i == 0 {
+				path.Move(q)
+			} else {
+				path.Line(q)
+			}
+		}
+		run = run[:0]
+	}
+	for i := range min(len(l.x), len(l.y)) {
+		if !finite(l.x[i]) || !finite(l.y[i]) {
+			flush()
+			continue
+		}
+		if l.jump > 0 && i > 0 && finite(l.y[i-1]) && math.Abs(l.y[i]-l.y[i-1]) > l.jump {
+			flush()
+		}
+		run = append(run, vg.Point{X: trX(l.x[i]), Y: trY(l.y[i])})
+	}
+	flush()
+	if len(path) == 0 {
+		return
+	}
+	c.SetLineStyle(l.style)
+	c.Stroke(path)
+}
+
+func (l line) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax = finiteRange(l.x[:min(len(l.x), len(l.y))])
+	ymin, ymax = finiteRange(l.y[:min(len(l.x), len(l.y))])
+	return
+}
+
+// thin keeps, of each run of consecutive points in one half-point column, the
+// first, the lowest, the highest and the last, in their original order.
+func thin(pts []vg.Point) []vg.Point {
+	if len(pts) < 5 {
+		return append([]vg.Point(nil), pts...)
+	}
+	out := make([]vg.Point, 0, len(pts))
+	col := func(p vg.Point) float64 { return math.Floor(float64(p.X) * 2) }
+	for i := 0; i < len(pts); {
+		j, lo, hi := i, i, i
+		for j+1 < len(pts) && col(pts[j+1]) == col(pts[i]) {
+			j++
+			if pts[j].Y < pts[lo].Y {
+				lo = j
+			}
+			if pts[j].Y > pts[hi].Y {
+				hi = j
+			}
+		}
+		keep := []int{i, min(lo, hi), max(lo, hi), j}
+		last := -1
+		for _, k := range keep {
+			if k > last {
+				out = append(out, pts[k])
+				last = k
+			}
+		}
+		i = j + 1
+	}
+	return out
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// finiteRange is the range of the finite values, (+Inf, -Inf) when there are none.
+func finiteRange(v []float64) (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, x := range v {
+		if finite(x) {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	return lo, hi
+}
+
+// padRange widens [lo, hi] by a fraction on each side so curves do not run along
+// the frame; an empty or single-valued range becomes a unit-sized one.
+func padRange(lo, hi, frac float64) (float64, float64) {
+	switch {
+	case lo > hi:
+		return 0, 1
+	case lo == hi:
+		d := math.Max(math.Abs(lo)*0.1, 1)
+		if lo == 0 {
+			d = 1
+		}
+		return lo - d, hi + d
+	}
+	d := (hi - lo) * frac
+	return lo - d, hi + d
+}
+
+// noLabels keeps the tick marks of a ticker but drops their labels (the shared X
+// axis of upper panels).
+type noLabels struct{ plot.Ticker }
+
+func (n noLabels) Ticks(lo, hi float64) []plot.Tick {
+	ts := n.Ticker.Ticks(lo, hi)
+	for i := range ts {
+		ts[i].Label = ""
+	}
+	return ts
+}
+
+// degreeTicks labels phase axes at multiples of 90° (45° or 30° for narrower
+// ranges), falling back to the default ticker for small ranges.
+type degreeTicks struct{}
+
+func (degreeTicks) Ticks(lo, hi float64) []plot.Tick {
+	span := hi - lo
+	var step float64
+	switch {
+	case span >= 270:
+		step = 90
+	case span >= 135:
+		step = 45
+	case span >= 90:
+		step = 30
+	default:
+		return niceTicks{n: 5}.Ticks(lo, hi)
+	}
+	var ts []plot.Tick
+	for v := math.Ceil(lo/step) * step; v <= hi; v += step {
+		ts = append(ts, plot.Tick{Value: v, Label: Num(v, 6)})
+		if m := v + step/2; m <= hi && step >= 45 {
+			ts = append(ts, plot.Tick{Value: m})
+		}
+	}
+	if m := math.Ceil(lo/step)*step - step/2; m >= lo && step >= 45 {
+		ts = append(ts, plot.Tick{Value: m})
+	}
+	return ts
+}
+
+// legendItem is one entry of a figure legend: a line sample and its name.
+type legendItem struct {
+	name  string
+	style draw.LineStyle
+	halo  bool // draw a white halo under the sample (contour lines)
+}
+
+// legendRows wraps legend items into rows no wider than width.
+func legendRows(items []legendItem, width vg.Length) [][]legendItem {
+	ts := textStyle(labelSize)
+	var rows [][]legendItem
+	var w vg.Length
+	for _, it := range items {
+		iw := sampleLen + 4 + ts.Width(it.name)
+		if len(rows) == 0 || w+legendGap+iw > width {
+			rows = append(rows, nil)
+			w = -legendGap
+		}
+		rows[len(rows)-1] = append(rows[len(rows)-1], it)
+		w += legendGap + iw
+	}
+	return rows
+}
+
+// drawLegend draws wrapped legend rows, each centred between x0 and x1, the first
+// row's centre line at y.
+func drawLegend(c draw.Canvas, rows [][]legendItem, x0, x1, y vg.Length) {
+	ts := textStyle(labelSize)
+	ts.YAlign = draw.YCenter
+	for _, row := range rows {
+		var w vg.Length = -legendGap
+		for _, it := range row {
+			w += legendGap + sampleLen + 4 + ts.Width(it.name)
+		}
+		x := (x0+x1)/2 - w/2
+		for _, it := range row {
+			if it.halo {
+				c.StrokeLine2(draw.LineStyle{Color: color.White, Width: it.style.Width + 2}, x, y, x+sampleLen, y)
+			}
+			c.StrokeLine2(it.style, x, y, x+sampleLen, y)
+			x += sampleLen + 4
+			c.FillText(ts, vg.Point{X: x, Y: y}, it.name)
+			x += ts.Width(it.name) + legendGap
+		}
+		y -= rowHeight
+	}
+}
+
+// finishSVG writes the canvas and makes the text self-contained and portable:
+// vgsvg names the measuring font (Liberation) without fallbacks and tags PNG data
+// as JPEG; neither is what a browser should see.
+func finishSVG(c *vgsvg.Canvas) string {
+	var buf bytes.Buffer
+	if _, err := c.WriteTo(&buf); err != nil {
+		panic("display: writing svg: " + err.Error())
+	}
+	s := buf.String()
+	s = strings.Replace(s, "<!-- Generated by SVGo and Plotinum VG -->\n", "", 1)
+	s = strings.ReplaceAll(s, "font-family:Liberation Sans;font-variant:normal;", "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")
+	s = strings.ReplaceAll(s, ";font-weight:normal;font-style:normal", "")
+	s = strings.ReplaceAll(s, ";font-style:normal", "")
+	s = strings.ReplaceAll(s, `<image x=`, `<image preserveAspectRatio="none" x=`)
+	s = strings.ReplaceAll(s, "data:image/jpg;base64,", "data:image/png;base64,")
+	return s
+}
+
+// inlineSVG strips the XML prolog so the SVG can sit inside HTML.
+func inlineSVG(svg string) string {
+	if strings.HasPrefix(svg, "<?xml") {
+		if i := strings.Index(svg, "?>"); i >= 0 {
+			svg = strings.TrimLeft(svg[i+2:], "\n")
+		}
+	}
+	return svg
+}
+
+// figureHTML is the text/html of a figure bundle: the SVG inline, then the table.
+// Notebook front ends show only the richest MIME type of a bundle and rank HTML
+// above SVG, so the HTML must carry the figure too.
+func figureHTML(svg string, t Table) string {
+	return `<div class="nutate-figure">` + inlineSVG(svg) + "</div>" + t.HTML()
+}
+
+// niceTicks labels about n ticks at steps of 1, 2, 2.5 or 5 times a power of ten,
+// all with the same number of decimals, with unlabelled minor ticks between.
+type niceTicks struct{ n int }
+
+func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(hi > lo) || !finite(lo) || !finite(hi) {
+		return nil
+	}
+	raw := (hi - lo) / float64(max(nt.n, 2))
+	mag := math.Pow(10, math.Floor(math.Log10(raw)))
+	var mant float64
+	for _, m := range []float64{1, 2, 2.5, 5, 10} {
+		if m*mag >= raw*(1-1e-9) {
+			mant = m
+			break
+		}
+	}
+	step := mant * mag
+	minors := 5
+	if mant == 2 {
+		minors = 4
+	}
+	dec := max(0, int(-math.Floor(math.Log10(step)+1e-9)))
+	if mant == 2.5 && step < 10 {
+		dec++
+	}
+	label := func(v float64) string {
+		if math.Abs(v) < step*1e-6 {
+			v = 0
+		}
+		if step >= 1e5 || step < 1e-4 {
+			return Num(v, 4)
+		}
+		return strconv.FormatFloat(v, 'f', dec, 64)
+	}
+	var ts []plot.Tick
+	k0, k1 := math.Ceil(lo/step-1e-9), math.Floor(hi/step+1e-9)
+	for k := k0 - 1; k <= k1; k++ {
+		v := k * step
+		if k >= k0 {
+			ts = append(ts, plot.Tick{Value: v, Label: label(v)})
+		}
+		for j := 1; j < minors; j++ {
+			m := v + float64(j)*step/float64(minors)
+			if m >= lo && m <= hi {
+				ts = append(ts, plot.Tick{Value: m})
+			}
+		}
+	}
+	return ts
+}
