@@ -4,9 +4,9 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"math/cmplx"
 	"runtime"
 	"sync"
+	"sync/atomic"
 )
 
 // Isochromats is a set of spins in structure-of-arrays form. Every non-nil slice has
@@ -32,11 +32,20 @@ func (s *Isochromats) Len() int {
 func (s *Isochromats) validate() error {
 	n := s.Len()
 	for _, a := range []struct {
-		name string
-		v    []float64
-	}{{"offset", s.Offset}, {"b1 scale", s.B1Scale}, {"position", s.Position}, {"t1", s.T1}, {"t2", s.T2}} {
+		name  string
+		v     []float64
+		relax bool
+	}{{"offset", s.Offset, false}, {"b1 scale", s.B1Scale, false}, {"position", s.Position, false}, {"t1", s.T1, true}, {"t2", s.T2, true}} {
 		if a.v != nil && len(a.v) != n {
 			return fmt.Errorf("isochromats: %s has %d values, want %d", a.name, len(a.v), n)
+		}
+		for i, v := range a.v {
+			switch {
+			case math.IsNaN(v) || (math.IsInf(v, 0) && !(a.relax && v > 0)):
+				return fmt.Errorf("isochromats: %s[%d] is %g, want a finite value", a.name, i, v)
+			case a.relax && v < 0:
+				return fmt.Errorf("isochromats: %s[%d] is %g s, want ≥ 0 (0 or +Inf: no relaxation)", a.name, i, v)
+			}
 		}
 	}
 	return nil
@@ -77,21 +86,25 @@ func Grid(offset, b1Scale, position, t1, t2 []float64) Isochromats {
 
 // Options control a simulation.
 type Options struct {
-	// Start is the initial magnetization (M0 = 1 units). The zero value means +z.
+	// Start is the initial magnetization (M0 = 1 units). The zero value means +z;
+	// StartState names the usual ones.
 	Start [3]float64
-	// Workers is the number of goroutines; 0 means GOMAXPROCS.
+	// Workers is the number of goroutines; 0 means GOMAXPROCS. Results are
+	// identical bit for bit whatever the number of workers.
 	Workers int
 	// Progress, when non-nil, is called from the workers with the number of
-	// isochromats finished so far and the total. It must be safe for concurrent use.
+	// isochromats finished so far and the total, after each block of spins. It must
+	// be safe for concurrent use.
 	Progress func(done, total int)
 	// MaxSteps bounds isochromats × samples; 0 means DefaultMaxSteps.
 	MaxSteps float64
 }
 
-// DefaultMaxSteps is the default budget of isochromat-steps for one simulation.
+// DefaultMaxSteps is the default budget of isochromat-steps for one simulation
+// (about a minute of work on one core at the rates quoted in bench_test.go).
 const DefaultMaxSteps = 4e10
 
-// MaxIsochromats bounds the result size (five float64 and two complex128 per spin).
+// MaxIsochromats bounds the result size (three float64 and two complex128 per spin).
 const MaxIsochromats = 20_000_000
 
 // Result holds the state after the waveform, one entry per isochromat.
@@ -102,12 +115,26 @@ type Result struct {
 	Alpha, Beta []complex128
 }
 
+// Block sizes of the scheduler: a worker takes blockSpins spins at a time and
+// checks for cancellation every stepChunk samples (a few tens of microseconds of
+// work, far inside the 50 ms that cancellation may take).
+const (
+	blockSpins = 64
+	stepChunk  = 128
+)
+
 // Simulate propagates the isochromats through the waveform exactly: each
-// piecewise-constant step is a rotation (or, with relaxation, the exact solution of
-// the linear step). gamma is in rad·s⁻¹·T⁻¹. It returns ctx.Err() when cancelled.
+// piecewise-constant step is a rotation composed in Cayley–Klein form (see
+// rotateBlock) or, when any spin relaxes, the exact solution of the linear step
+// (see relax.go). gamma is in rad·s⁻¹·T⁻¹. The size is checked against
+// Options.MaxSteps and MaxIsochromats before anything is allocated. It returns
+// ctx.Err() when cancelled.
 func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats, opt Options) (*Result, error) {
 	if err := w.Validate(); err != nil {
 		return nil, err
+	}
+	if math.IsNaN(gamma) || math.IsInf(gamma, 0) {
+		return nil, fmt.Errorf("gamma is %g, want a finite value", gamma)
 	}
 	if err := iso.validate(); err != nil {
 		return nil, err
@@ -123,16 +150,33 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 	if steps := float64(n) * float64(w.Len()); steps > budget {
 		return nil, fmt.Errorf("simulation of %d isochromats × %d samples = %.3g steps exceeds the budget of %.3g", n, w.Len(), steps, budget)
 	}
+	for k, v := range opt.Start {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("start magnetization component %d is %g, want a finite value", k, v)
+		}
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
 	start := opt.Start
 	if start == [3]float64{} {
 		start = [3]float64{0, 0, 1}
 	}
 	relax := false
+	maxOff, maxPos, maxScale, maxR := 0.0, 0.0, 0.0, 0.0
 	for i := 0; i < n; i++ {
-		if relaxes(at(iso.T1, i, 0)) || relaxes(at(iso.T2, i, 0)) {
+		r1, r2 := rate(at(iso.T1, i, 0)), rate(at(iso.T2, i, 0))
+		if r1 != 0 || r2 != 0 {
 			relax = true
-			break
 		}
+		maxR = max(maxR, r1, r2)
+		maxOff = max(maxOff, math.Abs(2*math.Pi*at(iso.Offset, i, 0)))
+		maxPos = max(maxPos, math.Abs(at(iso.Position, i, 0)))
+		maxScale = max(maxScale, math.Abs(at(iso.B1Scale, i, 1)))
+	}
+	st := newSteps(w, gamma)
+	if relax {
+		st.planRelax(w, gamma, maxOff, maxPos, maxScale, maxR)
 	}
 	res := &Result{Mx: make([]float64, n), My: make([]float64, n), Mz: make([]float64, n)}
 	if !relax {
@@ -143,112 +187,105 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	const chunk = 64
-	var (
-		mu   sync.Mutex
-		next int
-		done int
-		wg   sync.WaitGroup
-	)
-	take := func() (int, int, bool) {
-		mu.Lock()
-		defer mu.Unlock()
-		if next >= n {
-			return 0, 0, false
-		}
-		lo := next
-		next = min(n, next+chunk)
-		return lo, next, true
-	}
-	for k := 0; k < workers; k++ {
+	nblocks := (n + blockSpins - 1) / blockSpins
+	workers = min(workers, nblocks)
+
+	var stop atomic.Bool
+	defer context.AfterFunc(ctx, func() { stop.Store(true) })()
+	var next, done atomic.Int64
+	var wg sync.WaitGroup
+	for range workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			for {
-				if ctx.Err() != nil {
+			var b block
+			for !stop.Load() {
+				k := int(next.Add(1)) - 1
+				if k >= nblocks {
 					return
 				}
-				lo, hi, ok := take()
-				if !ok {
+				lo := k * blockSpins
+				hi := min(n, lo+blockSpins)
+				if !b.run(st, iso, lo, hi, start, &stop) {
 					return
 				}
-				for i := lo; i < hi; i++ {
-					simulateOne(w, gamma, iso, i, start, res)
-				}
+				b.store(res, lo, hi, relax)
 				if opt.Progress != nil {
-					mu.Lock()
-					done += hi - lo
-					d := done
-					mu.Unlock()
-					opt.Progress(d, n)
+					opt.Progress(int(done.Add(int64(hi-lo))), n)
 				}
 			}
 		}()
 	}
 	wg.Wait()
-	if err := ctx.Err(); err != nil {
-		return nil, err
+	if stop.Load() {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 	}
 	return res, nil
 }
 
-func relaxes(t float64) bool { return t > 0 && !math.IsInf(t, 1) }
-
-func simulateOne(w *Waveform, gamma float64, iso *Isochromats, i int, start [3]float64, res *Result) {
-	off := 2 * math.Pi * at(iso.Offset, i, 0)
-	scale := at(iso.B1Scale, i, 1)
-	x := at(iso.Position, i, 0)
-	t1, t2 := at(iso.T1, i, 0), at(iso.T2, i, 0)
-	r1, r2 := 0.0, 0.0
-	if relaxes(t1) {
-		r1 = 1 / t1
+// rate converts a relaxation time to a rate; 0 and +Inf mean no relaxation.
+func rate(t float64) float64 {
+	if t > 0 && !math.IsInf(t, 1) {
+		return 1 / t
 	}
-	if relaxes(t2) {
-		r2 = 1 / t2
-	}
-	m := start
-	a, b := complex(1, 0), complex(0, 0)
-	relax := res.Alpha == nil
-	for j, b1 := range w.B1 {
-		wx := gamma * scale * real(b1)
-		wy := gamma * scale * imag(b1)
-		wz := off
-		if w.Gradient != nil {
-			wz += gamma * w.Gradient[j] * x
-		}
-		dt := w.Dwell[j]
-		if relax {
-			m = relaxStep(m, wx, wy, wz, r1, r2, dt)
-			continue
-		}
-		wn := math.Sqrt(wx*wx + wy*wy + wz*wz)
-		if wn == 0 {
-			continue
-		}
-		theta := -wn * dt
-		nx, ny, nz := wx/wn, wy/wn, wz/wn
-		m = rotate(m, nx, ny, nz, theta)
-		s, c := math.Sincos(theta / 2)
-		aj := complex(c, -nz*s)
-		bj := complex(ny*s, -nx*s) // −i(nx + i·ny)·sin(θ/2)
-		a, b = aj*a-cmplx.Conj(bj)*b, bj*a+cmplx.Conj(aj)*b
-	}
-	res.Mx[i], res.My[i], res.Mz[i] = m[0], m[1], m[2]
-	if !relax {
-		res.Alpha[i], res.Beta[i] = a, b
-	}
+	return 0
 }
 
-// rotate turns m by angle theta about the unit axis n (Rodrigues' formula).
-func rotate(m [3]float64, nx, ny, nz, theta float64) [3]float64 {
-	s, c := math.Sincos(theta)
-	dot := nx*m[0] + ny*m[1] + nz*m[2]
-	cx := ny*m[2] - nz*m[1]
-	cy := nz*m[0] - nx*m[2]
-	cz := nx*m[1] - ny*m[0]
-	return [3]float64{
-		m[0]*c + cx*s + nx*dot*(1-c),
-		m[1]*c + cy*s + ny*dot*(1-c),
-		m[2]*c + cz*s + nz*dot*(1-c),
+// block is one worker's state for a block of spins, in structure-of-arrays form.
+type block struct {
+	off, pos, scale, scale2, r1, r2 [blockSpins]float64
+	// Cayley–Klein state (rotation) or magnetization (relaxation).
+	ar, ai, br, bi [blockSpins]float64
+	mx, my, mz     [blockSpins]float64
+	relax          relaxScratch
+}
+
+// run propagates spins [lo, hi) through every step; it returns false when stopped.
+func (b *block) run(st *steps, iso *Isochromats, lo, hi int, start [3]float64, stop *atomic.Bool) bool {
+	m := hi - lo
+	blockRelax := false
+	for i := range m {
+		b.off[i] = 2 * math.Pi * at(iso.Offset, lo+i, 0)
+		b.pos[i] = at(iso.Position, lo+i, 0)
+		s := at(iso.B1Scale, lo+i, 1)
+		b.scale[i], b.scale2[i] = s, s*s
+		b.r1[i], b.r2[i] = rate(at(iso.T1, lo+i, 0)), rate(at(iso.T2, lo+i, 0))
+		if b.r1[i] != 0 || b.r2[i] != 0 {
+			blockRelax = true
+		}
+		b.ar[i], b.ai[i], b.br[i], b.bi[i] = 1, 0, 0, 0
+		b.mx[i], b.my[i], b.mz[i] = start[0], start[1], start[2]
+	}
+	for j0 := 0; j0 < st.n; j0 += stepChunk {
+		if stop.Load() {
+			return false
+		}
+		j1 := min(st.n, j0+stepChunk)
+		if blockRelax {
+			relaxBlock(st, j0, j1, b.off[:m], b.pos[:m], b.scale[:m], b.r1[:m], b.r2[:m], b.mx[:m], b.my[:m], b.mz[:m], &b.relax)
+		} else {
+			rotateBlock(st, j0, j1, b.off[:m], b.pos[:m], b.scale[:m], b.scale2[:m], b.ar[:m], b.ai[:m], b.br[:m], b.bi[:m])
+		}
+	}
+	if !blockRelax {
+		for i := range m {
+			a := complex(b.ar[i], b.ai[i])
+			c := complex(b.br[i], b.bi[i])
+			b.mx[i], b.my[i], b.mz[i] = Rotate(a, c, start)
+		}
+	}
+	return true
+}
+
+// store copies the block's results into res.
+func (b *block) store(res *Result, lo, hi int, relax bool) {
+	for i := range hi - lo {
+		res.Mx[lo+i], res.My[lo+i], res.Mz[lo+i] = b.mx[i], b.my[i], b.mz[i]
+		if !relax {
+			res.Alpha[lo+i] = complex(b.ar[i], b.ai[i])
+			res.Beta[lo+i] = complex(b.br[i], b.bi[i])
+		}
 	}
 }

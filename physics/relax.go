@@ -1,23 +1,151 @@
 package physics
 
-import "gonum.org/v1/gonum/mat"
+import "math"
 
-// relaxStep advances m over dt under the Bloch equations with relaxation toward
-// M0 = ẑ, exactly: the 4×4 augmented generator [[A, b], [0, 0]] is exponentiated,
-// with A from dMx/dt = Δω·My − ω1y·Mz − R2·Mx, dMy/dt = ω1x·Mz − Δω·Mx − R2·My,
-// dMz/dt = ω1y·Mx − ω1x·My − R1·(Mz − 1).
-func relaxStep(m [3]float64, wx, wy, wz, r1, r2, dt float64) [3]float64 {
-	g := mat.NewDense(4, 4, []float64{
-		-r2 * dt, wz * dt, -wy * dt, 0,
-		-wz * dt, -r2 * dt, wx * dt, 0,
-		wy * dt, -wx * dt, -r1 * dt, r1 * dt,
-		0, 0, 0, 0,
-	})
-	var e mat.Dense
-	e.Exp(g)
-	var out [3]float64
-	for r := 0; r < 3; r++ {
-		out[r] = e.At(r, 0)*m[0] + e.At(r, 1)*m[1] + e.At(r, 2)*m[2] + e.At(r, 3)
+// Relaxation during a step. With R1 = 1/T1, R2 = 1/T2 and M0 = ẑ the Bloch
+// equations (Bloch, Phys. Rev. 70:460, 1946) are linear with constant coefficients
+// over a piecewise-constant step:
+//
+//	dM/dt = A·M + b,  A = [[−R2, ωz, −ωy], [−ωz, −R2, ωx], [ωy, −ωx, −R1]],  b = (0, 0, R1),
+//
+// whose exact solution over dt is M(dt) = M + φ1(dt·A)·(dt·A·M + dt·b) with
+// φ1(z) = (eᶻ − 1)/z = Σ zᵏ/(k+1)! (the exponential-integrator identity; Hochbruck
+// & Ostermann, Acta Numerica 19:209, 2010). No operator splitting is involved and
+// A need not be invertible.
+//
+// φ1(X) of the 3×3 matrix X = dt·A is evaluated exactly through the Cayley–Hamilton
+// theorem: with the characteristic polynomial λ³ + q1λ² + q2λ + q3 of X,
+// X³ = −q1X² − q2X − q3I, so every power is Xᵏ = e0·I + e1·X + e2·X² with the scalar
+// recurrence (e0, e1, e2) ← (−q3·e2, e0 − q2·e2, e1 − q1·e2), and
+// φ1(X) = d0·I + d1·X + d2·X² with d = Σ eₖ/(k+1)!. The scalar series of the
+// entire function is summed until the first omitted term is below 1e-18 for
+// ‖X‖₂ ≤ ρ; steps whose bound exceeds relaxRho are cut into equal substeps, which is
+// exact because the generator is constant: e^{dt·A} = (e^{dt·A/n})ⁿ. The
+// coefficients are shared by the substeps of a step.
+
+// relaxRho is the largest ‖dt·A‖₂ bound summed in one piece.
+const relaxRho = 0.5
+
+// maxTerms caps the series length; relaxTerms(relaxRho) is well below it.
+const maxTerms = 31 // 2ⁿ − 1, so that k&maxTerms needs no bounds check
+
+// relaxTerms is the number of φ1 series terms for a step with ‖dt·A‖₂ ≤ rho: the
+// smallest K with rho^(K+1)/(K+2)! ≤ 1e-18.
+func relaxTerms(rho float64) int {
+	t := 1.0 // rho^(k+1)/(k+2)! for k = 0: rho/2
+	for k := 0; k < maxTerms; k++ {
+		t *= rho / float64(k+2)
+		if t <= 1e-18 {
+			return k
+		}
 	}
-	return out
+	return maxTerms
+}
+
+// planRelax sets, for every step, the substeps and series length from a bound on
+// ‖dt·A‖₂ ≤ dt·(|ω|max + max(R1, R2)) over all spins: ‖Ω‖₂ = |ω| for the rotation
+// part and ‖diag(R2, R2, R1)‖₂ = max(R1, R2).
+func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR float64) {
+	n := st.n
+	st.dt, st.wx, st.wy, st.g = make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	st.sub, st.terms = make([]int, n), make([]int, n)
+	for j, b1 := range w.B1 {
+		dt := w.Dwell[j]
+		st.wx[j] = gamma * real(b1)
+		st.wy[j] = gamma * imag(b1)
+		if w.Gradient != nil {
+			st.g[j] = gamma * w.Gradient[j]
+		}
+		wz := maxOff + maxPos*math.Abs(st.g[j])
+		w1 := maxScale * math.Hypot(st.wx[j], st.wy[j])
+		rho := dt * (math.Hypot(w1, wz) + maxR)
+		sub := 1
+		if rho > relaxRho {
+			sub = int(math.Ceil(rho / relaxRho))
+			rho /= float64(sub)
+		}
+		st.dt[j] = dt / float64(sub)
+		st.sub[j] = sub
+		st.terms[j] = relaxTerms(rho)
+	}
+}
+
+// invFact1[k] = 1/(k+1)!.
+var invFact1 = func() (v [maxTerms + 1]float64) {
+	f := 1.0
+	for k := range v {
+		f *= float64(k + 1)
+		v[k] = 1 / f
+	}
+	return v
+}()
+
+// relaxScratch holds per-spin series state for relaxBlock.
+type relaxScratch struct {
+	q1, q2, q3, v0, v1, v2 [blockSpins]float64
+}
+
+// relaxBlock advances the magnetization of a block of spins through steps
+// [j0, j1) with relaxation, exactly as described at the top of this file. For each
+// step the coefficients d = Σ cₖ·Cᵏ·(1, 0, 0), with the companion matrix C of the
+// recurrence and cₖ = 1/(k+1)!, are summed by Horner's rule with the spins as the
+// inner loop, so that the spins' dependency chains overlap.
+func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []float64, sc *relaxScratch) {
+	n := len(off)
+	pos, scale, r1, r2 = pos[:n], scale[:n], r1[:n], r2[:n]
+	mx, my, mz = mx[:n], my[:n], mz[:n]
+	q1, q2, q3 := sc.q1[:n], sc.q2[:n], sc.q3[:n]
+	v0, v1, v2 := sc.v0[:n], sc.v1[:n], sc.v2[:n]
+	for j := j0; j < j1; j++ {
+		t := st.dt[j]
+		wxt, wyt, gt := st.wx[j]*t, st.wy[j]*t, st.g[j]*t
+		sub, terms := st.sub[j], st.terms[j]
+		cK := invFact1[terms&maxTerms]
+		for i := range n {
+			// X = t·A = [[a, z, −y], [−z, a, x], [y, −x, c]]; its characteristic
+			// polynomial has q1 = −tr X, q2 = the sum of the principal 2×2 minors,
+			// q3 = −det X.
+			x, y := scale[i]*wxt, scale[i]*wyt
+			z := off[i]*t + pos[i]*gt
+			a, c := -r2[i]*t, -r1[i]*t
+			xy2, z2 := x*x+y*y, z*z
+			q1[i] = -(a + a + c)
+			q2[i] = a*a + z2 + 2*a*c + xy2
+			q3[i] = -(a*a*c + a*xy2 + c*z2)
+			v0[i], v1[i], v2[i] = cK, 0, 0
+		}
+		for k := terms - 1; k >= 0; k-- {
+			ck := invFact1[k&maxTerms]
+			for i := range n {
+				// v ← C·v + cₖ·(1, 0, 0), C·(e0, e1, e2) = (−q3·e2, e0 − q2·e2, e1 − q1·e2).
+				e0, e1, e2 := v0[i], v1[i], v2[i]
+				v0[i] = ck - q3[i]*e2
+				v1[i] = e0 - q2[i]*e2
+				v2[i] = e1 - q1[i]*e2
+			}
+		}
+		for i := range n {
+			x, y := scale[i]*wxt, scale[i]*wyt
+			z := off[i]*t + pos[i]*gt
+			a, c := -r2[i]*t, -r1[i]*t
+			d0, d1, d2 := v0[i], v1[i], v2[i]
+			mxi, myi, mzi := mx[i], my[i], mz[i]
+			for range sub {
+				// w = X·M + t·b; M ← M + d0·w + d1·X·w + d2·X²·w.
+				wx := a*mxi + z*myi - y*mzi
+				wy := -z*mxi + a*myi + x*mzi
+				wz := y*mxi - x*myi + c*(mzi-1)
+				vx := a*wx + z*wy - y*wz
+				vy := -z*wx + a*wy + x*wz
+				vz := y*wx - x*wy + c*wz
+				ux := a*vx + z*vy - y*vz
+				uy := -z*vx + a*vy + x*vz
+				uz := y*vx - x*vy + c*vz
+				mxi += d0*wx + d1*vx + d2*ux
+				myi += d0*wy + d1*vy + d2*uy
+				mzi += d0*wz + d1*vz + d2*uz
+			}
+			mx[i], my[i], mz[i] = mxi, myi, mzi
+		}
+	}
 }
