@@ -1,10 +1,28 @@
 // Package dsl is the Nutate pulse language: scanner, parser, units and evaluator.
 // A Session keeps names, nucleus and field from cell to cell.
+//
+// Units: values are kept in base units (seconds, tesla, metres, radians, hertz for
+// frequencies, ppm as its own dimension) with their dimension (units.go); numbers
+// handed to package physics are plain SI.
+//
+// Entry points: NewSession, Session.Exec (run a cell), Session.Complete and
+// Session.Inspect (editor help), IsComplete (is a cell ready to run), Help (the help
+// texts, also used by `nutate help`). The language itself is described in
+// LANGUAGE.md and by `help`.
+//
+// Layout: scanner.go (tokens, positions), parser.go and ast.go (syntax), units.go
+// and value.go (quantities and dimension checks), eval.go (statements), shapes.go
+// (the shape table), sweep.go, describe.go, report.go, files.go, help.go,
+// complete.go.
 package dsl
 
 import (
 	"context"
 	"errors"
+	"fmt"
+	"runtime/debug"
+	"sort"
+	"strings"
 
 	"nutate/display"
 )
@@ -16,31 +34,158 @@ type Sink struct {
 	Progress func(task string, done, total int)
 }
 
-// Session is one interpreter state.
+// Session is one interpreter state. It is not safe for concurrent Exec calls; a
+// cancellation may come from another goroutine through the context.
 type Session struct {
-	dir string
+	dir       string
+	st        *state
+	overrides map[string]override
+	used      map[string]bool
+}
+
+type override struct {
+	text string
+	expr Expr
 }
 
 // NewSession returns a session whose relative file paths resolve against dir.
-func NewSession(dir string) *Session { return &Session{dir: dir} }
-
-// Exec runs the statements of src in order, sending each output to sink. On
-// failure it returns an error with Traceback() []string; earlier outputs stay.
-func (s *Session) Exec(ctx context.Context, src string, sink Sink) error {
-	return errors.New("dsl: not built yet")
+func NewSession(dir string) *Session {
+	return &Session{dir: dir, st: newState(), overrides: map[string]override{}, used: map[string]bool{}}
 }
 
-// Override makes a later `let NAME = ...` take value (source text) instead.
-func (s *Session) Override(name, value string) error { return errors.New("dsl: not built yet") }
+// Exec runs the statements of src in order, sending each output to sink. The whole
+// cell is parsed first: syntax errors (one per line, sorted) stop it before anything
+// runs. At run time an error stops the cell; earlier statements' outputs and state
+// stay, and the failing statement changes nothing. The error has Traceback()
+// []string; after a cancellation errors.Is(err, context.Canceled) holds.
+func (s *Session) Exec(ctx context.Context, src string, sink Sink) (err error) {
+	stmts, perrs := parse(src)
+	if len(perrs) > 0 {
+		return &CellError{Errs: perrs, Stmt: -1}
+	}
+	for _, st := range stmts {
+		if e := ctx.Err(); e != nil {
+			return cancelled(src, st.Position(), e)
+		}
+		if err := s.run(ctx, src, st, sink); err != nil {
+			return err
+		}
+	}
+	return nil
+}
 
-// Complete returns candidates at cursor (rune offset) and the rune range they replace.
-func (s *Session) Complete(code string, cursor int) ([]string, int, int) { return nil, cursor, cursor }
+func cancelled(src string, p Pos, cause error) *CellError {
+	return &CellError{
+		Errs: []*Error{{Pos: p, Msg: "interrupted", Line: lineOf(src, p.Offset)}},
+		Stmt: p.Offset,
+		err:  cause,
+	}
+}
 
-// Inspect returns the help text for the word at cursor.
-func (s *Session) Inspect(code string, cursor int) (string, bool) { return "", false }
+// run executes one statement on a copy of the state, with the one recover at the
+// edge of execution.
+func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err error) {
+	ev := &evaluator{ctx: ctx, sess: s, st: s.st.clone(), sink: sink}
+	usedBefore := make(map[string]bool, len(s.used))
+	for k, v := range s.used {
+		usedBefore[k] = v
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			p := st.Position()
+			err = &CellError{Errs: []*Error{{Pos: p, Msg: fmt.Sprintf("internal error: %v (please report this with the cell)\n%s", r, firstFrames(debug.Stack())), Line: lineOf(src, p.Offset)}}, Stmt: p.Offset}
+		}
+		if err != nil {
+			s.used = usedBefore
+		}
+	}()
+	if e := ev.exec(st); e != nil {
+		if ctxErr := ctx.Err(); ctxErr != nil && (errors.Is(e, ctxErr) || errors.Is(e, context.Canceled) || errors.Is(e, context.DeadlineExceeded)) {
+			return cancelled(src, st.Position(), ctxErr)
+		}
+		return toCellError(src, st, e)
+	}
+	s.st = ev.st
+	if sink.Display != nil {
+		for _, b := range ev.out {
+			sink.Display(b)
+		}
+	}
+	return nil
+}
 
-// IsComplete reports "complete", "incomplete" (with indent) or "invalid".
-func IsComplete(code string) (status, indent string) { return "complete", "" }
+func firstFrames(stack []byte) string {
+	lines := strings.Split(string(stack), "\n")
+	if len(lines) > 12 {
+		lines = lines[:12]
+	}
+	return strings.Join(lines, "\n")
+}
 
-// Help returns the help text for topic ("" for the overview).
-func Help(topic string) (string, error) { return "", errors.New("dsl: not built yet") }
+func toCellError(src string, st Stmt, e error) *CellError {
+	p := st.Position()
+	var pe *posError
+	if errors.As(e, &pe) {
+		p = pe.pos
+		e = errors.New(pe.msg)
+	}
+	if p.Offset > len(src) {
+		p = st.Position()
+	}
+	return &CellError{Errs: []*Error{{Pos: p, Msg: e.Error(), Line: lineOf(src, p.Offset)}}, Stmt: st.Position().Offset}
+}
+
+// Override makes a later `let NAME = ...` take value (source text) instead. The
+// value is parsed now, so a malformed one is refused at once.
+func (s *Session) Override(name, value string) error {
+	if isReserved(name) || name == "" {
+		return fmt.Errorf("override: %q is not a name", name)
+	}
+	stmts, errs := parse("let " + name + " = " + value)
+	if len(errs) > 0 {
+		return fmt.Errorf("override %s=%s: %s", name, value, errs[0].Msg)
+	}
+	if len(stmts) != 1 {
+		return fmt.Errorf("override %s=%s: want one value", name, value)
+	}
+	s.overrides[name] = override{text: value, expr: stmts[0].(*LetStmt).X}
+	return nil
+}
+
+// UnusedOverrides lists, sorted, the overrides that no `let` has taken so far.
+func (s *Session) UnusedOverrides() []string {
+	var out []string
+	for n := range s.overrides {
+		if !s.used[n] {
+			out = append(out, n)
+		}
+	}
+	sort.Strings(out)
+	return out
+}
+
+// IsComplete reports "complete", "incomplete" (with the indent for the next line)
+// while a `(` is open or the last line ends with `,`, `=` or an operator, or
+// "invalid" for an unbalanced `)` or an unterminated string.
+func IsComplete(code string) (status, indent string) {
+	errs := &errorList{src: code}
+	s := newScanner(code, errs)
+	last := tNewline
+	for {
+		t := s.next()
+		if t.Kind == tEOF {
+			break
+		}
+		if t.Kind == tIllegal && strings.HasPrefix(t.Text, "\"") {
+			return "invalid", ""
+		}
+		last = t.Kind
+	}
+	if s.unbalanced {
+		return "invalid", ""
+	}
+	if s.depth > 0 || continues(last) {
+		return "incomplete", "    "
+	}
+	return "complete", ""
+}

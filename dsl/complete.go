@@ -1,0 +1,259 @@
+package dsl
+
+import (
+	"sort"
+	"strings"
+
+	"nutate/physics"
+)
+
+func isWordRune(r rune) bool { return isIdentPart(r) || r == '°' || r == '/' }
+
+// wordAt returns the rune range of the word around cursor.
+func wordAt(rs []rune, cursor int) (int, int) {
+	cursor = max(0, min(cursor, len(rs)))
+	start, end := cursor, cursor
+	for start > 0 && isWordRune(rs[start-1]) {
+		start--
+	}
+	for end < len(rs) && isWordRune(rs[end]) {
+		end++
+	}
+	return start, end
+}
+
+// Complete returns the candidates for the word at cursor (a rune offset) by
+// context: statement keywords at the start of a statement, shapes and pulses after
+// `pulse NAME =`, argument names inside a shape call, words for word arguments,
+// quantities after `show`, settings after `with`, axes after `over`, units after a
+// number or `in`, pulse and quantity names elsewhere. It also returns the rune
+// range the candidate replaces.
+func (s *Session) Complete(code string, cursor int) ([]string, int, int) {
+	rs := []rune(code)
+	start, end := wordAt(rs, cursor)
+	prefix := string(rs[start:min(max(cursor, start), len(rs))])
+	before := string(rs[:start])
+	cands := s.candidates(before, prefix)
+	var out []string
+	seen := map[string]bool{}
+	for _, c := range cands {
+		if strings.HasPrefix(c, prefix) && !seen[c] && c != "" {
+			seen[c] = true
+			out = append(out, c)
+		}
+	}
+	sort.Strings(out)
+	return out, start, end
+}
+
+// stmtTokens returns the tokens of the statement that the text ends in.
+func stmtTokens(before string) []token {
+	errs := &errorList{src: before}
+	toks := tokenize(before, errs)
+	toks = toks[:len(toks)-1] // EOF
+	for i := len(toks) - 1; i >= 0; i-- {
+		if toks[i].Kind == tNewline {
+			return toks[i+1:]
+		}
+	}
+	return toks
+}
+
+func (s *Session) candidates(before, prefix string) []string {
+	toks := stmtTokens(before)
+	// The word being completed may be glued to a number: `250u`.
+	if len(toks) > 0 && toks[len(toks)-1].Kind == tNumber && toks[len(toks)-1].End == len(before) && prefix != "" {
+		if len(toks) >= 2 && toks[0].Text == "nucleus" {
+			return nucleusNames()
+		}
+		return unitNames()
+	}
+	if len(toks) == 0 {
+		return statementKeywords
+	}
+	first := toks[0].Text
+	last := toks[len(toks)-1]
+	switch first {
+	case "nucleus":
+		return nucleusNames()
+	case "help":
+		return helpWords()
+	case "reset":
+		return nil
+	}
+	if last.Kind == tNumber {
+		return append(unitNames(), "to", "points", "step", "show", "with", "at", "in")
+	}
+	if last.Kind == tIdent && last.Text == "in" {
+		return unitNames()
+	}
+	// Inside a call: find the innermost open parenthesis.
+	depth := 0
+	open := -1
+	for i := len(toks) - 1; i >= 0; i-- {
+		switch toks[i].Kind {
+		case tRParen:
+			depth++
+		case tLParen:
+			if depth == 0 {
+				open = i
+			} else {
+				depth--
+			}
+		}
+		if open >= 0 {
+			break
+		}
+	}
+	if open > 0 && toks[open-1].Kind == tIdent {
+		fn := toks[open-1].Text
+		if last.Kind == tLParen || last.Kind == tComma {
+			return s.callArgNames(fn)
+		}
+		if last.Kind == tAssign && len(toks) >= 2 && toks[len(toks)-2].Kind == tIdent {
+			if words := s.argWords(fn, toks[len(toks)-2].Text); words != nil {
+				return words
+			}
+		}
+		return s.valueNames()
+	}
+	if first == "pulse" && last.Kind == tAssign && len(toks) == 3 {
+		return append(shapeNames(), s.st.pulseNames()...)
+	}
+	if first == "report" && last.Kind == tIdent && last.Text == "as" {
+		return []string{"markdown", "latex"}
+	}
+	// Find the last clause word of a sweep/describe/import.
+	clause := ""
+	for _, t := range toks {
+		if t.Kind == tIdent && contains([]string{"over", "show", "with"}, t.Text) {
+			clause = t.Text
+		}
+	}
+	afterSep := last.Kind == tComma || (last.Kind == tIdent && contains([]string{"over", "show", "with"}, last.Text))
+	if clause != "" && afterSep {
+		switch clause {
+		case "over":
+			return s.axisNames(toks)
+		case "show":
+			return quantityNames()
+		case "with":
+			if first == "import" {
+				return []string{"dwell"}
+			}
+			if first == "describe" {
+				return []string{"tr"}
+			}
+			return settingNames()
+		}
+	}
+	if clause == "with" && last.Kind == tAssign && len(toks) >= 2 && toks[len(toks)-2].Text == "start" {
+		return []string{"z", "-z", "x", "y"}
+	}
+	if contains([]string{"describe", "sweep", "report", "export"}, first) && (len(toks) == 1 || last.Kind == tComma && clause == "") {
+		return s.st.pulseNames()
+	}
+	if last.Kind == tIdent && (first == "sweep" || first == "describe") && clause == "" {
+		if first == "sweep" {
+			return []string{"over"}
+		}
+		return []string{"with"}
+	}
+	return s.valueNames()
+}
+
+func nucleusNames() []string { return strings.Fields(physics.NucleusNames()) }
+
+func (s *Session) valueNames() []string {
+	var out []string
+	for n, b := range s.st.names {
+		if b.pulse == nil {
+			out = append(out, n)
+		}
+	}
+	return out
+}
+
+// specFor finds the shape row behind a call name: a shape or a pulse to copy.
+func (s *Session) specFor(fn string) *shapeSpec {
+	if sp, ok := lookupShape(fn); ok {
+		return sp
+	}
+	if b, ok := s.st.names[fn]; ok && b.pulse != nil {
+		return b.pulse.Spec
+	}
+	return nil
+}
+
+func (s *Session) callArgNames(fn string) []string {
+	if fn == "train" {
+		return append(append(argNamesOf(trainArgs), shapeNames()...), s.st.pulseNames()...)
+	}
+	if sp := s.specFor(fn); sp != nil {
+		return sp.argNames()
+	}
+	return nil
+}
+
+func (s *Session) argWords(fn, arg string) []string {
+	if fn == "train" {
+		for _, a := range trainArgs {
+			if a.Name == arg {
+				return a.Words
+			}
+		}
+		return nil
+	}
+	if sp := s.specFor(fn); sp != nil {
+		if a, ok := sp.arg(arg); ok && a.Kind == argWord {
+			return a.Words
+		}
+	}
+	return nil
+}
+
+func (s *Session) axisNames(toks []token) []string {
+	out := spinAxisNames()
+	for _, t := range toks[1:] {
+		if t.Kind == tIdent && t.Text == "over" {
+			break
+		}
+		if b, ok := s.st.names[t.Text]; ok && b.pulse != nil && b.pulse.Spec != nil {
+			for _, a := range b.pulse.Spec.allArgs() {
+				if a.Kind != argWord {
+					out = append(out, a.Name)
+				}
+			}
+		}
+	}
+	return out
+}
+
+// Inspect returns the help text for the word at cursor: a statement, shape,
+// argument, quantity, setting, unit or nucleus, or a name defined in the session.
+func (s *Session) Inspect(code string, cursor int) (string, bool) {
+	rs := []rune(code)
+	start, end := wordAt(rs, cursor)
+	if start == end && start > 0 {
+		start, end = wordAt(rs, start-1)
+	}
+	w := string(rs[start:end])
+	if w == "" {
+		return "", false
+	}
+	var parts []string
+	if b, ok := s.st.names[w]; ok {
+		if b.pulse != nil {
+			parts = append(parts, pulseSummary(b.pulse))
+		} else {
+			parts = append(parts, w+" = "+b.val.String())
+		}
+	}
+	if text, ok := wordHelp(w); ok {
+		parts = append(parts, text)
+	}
+	if len(parts) == 0 {
+		return "", false
+	}
+	return strings.Join(parts, "\n\n"), true
+}

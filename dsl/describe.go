@@ -1,0 +1,139 @@
+package dsl
+
+import (
+	"fmt"
+	"math"
+
+	"nutate/display"
+	"nutate/physics/shape"
+)
+
+// energyCaution goes wherever energy or B1rms is shown.
+const energyCaution = "Energy and B1rms are relative, waveform-only estimates, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer."
+
+// measure runs shape.Measure for a pulse with the session's field and the tr given.
+func (ev *evaluator) measure(d *pulseDef, tr float64) (shape.Properties, error) {
+	return shape.Measure(ev.ctx, d.Pulse, shape.MeasureOptions{TR: tr, Field: ev.st.field})
+}
+
+func gammaBarOf(p *shape.Pulse) float64 { return math.Abs(p.Gamma) / (2 * math.Pi) }
+
+func fmtField(b, gammaBar float64) string {
+	return fmt.Sprintf("%s (%s)", Quantity{b, dimField}.format("uT"), Quantity{b * gammaBar, dimFrequency}.format("Hz"))
+}
+
+// energyUnit shows ∫B1² dt in µT²·ms.
+func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
+
+func fmtOpt(v float64, f func(float64) string) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "—"
+	}
+	return f(v)
+}
+
+// describe runs `describe NAME, ... [with tr = ...]`: a waveform plot and a table
+// of properties per pulse.
+func (ev *evaluator) describe(s *DescribeStmt) error {
+	defs, err := ev.pulses(s.Names)
+	if err != nil {
+		return err
+	}
+	set, err := ev.evalSettings(s.With, "tr")
+	if err != nil {
+		return err
+	}
+	for _, d := range defs {
+		if err := ev.checkCtx(); err != nil {
+			return err
+		}
+		pr, err := ev.measure(d, set.tr)
+		if err != nil {
+			return err
+		}
+		ev.emit(waveformBundle(waveformOf(d), propertiesTable(d, pr, set.tr, ev.st.field)))
+	}
+	return nil
+}
+
+// waveformOf gives the display's view of a pulse's samples.
+func waveformOf(d *pulseDef) display.Waveform {
+	p := d.Pulse
+	n := p.Wave.Len()
+	w := display.Waveform{Title: d.Name + " (" + d.Kind + ")", Time: make([]float64, n), Amplitude: make([]float64, n), Phase: make([]float64, n)}
+	t := 0.0
+	for j, b := range p.Wave.B1 {
+		w.Time[j] = t + p.Wave.Dwell[j]/2
+		t += p.Wave.Dwell[j]
+		w.Amplitude[j] = math.Hypot(real(b), imag(b)) * 1e6
+		w.Phase[j] = math.Atan2(imag(b), real(b)) * 180 / math.Pi
+	}
+	if p.Freq != nil {
+		w.Frequency = append([]float64(nil), p.Freq...)
+	}
+	if p.Wave.Gradient != nil {
+		w.Gradient = make([]float64, n)
+		for j, g := range p.Wave.Gradient {
+			w.Gradient[j] = g * 1e3
+		}
+	}
+	return w
+}
+
+// propertiesTable is the table `describe` shows under the waveform.
+func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) display.Table {
+	p := d.Pulse
+	gb := gammaBarOf(p)
+	rows := [][]string{
+		{"shape", d.Kind},
+		{"nucleus", d.Nucleus.Name},
+		{"duration", Quantity{p.Duration(), dimTime}.String()},
+		{"samples", fmt.Sprintf("%d (dwell %s)", p.Wave.Len(), Quantity{p.Duration() / float64(max(1, p.Wave.Len())), dimTime})},
+		{"peak B1", fmtField(p.Peak(), gb)},
+	}
+	if !math.IsNaN(p.Flip) {
+		rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
+	}
+	rows = append(rows, []string{"rotation at centre (simulated)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
+	if p.Role != shape.RoleNone {
+		rows = append(rows, []string{"role", p.Role.String()})
+	}
+	if p.Bandwidth != 0 {
+		rows = append(rows, []string{"bandwidth (design)", Quantity{p.Bandwidth, dimFrequency}.String()})
+	}
+	rows = append(rows,
+		[]string{"bandwidth (FWHM of profile)", fmtOpt(pr.Bandwidth, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
+	)
+	if p.TBW != 0 {
+		rows = append(rows, []string{"TBW", formatNumber(p.TBW)})
+	}
+	rows = append(rows,
+		[]string{"transition (90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
+		[]string{"ripple (pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct)},
+	)
+	if p.Adiabatic {
+		rows = append(rows, []string{"adiabatic threshold", fmtOpt(pr.Threshold, func(v float64) string { return fmtField(v, gb) })})
+	}
+	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
+	if tr > 0 {
+		rows = append(rows, []string{"B1rms at TR " + Quantity{tr, dimTime}.String() + " (relative)", fmtOpt(pr.B1rms, func(v float64) string { return Quantity{v, dimField}.format("uT") })})
+	}
+	if p.Gradient != 0 {
+		rows = append(rows, []string{"gradient", Quantity{p.Gradient, dimGradient}.format("mT/m")})
+		rows = append(rows, []string{"slice thickness", fmtOpt(pr.Thickness, func(v float64) string { return Quantity{v, dimLength}.format("mm") })})
+		if field > 0 {
+			rows = append(rows, []string{"chemical-shift displacement", fmtOpt(pr.ShiftPerPPM, func(v float64) string { return Quantity{v, dimLength}.format("mm") + " per ppm" })})
+		}
+	}
+	if d.Source != "" {
+		rows = append(rows, []string{"imported from", d.Source})
+	}
+	return display.Table{
+		Title:   "pulse " + d.Name,
+		Columns: []display.Column{{Name: "property"}, {Name: "value"}},
+		Rows:    rows,
+		Notes:   []string{energyCaution},
+	}
+}
+
+func pct(v float64) string { return formatNumber(100*v) + " %" }

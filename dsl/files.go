@@ -1,0 +1,298 @@
+package dsl
+
+import (
+	"bufio"
+	"bytes"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"nutate/physics/shape"
+)
+
+// exportMarker starts the comment line of every waveform export; a file that does
+// not start with it is never overwritten.
+const exportMarker = "# nutate waveform export"
+
+// exportColumns is the header row of an export (LANGUAGE.md "Files").
+var exportColumns = []string{"time (s)", "amplitude (T)", "phase (rad)", "frequency offset (Hz)", "gradient (T/m)"}
+
+func (ev *evaluator) path(p string) string {
+	if filepath.IsAbs(p) || ev.sess.dir == "" {
+		return p
+	}
+	return filepath.Join(ev.sess.dir, p)
+}
+
+// export runs `export NAME to "file.csv"`.
+func (ev *evaluator) export(s *ExportStmt) error {
+	d, err := ev.pulseNamed(s.Name)
+	if err != nil {
+		return err
+	}
+	if s.Path == "" {
+		return errAt(s.PathP, "export needs a file name, got \"\"")
+	}
+	path := ev.path(s.Path)
+	if info, err := os.Stat(path); err == nil {
+		if info.IsDir() {
+			return errAt(s.PathP, "%s is a folder; want a file name", s.Path)
+		}
+		f, err := os.Open(path)
+		if err != nil {
+			return errAt(s.PathP, "cannot check %s before overwriting it: %v", s.Path, err)
+		}
+		first, _ := bufio.NewReader(f).ReadString('\n')
+		f.Close()
+		if !strings.HasPrefix(first, exportMarker) {
+			return errAt(s.PathP, "%s exists and is not a waveform export; refusing to overwrite it (choose another name or remove the file)", s.Path)
+		}
+	}
+	var buf bytes.Buffer
+	p := d.Pulse
+	n := p.Wave.Len()
+	dwell := "variable"
+	if uniform(p.Wave.Dwell) {
+		dwell = strconv.FormatFloat(p.Wave.Dwell[0], 'g', -1, 64) + " s"
+	}
+	fmt.Fprintf(&buf, "%s: pulse %s, nucleus %s, duration %s s, dwell %s, samples %d\n", exportMarker, d.Name, d.Nucleus.Name, strconv.FormatFloat(p.Duration(), 'g', -1, 64), dwell, n)
+	buf.WriteString(strings.Join(exportColumns, ",") + "\n")
+	t := 0.0
+	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+	for j, b := range p.Wave.B1 {
+		f, gr := 0.0, 0.0
+		if p.Freq != nil {
+			f = p.Freq[j]
+		}
+		if p.Wave.Gradient != nil {
+			gr = p.Wave.Gradient[j]
+		}
+		fmt.Fprintf(&buf, "%s,%s,%s,%s,%s\n", g(t), g(math.Hypot(real(b), imag(b))), g(math.Atan2(imag(b), real(b))), g(f), g(gr))
+		t += p.Wave.Dwell[j]
+	}
+	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+		return errAt(s.PathP, "cannot write %s: %v", s.Path, err)
+	}
+	ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %d samples, %d columns (%s)", d.Name, s.Path, n, len(exportColumns), strings.Join(exportColumns, ", "))))
+	return nil
+}
+
+func uniform(d []float64) bool {
+	for _, x := range d {
+		if math.Abs(x-d[0]) > 1e-12*d[0] {
+			return false
+		}
+	}
+	return len(d) > 0
+}
+
+// csvColumn describes how an import column maps into shape.Samples.
+type csvColumn struct {
+	key    string // time amplitude phase frequency gradient
+	factor float64
+	hz     bool // amplitude given in Hz (γ̄·B1)
+}
+
+// importPulse runs `import NAME from "file.csv" [with dwell = EXPR]`.
+func (ev *evaluator) importPulse(s *ImportStmt) error {
+	if err := ev.checkRedefine(s.Name, true); err != nil {
+		return err
+	}
+	set, err := ev.evalSettings(s.With, "dwell")
+	if err != nil {
+		return err
+	}
+	data, err := os.ReadFile(ev.path(s.Path))
+	if err != nil {
+		if os.IsNotExist(err) {
+			return errAt(s.PathP, "no file %s (paths are relative to the notebook's folder)", s.Path)
+		}
+		return errAt(s.PathP, "cannot read %s: %v", s.Path, err)
+	}
+	smp, duration, err := readWaveformCSV(s.Path, string(data), ev.st.nucleus.GammaBar)
+	if err != nil {
+		return errAt(s.PathP, "%v", err)
+	}
+	c := shape.NewCommon()
+	if set.dwell > 0 {
+		smp.Dwell = set.dwell
+		smp.Times = nil
+	} else {
+		if len(smp.Times) == 1 && duration == 0 {
+			return errAt(s.PathP, "%s has one sample and no dwell: add `with dwell = ...`", s.Path)
+		}
+		c.Duration = duration
+	}
+	if smp.Times == nil && smp.Dwell == 0 {
+		return errAt(s.PathP, "%s has no time column: add `with dwell = ...`", s.Path)
+	}
+	p, err := shape.FromSamples(smp, c, ev.st.nucleus.Gamma())
+	if err != nil {
+		return errAt(s.PathP, "%s: %v", s.Path, err)
+	}
+	def := &pulseDef{Name: s.Name.Name, Kind: "imported", Pulse: p, Nucleus: ev.st.nucleus, Source: s.Path}
+	ev.st.define(s.Name.Name, &binding{pulse: def})
+	ev.emit(textBundle(pulseSummary(def) + ", from " + s.Path))
+	return nil
+}
+
+// readWaveformCSV reads an export, or a plain two-column time/amplitude file.
+// Comment lines start with #; an export's comment gives the duration. Faults name
+// the row (line of the file) and column.
+func readWaveformCSV(name, text string, gammaBar float64) (shape.Samples, float64, error) {
+	var smp shape.Samples
+	var cols []csvColumn
+	duration := 0.0
+	lines := strings.Split(strings.ReplaceAll(text, "\r\n", "\n"), "\n")
+	rows := 0
+	for li, line := range lines {
+		row := li + 1
+		line = strings.TrimSpace(line)
+		if line == "" {
+			continue
+		}
+		if strings.HasPrefix(line, "#") {
+			if strings.HasPrefix(line, exportMarker) {
+				if i := strings.Index(line, "duration "); i >= 0 {
+					f := strings.Fields(line[i+len("duration "):])
+					if len(f) > 0 {
+						duration, _ = strconv.ParseFloat(f[0], 64)
+					}
+				}
+			}
+			continue
+		}
+		fields := splitCSV(line)
+		if cols == nil {
+			if _, err := strconv.ParseFloat(strings.TrimSpace(fields[0]), 64); err != nil {
+				c, err := headerColumns(name, row, fields)
+				if err != nil {
+					return smp, 0, err
+				}
+				cols = c
+				continue
+			}
+			switch len(fields) {
+			case 2:
+				cols = []csvColumn{{key: "time", factor: 1}, {key: "amplitude", factor: 1}}
+			case 5:
+				cols = []csvColumn{{key: "time", factor: 1}, {key: "amplitude", factor: 1}, {key: "phase", factor: 1}, {key: "frequency", factor: 1}, {key: "gradient", factor: 1}}
+			default:
+				return smp, 0, fmt.Errorf("%s row %d: want 2 columns (time, amplitude) or the 5 of an export without a header, got %d", name, row, len(fields))
+			}
+		}
+		if len(fields) != len(cols) {
+			return smp, 0, fmt.Errorf("%s row %d: got %d columns, want %d", name, row, len(fields), len(cols))
+		}
+		for ci, f := range fields {
+			v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+				return smp, 0, fmt.Errorf("%s row %d, column %d (%s): cannot read %q as a number", name, row, ci+1, cols[ci].key, strings.TrimSpace(f))
+			}
+			v *= cols[ci].factor
+			switch cols[ci].key {
+			case "time":
+				smp.Times = append(smp.Times, v)
+				if k := len(smp.Times); k > 1 && !(v > smp.Times[k-2]) {
+					return smp, 0, fmt.Errorf("%s row %d, column %d (time): times must increase, got %g after %g", name, row, ci+1, v, smp.Times[k-2])
+				}
+			case "amplitude":
+				if cols[ci].hz {
+					v /= math.Abs(gammaBar)
+				}
+				smp.Amplitude = append(smp.Amplitude, v)
+			case "phase":
+				smp.Phase = append(smp.Phase, v)
+			case "frequency":
+				smp.Freq = append(smp.Freq, v)
+			case "gradient":
+				smp.Gradient = append(smp.Gradient, v)
+			}
+		}
+		rows++
+		if rows > 1<<22 {
+			return smp, 0, fmt.Errorf("%s: more than %d samples", name, 1<<22)
+		}
+	}
+	if rows == 0 {
+		return smp, 0, fmt.Errorf("%s has no samples", name)
+	}
+	if smp.Amplitude == nil {
+		return smp, 0, fmt.Errorf("%s has no amplitude column", name)
+	}
+	if allZero(smp.Gradient) {
+		smp.Gradient = nil
+	}
+	if smp.Phase != nil && allZero(smp.Freq) {
+		smp.Freq = nil
+	}
+	return smp, duration, nil
+}
+
+func allZero(v []float64) bool {
+	for _, x := range v {
+		if x != 0 {
+			return false
+		}
+	}
+	return true
+}
+
+func splitCSV(line string) []string {
+	if strings.Contains(line, ",") {
+		return strings.Split(line, ",")
+	}
+	if strings.Contains(line, ";") {
+		return strings.Split(line, ";")
+	}
+	return strings.Fields(line)
+}
+
+// headerColumns reads a header row: names time, amplitude, phase, frequency,
+// gradient, each with an optional unit in parentheses.
+func headerColumns(name string, row int, fields []string) ([]csvColumn, error) {
+	defaults := map[string]string{"time": "s", "amplitude": "T", "phase": "rad", "frequency": "Hz", "gradient": "T/m"}
+	dims := map[string]Dim{"time": dimTime, "amplitude": dimField, "phase": dimAngle, "frequency": dimFrequency, "gradient": dimGradient}
+	var cols []csvColumn
+	seen := map[string]bool{}
+	for ci, f := range fields {
+		f = strings.TrimSpace(strings.Trim(strings.TrimSpace(f), "\""))
+		head, unit := f, ""
+		if i := strings.Index(f, "("); i >= 0 && strings.HasSuffix(f, ")") {
+			head, unit = strings.TrimSpace(f[:i]), strings.TrimSpace(f[i+1:len(f)-1])
+		}
+		key := ""
+		for k := range defaults {
+			if strings.HasPrefix(strings.ToLower(head), k) {
+				key = k
+			}
+		}
+		if key == "" {
+			return nil, fmt.Errorf("%s row %d, column %d: unknown column %q, want time, amplitude, phase, frequency offset or gradient", name, row, ci+1, head)
+		}
+		if seen[key] {
+			return nil, fmt.Errorf("%s row %d, column %d: column %s given twice", name, row, ci+1, key)
+		}
+		seen[key] = true
+		if unit == "" {
+			unit = defaults[key]
+		}
+		u, ok := lookupUnit(unit)
+		c := csvColumn{key: key, factor: u.Factor}
+		switch {
+		case ok && u.Dim == dims[key]:
+		case ok && key == "amplitude" && u.Dim == dimFrequency:
+			c.hz = true
+		default:
+			return nil, fmt.Errorf("%s row %d, column %d: unit %q does not suit %s", name, row, ci+1, unit, key)
+		}
+		cols = append(cols, c)
+	}
+	if !seen["time"] || !seen["amplitude"] {
+		return nil, fmt.Errorf("%s row %d: want at least the columns time and amplitude", name, row)
+	}
+	return cols, nil
+}

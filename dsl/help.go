@@ -1,0 +1,367 @@
+package dsl
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"nutate/physics"
+)
+
+// statementHelp is the syntax and meaning of each statement.
+var statementHelp = []struct{ Name, Syntax, Help string }{
+	{"nucleus", "nucleus NUCLEUS", "set the working nucleus (default 1H): its signed γ scales amplitudes and sets the sense of rotation. Known: " + physics.NucleusNames()},
+	{"field", "field EXPR", "set the main field B0 (e.g. `field 7 T`); needed for ppm"},
+	{"let", "let NAME = EXPR", "name a quantity, e.g. `let te = 20 ms`; `nutate run --set NAME=VALUE` replaces the value"},
+	{"pulse", "pulse NAME = SHAPE(ARG = EXPR, ...)\npulse NAME = OTHER(ARG = EXPR, ...)", "define a pulse from a shape, or as a copy of pulse OTHER with some arguments changed; a redefined pulse replaces the old one"},
+	{"describe", "describe NAME[, NAME...] [with tr = EXPR]", "plot each pulse's waveform (amplitude, phase, frequency, gradient) and list its properties: duration, samples, peak in µT and Hz, flip, bandwidth, TBW, transition, ripple, energy, slice"},
+	{"sweep", "sweep NAME[, NAME...] over AXIS[, AXIS] [show QUANTITY, ...] [with SETTING = EXPR, ...]\nAXIS: KIND FROM to TO (points N | step S)", "simulate the pulses over one axis (curves; several pulses overlay) or two (a map of one quantity, the first axis horizontal). Axes: offset, b1, position, t1, t2, or any argument of the pulse's shape (the pulse is rebuilt at each point)"},
+	{"print", "print EXPR[, EXPR...]", "show values; `EXPR in UNIT` converts (`1 kHz in uT` through the nucleus, `12 ppm in Hz` through the nucleus and field)"},
+	{"export", "export NAME to \"file.csv\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration and dwell. A file that is not a waveform export is never overwritten"},
+	{"import", "import NAME from \"file.csv\" [with dwell = EXPR]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), or a plain two-column time/amplitude file. Paths are relative to the notebook's folder"},
+	{"report", "report NAME[, NAME...] [as markdown | as latex]", "a methods-section table of the pulses: shape, duration, samples, peak in µT and Hz, flip, bandwidth, TBW, energy (with its caution), adiabatic threshold"},
+	{"help", "help [TOPIC]", "topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors, or any statement, shape, argument, quantity or unit name"},
+	{"reset", "reset", "forget every name; nucleus 1H, no field"},
+}
+
+const conventionsHelp = `Conventions
+  Rotating frame at the carrier. dM/dt = γ M × B_eff with B_eff = (B1x, B1y, Δω/γ),
+  Δω = ω(spin) − ω(carrier). Phase 0 puts B1 along +x, so on resonance a 90° pulse of
+  phase 0 takes +z to +y for positive γ. Negative-γ nuclei (3He, 15N, 17O, 129Xe)
+  rotate the other way.
+  Printed amplitudes give both µT and Hz (γ̄B1, γ̄ = γ/2π).
+  Simulation: each sample is an exact rotation (with relaxation, the exact solution of
+  the linear step). Echo is the crushed spin-echo response |β|² of the Cayley–Klein
+  parameters (Pauly et al., IEEE TMI 10:53, 1991).
+  Gyromagnetic ratios: 1H CODATA 2018; others IUPAC, Harris et al., Pure Appl. Chem.
+  73:1795 (2001).
+  Energy and B1rms are relative, waveform-only estimates, never SAR: defer to the
+  scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR
+  safety officer.`
+
+const filesHelp = `Files
+  export NAME to "file.csv" writes a comment line (nucleus, duration, dwell) and a
+  header row: time (s), amplitude (T), phase (rad), frequency offset (Hz),
+  gradient (T/m); one row per sample, time at the sample's start.
+  import NAME from "file.csv" [with dwell = EXPR] reads the same columns (only time
+  and amplitude required; units may be changed in the header, e.g. amplitude (uT)),
+  or a plain two-column time/amplitude file. A malformed file is refused with the
+  row and column of the fault. Paths are relative to the notebook's folder.`
+
+const errorsHelp = `Errors
+  An error names the line and column, repeats the line with a caret under the fault,
+  and says what was expected. Syntax errors are all reported at once (one per line)
+  and nothing runs; at run time the first error stops the cell, earlier outputs stay
+  and the failing statement changes nothing.`
+
+// Help returns the help text for topic ("" for the overview). The texts are those
+// shown by inspection in the notebook and by `nutate help`.
+func Help(topic string) (string, error) {
+	topic = strings.TrimSpace(topic)
+	switch topic {
+	case "":
+		return overviewHelp(), nil
+	case "statements":
+		var b strings.Builder
+		b.WriteString("Statements (one per line; `;` also separates; a line continues while a `(` is open or after `,`)\n")
+		for _, s := range statementHelp {
+			for _, l := range strings.Split(s.Syntax, "\n") {
+				fmt.Fprintf(&b, "  %s\n", l)
+			}
+		}
+		return strings.TrimRight(b.String(), "\n"), nil
+	case "shapes":
+		var b strings.Builder
+		b.WriteString("Shapes (every shape also takes the common arguments: `help arguments`)\n")
+		for _, s := range shapes {
+			fmt.Fprintf(&b, "  %-6s %s\n", s.Name, s.Help)
+		}
+		fmt.Fprintf(&b, "  %-6s %s\n", "train", "pulses played back to back: train(P1, P2 at 90 deg, ..., gap = EXPR)")
+		return strings.TrimRight(b.String(), "\n"), nil
+	case "arguments":
+		var b strings.Builder
+		b.WriteString("Arguments every shape takes (amplitude by exactly one of flip or peak)\n")
+		for _, a := range commonArgs {
+			b.WriteString("  " + argLine(a) + "\n")
+		}
+		return strings.TrimRight(b.String(), "\n"), nil
+	case "quantities":
+		var b strings.Builder
+		b.WriteString("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo; otherwise mx my mz)\n")
+		for _, q := range quantityTable {
+			fmt.Fprintf(&b, "  %-10s %s\n", q.Name, q.Help)
+		}
+		return strings.TrimRight(b.String(), "\n"), nil
+	case "settings":
+		var b strings.Builder
+		b.WriteString("Settings after `with`\n")
+		for _, s := range settingTable {
+			fmt.Fprintf(&b, "  %-7s %s\n", s.Name, s.Help)
+		}
+		return strings.TrimRight(b.String(), "\n"), nil
+	case "axes":
+		var b strings.Builder
+		b.WriteString("Sweep axes: KIND FROM to TO (points N | step S)\n")
+		for _, a := range spinAxes {
+			fmt.Fprintf(&b, "  %-9s %s\n", a.Name, a.Help)
+		}
+		b.WriteString("  or any argument of the pulse's shape (duration, flip, tbw, bandwidth, ...): the pulse is rebuilt at each point and pulse properties can be shown")
+		return b.String(), nil
+	case "units":
+		var b strings.Builder
+		b.WriteString("Units (case-sensitive; a unit may follow a number with or without a space)\n")
+		byDim := map[string][]string{}
+		var order []string
+		for _, u := range units {
+			d := u.Dim.Name()
+			if u.Name == "%" {
+				d = "percent"
+			}
+			if _, ok := byDim[d]; !ok {
+				order = append(order, d)
+			}
+			byDim[d] = append(byDim[d], u.Name)
+		}
+		for _, d := range order {
+			fmt.Fprintf(&b, "  %-15s %s\n", d, strings.Join(byDim[d], " "))
+		}
+		b.WriteString("  Quantities combine with + - * / and parentheses; dimensions are checked.\n")
+		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.")
+		return b.String(), nil
+	case "nuclei":
+		var b strings.Builder
+		b.WriteString("Nuclei (γ/2π)\n")
+		for _, n := range physics.Nuclei() {
+			fmt.Fprintf(&b, "  %-6s %12s MHz/T  %s\n", n.Name, formatNumber(n.GammaBar/1e6), n.Reference)
+		}
+		return strings.TrimRight(b.String(), "\n"), nil
+	case "conventions":
+		return conventionsHelp, nil
+	case "files":
+		return filesHelp, nil
+	case "errors":
+		return errorsHelp, nil
+	}
+	if text, ok := wordHelp(topic); ok {
+		return text, nil
+	}
+	return "", fmt.Errorf("no help for %s%s; topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors", quoteText(topic), suggest(topic, helpWords()))
+}
+
+func overviewHelp() string {
+	var b strings.Builder
+	b.WriteString("Nutate: design and simulate MR RF pulses.\n\n")
+	for _, s := range statementHelp {
+		fmt.Fprintf(&b, "  %-9s %s\n", s.Name, strings.Split(s.Syntax, "\n")[0])
+	}
+	b.WriteString("\nMore: help statements | shapes | arguments | quantities | settings | axes | units | nuclei | conventions | files | errors, or help NAME (e.g. help sinc, help flip).")
+	return b.String()
+}
+
+func argLine(a argSpec) string {
+	var kind string
+	switch a.Kind {
+	case argCount:
+		kind = "whole number"
+	case argWord:
+		kind = strings.Join(a.Words, " | ")
+	default:
+		kind = a.Dim.Name()
+		if a.Dim == dimField {
+			kind = "magnetic field (T units or Hz)"
+		}
+		if a.Dim == dimFrequency {
+			kind = "frequency (Hz or ppm)"
+		}
+	}
+	s := fmt.Sprintf("%-10s %s: %s", a.Name, kind, a.Help)
+	if a.Required {
+		s += " (required)"
+	} else if a.Default != "" {
+		s += " (default " + a.Default + ")"
+	}
+	return s
+}
+
+// wordHelp is the help for a single name: statement, shape, argument, quantity,
+// setting, axis, unit or nucleus. A name with several meanings lists each.
+func wordHelp(w string) (string, bool) {
+	var parts []string
+	for _, s := range statementHelp {
+		if s.Name == w {
+			parts = append(parts, fmt.Sprintf("%s (statement)\n  %s\n  %s", w, strings.ReplaceAll(s.Syntax, "\n", "\n  "), s.Help))
+		}
+	}
+	if w == "train" {
+		var b strings.Builder
+		b.WriteString("train (shape)\n  train(P1, P2 at PHASE, ..., gap = EXPR)\n  pulses played back to back; each element is a pulse name or a shape call, optionally followed by `at PHASE`\n  arguments:\n")
+		for _, a := range trainArgs {
+			b.WriteString("    " + argLine(a) + "\n")
+		}
+		parts = append(parts, strings.TrimRight(b.String(), "\n"))
+	}
+	if s, ok := lookupShape(w); ok {
+		parts = append(parts, shapeHelp(s))
+	}
+	var argShapes []string
+	var argText string
+	for _, s := range shapes {
+		for _, a := range s.Args {
+			if a.Name == w {
+				argShapes = append(argShapes, s.Name)
+				if argText == "" {
+					argText = argLine(a)
+				}
+			}
+		}
+	}
+	for _, a := range commonArgs {
+		if a.Name == w {
+			parts = append(parts, "argument of every shape\n  "+argLine(a))
+		}
+	}
+	if argText != "" {
+		parts = append(parts, "argument of "+strings.Join(argShapes, ", ")+"\n  "+argText)
+	}
+	if q, ok := lookupQuantity(w); ok {
+		kind := "magnetization quantity"
+		if q.Property {
+			kind = "pulse property"
+		}
+		u := q.Unit
+		if u == "" {
+			u = "M0 units"
+			if q.Property {
+				u = "plain number"
+			}
+		}
+		parts = append(parts, fmt.Sprintf("%s (%s for `show`, in %s)\n  %s\n  method: %s", q.Name, kind, unitLabel(u), q.Help, q.Method))
+	}
+	for _, s := range settingTable {
+		if s.Name == w {
+			parts = append(parts, fmt.Sprintf("%s (setting after `with`)\n  %s", w, s.Help))
+		}
+	}
+	for _, a := range spinAxes {
+		if a.Name == w {
+			parts = append(parts, fmt.Sprintf("%s (sweep axis)\n  %s", w, a.Help))
+		}
+	}
+	if u, ok := lookupUnit(w); ok {
+		parts = append(parts, fmt.Sprintf("%s (unit of %s)\n  %s = %s %s", u.Name, u.Dim.Name(), u.Name, formatNumber(u.Factor), baseUnit(u.Dim)))
+	}
+	if n, ok := physics.Lookup(w); ok {
+		parts = append(parts, fmt.Sprintf("%s (nucleus)\n  γ/2π = %s MHz/T (%s)", n.Name, formatNumber(n.GammaBar/1e6), n.Reference))
+	}
+	switch w {
+	case "over", "to", "points", "step", "show", "with":
+		parts = append(parts, "part of `sweep`: "+strings.Split(statementHelp[5].Syntax, "\n")[0])
+	case "in":
+		parts = append(parts, "`EXPR in UNIT` converts a value for display: `1 kHz in uT`, `12 ppm in Hz`")
+	case "at":
+		parts = append(parts, "`at PHASE` after a train element plays it at that phase")
+	case "as":
+		parts = append(parts, "`report ... as markdown` or `as latex`")
+	case "window", "hann", "hamming", "none":
+		if w != "window" {
+			parts = append(parts, w+" (sinc window)\n  Hann α = 0.5, Hamming α = 0.46 in w = α + (1 − α)cos(2πt/T) (common practice)")
+		}
+	case "excite", "invert", "refocus", "saturate":
+		parts = append(parts, w+" (role)\n  default quantity: "+strings.Join(defaultQuantitiesOf(w), ", "))
+	case "linear", "minimum", "maximum":
+		parts = append(parts, w+" (slr design)\n  phase of the underlying filter")
+	}
+	if len(parts) == 0 {
+		return "", false
+	}
+	return strings.Join(parts, "\n\n"), true
+}
+
+func defaultQuantitiesOf(role string) []string {
+	switch role {
+	case "excite":
+		return []string{"mxy", "phase"}
+	case "refocus":
+		return []string{"echo"}
+	}
+	return []string{"mz"}
+}
+
+func baseUnit(d Dim) string {
+	switch d {
+	case dimTime:
+		return "s"
+	case dimFrequency:
+		return "Hz"
+	case dimField:
+		return "T"
+	case dimLength:
+		return "m"
+	case dimAngle:
+		return "rad"
+	case dimPPM:
+		return "ppm"
+	case dimGradient:
+		return "T/m"
+	}
+	return ""
+}
+
+func shapeHelp(s *shapeSpec) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s (shape)\n  pulse NAME = %s(", s.Name, s.Name)
+	var req []string
+	for _, a := range s.allArgs() {
+		if a.Required {
+			req = append(req, a.Name+" = ...")
+		}
+	}
+	req = append(req, "flip = ... | peak = ...", "...")
+	b.WriteString(strings.Join(req, ", ") + ")\n")
+	fmt.Fprintf(&b, "  %s\n  method: %s\n  arguments:\n", s.Help, s.Method)
+	for _, a := range s.Args {
+		b.WriteString("    " + argLine(a) + "\n")
+	}
+	b.WriteString("  and the common ones: " + strings.Join(argNamesOf(commonArgs), ", ") + " (help arguments)")
+	return b.String()
+}
+
+func argNamesOf(list []argSpec) []string {
+	var out []string
+	for _, a := range list {
+		out = append(out, a.Name)
+	}
+	return out
+}
+
+// helpWords lists every word with help, for suggestions and completion.
+func helpWords() []string {
+	set := map[string]bool{}
+	for _, w := range []string{"statements", "shapes", "arguments", "quantities", "settings", "axes", "units", "nuclei", "conventions", "files", "errors", "train"} {
+		set[w] = true
+	}
+	for _, s := range statementHelp {
+		set[s.Name] = true
+	}
+	for _, s := range shapes {
+		set[s.Name] = true
+		for _, a := range s.Args {
+			set[a.Name] = true
+		}
+	}
+	for _, a := range commonArgs {
+		set[a.Name] = true
+	}
+	for _, q := range quantityTable {
+		set[q.Name] = true
+	}
+	for _, s := range settingTable {
+		set[s.Name] = true
+	}
+	var out []string
+	for w := range set {
+		out = append(out, w)
+	}
+	sort.Strings(out)
+	return out
+}

@@ -1,0 +1,62 @@
+package dsl
+
+import "nutate/physics/shape"
+
+// quantitySpec is one `show` quantity.
+type quantitySpec struct {
+	Name     string
+	Property bool   // a pulse property (needs a shape-argument axis) rather than magnetization
+	Unit     string // display unit; "" for magnetization in M0 units
+	Help     string
+	Method   string
+}
+
+// quantityTable lists the `show` quantities (LANGUAGE.md "Quantities").
+var quantityTable = []quantitySpec{
+	{Name: "mx", Help: "x magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
+	{Name: "my", Help: "y magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
+	{Name: "mz", Help: "longitudinal magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
+	{Name: "mxy", Help: "transverse magnitude |Mx + iMy| after the pulse", Method: "exact piecewise-constant Bloch rotation"},
+	{Name: "phase", Unit: "deg", Help: "phase of Mx + iMy after the pulse, atan2(My, Mx)", Method: "exact piecewise-constant Bloch rotation"},
+	{Name: "echo", Help: "crushed spin-echo response of a refocusing pulse, |β|² (its complex value −β²·Mxy* is in the JSON phase)", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
+	{Name: "peak", Property: true, Unit: "uT", Help: "peak B1 of the pulse", Method: "largest |B1| sample"},
+	{Name: "energy", Property: true, Unit: "µT²·ms", Help: "∫B1² dt: a relative, waveform-only estimate (not SAR)", Method: "sum of |B1|²·dwell"},
+	{Name: "b1rms", Property: true, Unit: "uT", Help: "time-averaged B1, √(energy/TR); needs `with tr = ...`; relative, waveform-only", Method: "√(∫B1² dt / TR)"},
+	{Name: "flip", Property: true, Unit: "deg", Help: "nominal on-resonance flip (γ∫B1 dt); for adiabatic pulses and trains the simulated rotation at the centre", Method: "γ∫B1 dt; rotation 2·asin|β| (Pauly et al. 1991)"},
+	{Name: "bandwidth", Property: true, Unit: "Hz", Help: "full width at half maximum of the pulse's own simulated profile", Method: "simulated profile of the role's quantity, half-level crossings"},
+	{Name: "tbw", Property: true, Help: "time-bandwidth product: measured bandwidth × duration", Method: "bandwidth × duration"},
+	{Name: "transition", Property: true, Unit: "Hz", Help: "90 %–10 % transition width of the profile, mean of both edges", Method: "simulated profile"},
+	{Name: "ripple", Property: true, Unit: "%", Help: "pass-band ripple of the profile, relative to its on-band value", Method: "simulated profile"},
+	{Name: "threshold", Property: true, Unit: "uT", Help: "adiabatic threshold: the peak B1 above which the profile meets its target", Method: "B1 scan of simulated profiles"},
+}
+
+func lookupQuantity(name string) (quantitySpec, bool) {
+	for _, q := range quantityTable {
+		if q.Name == name {
+			return q, true
+		}
+	}
+	return quantitySpec{}, false
+}
+
+func quantityNames() []string {
+	var out []string
+	for _, q := range quantityTable {
+		out = append(out, q.Name)
+	}
+	return out
+}
+
+// defaultQuantities by role: excitation mxy and phase, inversion and saturation
+// mz, refocusing echo, anything else mx my mz.
+func defaultQuantities(r shape.Role) []string {
+	switch r {
+	case shape.RoleExcite:
+		return []string{"mxy", "phase"}
+	case shape.RoleInvert, shape.RoleSaturate:
+		return []string{"mz"}
+	case shape.RoleRefocus:
+		return []string{"echo"}
+	}
+	return []string{"mx", "my", "mz"}
+}

@@ -1,0 +1,160 @@
+package dsl
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"nutate/display"
+)
+
+// report runs `report NAME, ... [as markdown | as latex]`: a methods-section table
+// of the pulses.
+func (ev *evaluator) report(s *ReportStmt) error {
+	defs, err := ev.pulses(s.Names)
+	if err != nil {
+		return err
+	}
+	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
+		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth", Unit: "Hz"},
+		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
+	adiabatic := false
+	for _, d := range defs {
+		adiabatic = adiabatic || d.Pulse.Adiabatic
+	}
+	if adiabatic {
+		cols = append(cols, display.Column{Name: "adiabatic threshold", Unit: "µT"})
+	}
+	var rows [][]string
+	for _, d := range defs {
+		if err := ev.checkCtx(); err != nil {
+			return err
+		}
+		pr, err := ev.measure(d, 0)
+		if err != nil {
+			return err
+		}
+		p := d.Pulse
+		gb := gammaBarOf(p)
+		shp := d.Kind
+		if d.Spec != nil {
+			shp = describeShape(d)
+		}
+		flip := "—"
+		if !math.IsNaN(p.Flip) {
+			flip = formatNumber(roundSig(p.Flip*180/math.Pi, 5))
+		} else if !math.IsNaN(pr.Rotation) {
+			flip = formatNumber(roundSig(pr.Rotation*180/math.Pi, 4)) + " (simulated)"
+		}
+		tbw := "—"
+		if !math.IsNaN(pr.Bandwidth) {
+			tbw = formatNumber(roundSig(pr.Bandwidth*p.Duration(), 4))
+		}
+		row := []string{d.Name, shp, formatNumber(roundSig(p.Duration()*1e3, 6)), fmt.Sprint(p.Wave.Len()),
+			formatNumber(roundSig(p.Peak()*1e6, 5)), formatNumber(roundSig(p.Peak()*gb, 5)), flip,
+			fmtOpt(pr.Bandwidth, func(v float64) string { return formatNumber(roundSig(v, 5)) }), tbw,
+			formatNumber(roundSig(p.Energy()*1e15, 5))}
+		if adiabatic {
+			th := "—"
+			if p.Adiabatic {
+				th = fmtOpt(pr.Threshold, func(v float64) string { return formatNumber(roundSig(v*1e6, 4)) })
+			}
+			row = append(row, th)
+		}
+		rows = append(rows, row)
+	}
+	nuc := defs[0].Nucleus.Name
+	context := "nucleus " + nuc
+	if ev.st.field > 0 {
+		context += fmt.Sprintf(", B0 = %s T", formatNumber(ev.st.field))
+	}
+	notes := []string{
+		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW = bandwidth × duration.",
+		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
+	}
+	t := display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}
+	switch {
+	case s.Format == nil:
+		ev.emit(tableBundle(t))
+	case s.Format.Name == "markdown":
+		md := markdownTable(t)
+		ev.emit(display.Bundle{"text/markdown": md, "text/plain": md})
+	default:
+		tex := latexTable(t)
+		ev.emit(display.Bundle{"text/latex": tex, "text/plain": tex})
+	}
+	return nil
+}
+
+// describeShape names the shape with its defining arguments: "sinc, TBW 6, hann".
+func describeShape(d *pulseDef) string {
+	parts := []string{d.Kind}
+	for _, n := range []string{"tbw", "lobes", "window", "order", "design", "cutoff", "beta"} {
+		if a, ok := d.Args[n]; ok {
+			if a.Word != "" {
+				parts = append(parts, a.Word)
+			} else {
+				parts = append(parts, n+" "+a.Val.String())
+			}
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
+func colHead(c display.Column) string {
+	if c.Unit == "" {
+		return c.Name
+	}
+	return c.Name + " (" + c.Unit + ")"
+}
+
+func markdownTable(t display.Table) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "**%s**\n\n", t.Title)
+	var heads, rule []string
+	for _, c := range t.Columns {
+		heads = append(heads, colHead(c))
+		rule = append(rule, "---")
+	}
+	b.WriteString("| " + strings.Join(heads, " | ") + " |\n")
+	b.WriteString("|" + strings.Join(rule, "|") + "|\n")
+	for _, r := range t.Rows {
+		esc := make([]string, len(r))
+		for i, c := range r {
+			esc[i] = strings.ReplaceAll(c, "|", "\\|")
+		}
+		b.WriteString("| " + strings.Join(esc, " | ") + " |\n")
+	}
+	for _, n := range t.Notes {
+		b.WriteString("\n" + strings.Replace(n, "* ", "\\* ", 1) + "\n")
+	}
+	return b.String()
+}
+
+var latexEscaper = strings.NewReplacer(`\`, `\textbackslash{}`, "&", `\&`, "%", `\%`, "$", `\$`, "#", `\#`, "_", `\_`, "{", `\{`, "}", `\}`,
+	"µ", `$\mu$`, "²", `$^2$`, "·", `$\cdot$`, "×", `$\times$`, "∫", `$\int$`, "—", "--", "–", "--")
+
+func latexTable(t display.Table) string {
+	var b strings.Builder
+	b.WriteString("\\begin{table}\n\\centering\n")
+	fmt.Fprintf(&b, "\\caption{%s}\n", latexEscaper.Replace(t.Title))
+	b.WriteString("\\begin{tabular}{" + strings.Repeat("l", len(t.Columns)) + "}\n\\hline\n")
+	var heads []string
+	for _, c := range t.Columns {
+		heads = append(heads, latexEscaper.Replace(colHead(c)))
+	}
+	b.WriteString(strings.Join(heads, " & ") + " \\\\\n\\hline\n")
+	for _, r := range t.Rows {
+		cells := make([]string, len(r))
+		for i, c := range r {
+			cells[i] = latexEscaper.Replace(c)
+		}
+		b.WriteString(strings.Join(cells, " & ") + " \\\\\n")
+	}
+	b.WriteString("\\hline\n\\end{tabular}\n")
+	for _, n := range t.Notes {
+		b.WriteString("\n\\par\\footnotesize " + latexEscaper.Replace(n) + "\n")
+	}
+	b.WriteString("\\end{table}\n")
+	return b.String()
+}

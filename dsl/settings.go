@@ -1,0 +1,142 @@
+package dsl
+
+import (
+	"math"
+	"strings"
+)
+
+// settingSpec is one `with` setting.
+type settingSpec struct {
+	Name string
+	Help string
+}
+
+// settingTable lists the `with` settings (LANGUAGE.md "Settings").
+var settingTable = []settingSpec{
+	{"offset", "frequency offset of the spins from the carrier (Hz, or ppm once `field` is set); default 0"},
+	{"b1", "B1 scale: a factor (0.9), a percent (90%), or an absolute peak (T units or Hz); default 1"},
+	{"t1", "longitudinal relaxation time during the pulse; default none"},
+	{"t2", "transverse relaxation time during the pulse; default none"},
+	{"start", "initial magnetization: z (default), -z, x, y"},
+	{"tr", "repetition time, for the time-averaged B1 (b1rms)"},
+	{"dwell", "sample length of an imported waveform (import only)"},
+}
+
+func settingNames() []string {
+	var out []string
+	for _, s := range settingTable {
+		if s.Name != "dwell" {
+			out = append(out, s.Name)
+		}
+	}
+	return out
+}
+
+// settings are the evaluated `with` settings.
+type settings struct {
+	offset  float64 // Hz
+	b1      *Value  // raw, resolved per pulse by b1Factor
+	t1, t2  float64 // s; 0: none
+	start   [3]float64
+	tr      float64 // s; 0: none
+	dwell   float64
+	given   map[string]Pos
+	b1Label string
+}
+
+// evalSettings reads `with` settings; allowed limits which are accepted here.
+func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings, error) {
+	s := &settings{start: [3]float64{0, 0, 1}, given: map[string]Pos{}}
+	for _, st := range list {
+		name := st.Name.Name
+		if !contains(allowed, name) {
+			all := []string{}
+			for _, x := range settingTable {
+				all = append(all, x.Name)
+			}
+			if contains(all, name) {
+				return nil, errAt(st.Name.P, "setting %s does not apply here; want %s", name, strings.Join(allowed, ", "))
+			}
+			return nil, errAt(st.Name.P, "unknown setting %s%s (settings: %s)", quoteText(name), suggest(name, allowed), strings.Join(allowed, ", "))
+		}
+		if _, dup := s.given[name]; dup {
+			return nil, errAt(st.Name.P, "setting %s given twice", name)
+		}
+		s.given[name] = st.Value.Position()
+		p := st.Value.Position()
+		if name == "start" {
+			w, _ := wordOf(st.Value)
+			dirs := map[string][3]float64{"z": {0, 0, 1}, "-z": {0, 0, -1}, "x": {1, 0, 0}, "y": {0, 1, 0}, "-x": {-1, 0, 0}, "-y": {0, -1, 0}}
+			d, ok := dirs[w]
+			if !ok {
+				return nil, errAt(p, "start expects z, -z, x or y, got %s%s", exprText(st.Value, w), suggest(w, []string{"z", "-z", "x", "y"}))
+			}
+			s.start = d
+			continue
+		}
+		v, err := ev.evalExpr(st.Value)
+		if err != nil {
+			return nil, err
+		}
+		switch name {
+		case "offset":
+			if s.offset, err = ev.want(v, dimFrequency, "offset", p); err != nil {
+				return nil, err
+			}
+		case "b1":
+			if v.Q.D != dimNumber && v.Q.D != dimField && v.Q.D != dimFrequency {
+				return nil, errAt(p, "b1 expects a factor, a percent or a peak B1 (T units or Hz), got %s", describeValue(v))
+			}
+			if !(v.Q.V >= 0) || math.IsInf(v.Q.V, 0) {
+				return nil, errAt(p, "b1 must not be negative, got %s", v)
+			}
+			vv := v
+			s.b1 = &vv
+		case "t1", "t2", "tr", "dwell":
+			x, err := ev.want(v, dimTime, name, p)
+			if err != nil {
+				return nil, err
+			}
+			if !(x > 0) || math.IsInf(x, 0) {
+				return nil, errAt(p, "%s must be positive, got %s", name, v)
+			}
+			switch name {
+			case "t1":
+				s.t1 = x
+			case "t2":
+				s.t2 = x
+			case "tr":
+				s.tr = x
+			default:
+				s.dwell = x
+			}
+		}
+	}
+	return s, nil
+}
+
+func exprText(e Expr, w string) string {
+	if w != "" {
+		return quoteText(w)
+	}
+	return "a value"
+}
+
+// b1Factor resolves a b1 value for a pulse of the given peak (T) and γ̄ (Hz/T).
+func b1Factor(v Value, peak, gammaBar float64) (float64, bool) {
+	switch v.Q.D {
+	case dimNumber:
+		return v.Q.V, true
+	case dimField:
+		if peak == 0 {
+			return 0, false
+		}
+		return v.Q.V / peak, true
+	case dimFrequency:
+		if peak == 0 {
+			return 0, false
+		}
+		return v.Q.V / math.Abs(gammaBar) / peak, true
+	}
+	return 0, false
+}

@@ -1,0 +1,524 @@
+package dsl
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"nutate/physics"
+	"nutate/physics/shape"
+)
+
+// argKind says how an argument's value is read.
+type argKind int
+
+const (
+	argQuantity argKind = iota // a quantity of Dim (with the trade's equivalents)
+	argCount                   // a positive whole number
+	argWord                    // one of Words
+)
+
+// argSpec is one argument of a shape: its dimension, default, help text, and the
+// group of arguments it excludes (flip/peak, samples/dwell, gradient/thickness...).
+type argSpec struct {
+	Name     string
+	Kind     argKind
+	Dim      Dim
+	Words    []string
+	Default  string // as shown in help; "" when there is none
+	Help     string
+	Group    string // arguments of one group exclude each other
+	Required bool
+}
+
+// shapeSpec is one row of the shape table.
+type shapeSpec struct {
+	Name   string
+	Help   string
+	Method string // the source of the method
+	Args   []argSpec
+	Build  func(b *builder) (*shape.Pulse, error)
+}
+
+// commonArgs are taken by every shape (LANGUAGE.md "Shapes").
+var commonArgs = []argSpec{
+	{Name: "duration", Dim: dimTime, Required: true, Help: "pulse length"},
+	{Name: "flip", Dim: dimAngle, Group: "amplitude", Help: "nominal on-resonance flip angle; sets the amplitude (give flip or peak)"},
+	{Name: "peak", Dim: dimField, Group: "amplitude", Help: "peak B1, in tesla units or in Hz (γ̄·B1); sets the amplitude (give flip or peak)"},
+	{Name: "phase", Dim: dimAngle, Default: "0 deg", Help: "constant RF phase; 0 puts B1 along +x"},
+	{Name: "center", Dim: dimFrequency, Default: "0 Hz", Help: "carrier offset of the pulse's band, in Hz or ppm (ppm needs `field`)"},
+	{Name: "samples", Kind: argCount, Group: "sampling", Default: "the shape's own", Help: "number of waveform samples"},
+	{Name: "dwell", Dim: dimTime, Group: "sampling", Help: "sample length; must divide the duration"},
+	{Name: "gradient", Dim: dimGradient, Group: "slice", Help: "slice-select gradient played with the pulse"},
+	{Name: "thickness", Dim: dimLength, Group: "slice", Help: "slice thickness; derives the gradient from the bandwidth (thickness = BW/(γ̄·G))"},
+	{Name: "role", Kind: argWord, Words: []string{"excite", "invert", "refocus", "saturate"}, Help: "what the pulse is for; sets the default `show` quantity and the target of measured properties"},
+}
+
+// shapes is the shape table: one explicit row per shape in LANGUAGE.md.
+var shapes = []*shapeSpec{
+	{
+		Name:   "rect",
+		Help:   "constant amplitude (hard pulse); one sample is exact",
+		Method: "rectangular pulse; flip = 360°·γ̄·B1·T (common practice)",
+		Build:  func(b *builder) (*shape.Pulse, error) { return shape.Rect(b.common(), b.gamma) },
+	},
+	{
+		Name:   "sinc",
+		Help:   "windowed sinc; tbw zero crossings over the duration",
+		Method: "windowed sinc, bandwidth ≈ tbw/duration (Bernstein, King & Zhou, Handbook of MRI Pulse Sequences, 2004)",
+		Args: []argSpec{
+			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "zeros", Help: "time-bandwidth product (= number of zero crossings)"},
+			{Name: "lobes", Kind: argCount, Group: "zeros", Help: "number of lobes, main lobe included (tbw = lobes + 1, common practice)"},
+			{Name: "window", Kind: argWord, Words: shape.WindowNames(), Default: "none", Help: "taper: Hann (α = 0.5) or Hamming (α = 0.46)"},
+		},
+		Build: func(b *builder) (*shape.Pulse, error) {
+			w, _ := shape.ParseWindow(b.word("window", "none"))
+			if l, ok := b.vals["lobes"]; ok {
+				return shape.SincLobes(b.common(), b.gamma, int(l), w)
+			}
+			return shape.Sinc(b.common(), b.gamma, b.num("tbw", 4), w)
+		},
+	},
+	{
+		Name:   "gauss",
+		Help:   "Gaussian envelope, width by tbw or by the relative amplitude at the ends",
+		Method: "Gaussian; the spectrum of exp(−t²/2σ²) has FWHM √(2 ln 2)/(πσ)",
+		Args: []argSpec{
+			{Name: "tbw", Dim: dimNumber, Default: "cutoff 1.1 % (T = 6σ)", Group: "width", Help: "time-bandwidth product (small-tip FWHM × duration)"},
+			{Name: "cutoff", Dim: dimNumber, Group: "width", Help: "relative amplitude at the ends, 0 to 1 (fraction or %)"},
+		},
+		Build: func(b *builder) (*shape.Pulse, error) {
+			tbw, cut := b.num("tbw", 0), b.num("cutoff", 0)
+			if tbw == 0 && cut == 0 {
+				cut = math.Exp(-4.5) // T = 6σ (common practice)
+			}
+			return shape.Gauss(b.common(), b.gamma, tbw, cut)
+		},
+	},
+	{
+		Name:   "slr",
+		Help:   "Shinnar–Le Roux design for a role, with pass and stop ripples",
+		Method: "Shinnar–Le Roux (Pauly et al., IEEE TMI 10:53, 1991); filter length from D∞ (Herrmann, Rabiner & Chan 1973)",
+		Args: []argSpec{
+			{Name: "tbw", Dim: dimNumber, Default: "4", Help: "time-bandwidth product"},
+			{Name: "pass", Dim: dimNumber, Default: "1%", Help: "pass-band ripple of the profile (fraction or %)"},
+			{Name: "stop", Dim: dimNumber, Default: "1%", Help: "stop-band ripple of the profile (fraction or %)"},
+			{Name: "design", Kind: argWord, Words: []string{"linear", "minimum", "maximum"}, Default: "linear", Help: "phase of the underlying filter"},
+		},
+		Build: buildSLR,
+	},
+	{
+		Name:   "hsec",
+		Help:   "adiabatic hyperbolic secant HSn; amplitude by peak",
+		Method: "Silver, Joseph & Hoult, Phys. Rev. A 31:2753 (1985); HSn: Tannús & Garwood, J. Magn. Reson. A 120:133 (1996)",
+		Args: []argSpec{
+			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
+			{Name: "order", Kind: argCount, Default: "1", Help: "n of HSn"},
+			{Name: "beta", Dim: dimNumber, Default: "5.3", Help: "truncation: the amplitude falls to sech(beta) at the ends"},
+		},
+		Build: func(b *builder) (*shape.Pulse, error) {
+			return shape.Hsec(b.common(), b.gamma, int(b.num("order", 1)), b.num("bandwidth", 0), b.num("beta", 0))
+		},
+	},
+	{
+		Name:   "chirp",
+		Help:   "linear frequency sweep at constant amplitude, edges smoothed; amplitude by peak",
+		Method: "linear sweep; adiabatic passage (Landau–Zener, 1932)",
+		Args: []argSpec{
+			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
+			{Name: "ramp", Dim: dimNumber, Default: "0", Help: "fraction of the duration smoothed at each end (0 to 0.5, or %)"},
+		},
+		Build: func(b *builder) (*shape.Pulse, error) {
+			return shape.Chirp(b.common(), b.gamma, b.num("bandwidth", 0), b.num("ramp", 0))
+		},
+	},
+	{
+		Name:   "wurst",
+		Help:   "wideband uniform-rate smooth-truncation sweep; amplitude by peak",
+		Method: "WURST (Kupce & Freeman, J. Magn. Reson. A 115:273, 1995)",
+		Args: []argSpec{
+			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
+			{Name: "order", Dim: dimNumber, Default: "20", Help: "n of the amplitude 1 − |sin(πt/T)|ⁿ"},
+		},
+		Build: func(b *builder) (*shape.Pulse, error) {
+			return shape.Wurst(b.common(), b.gamma, b.num("bandwidth", 0), b.num("order", 0))
+		},
+	},
+	{
+		Name:   "bir4",
+		Help:   "B1-insensitive rotation by flip; amplitude by peak",
+		Method: "BIR-4 (Garwood & Ke, J. Magn. Reson. 94:511, 1991)",
+		Args: []argSpec{
+			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
+			{Name: "lambda", Dim: dimNumber, Default: "10", Help: "tanh amplitude modulation constant λ"},
+			{Name: "kappa", Dim: dimAngle, Default: "atan(20) = 87.14 deg", Help: "tan frequency modulation constant κ"},
+		},
+		Build: func(b *builder) (*shape.Pulse, error) {
+			return shape.Bir4(b.common(), b.gamma, b.num("bandwidth", 0), b.num("lambda", 0), b.num("kappa", 0))
+		},
+	},
+}
+
+// lookupShape finds a shape row.
+func lookupShape(name string) (*shapeSpec, bool) {
+	for _, s := range shapes {
+		if s.Name == name {
+			return s, true
+		}
+	}
+	return nil, false
+}
+
+func shapeNames() []string {
+	out := []string{}
+	for _, s := range shapes {
+		out = append(out, s.Name)
+	}
+	return append(out, "train")
+}
+
+// allArgs lists the shape's own arguments then the common ones.
+func (s *shapeSpec) allArgs() []argSpec { return append(append([]argSpec{}, s.Args...), commonArgs...) }
+
+func (s *shapeSpec) arg(name string) (argSpec, bool) {
+	for _, a := range s.allArgs() {
+		if a.Name == name {
+			return a, true
+		}
+	}
+	return argSpec{}, false
+}
+
+func (s *shapeSpec) argNames() []string {
+	var out []string
+	for _, a := range s.allArgs() {
+		out = append(out, a.Name)
+	}
+	return out
+}
+
+// argVal is an argument as given: its expression (for positions and messages) and
+// its value, or its word.
+type argVal struct {
+	Pos  Pos
+	Val  Value
+	Word string
+}
+
+// pulseDef is a named pulse: how it was made (so that a copy or a sweep can change
+// an argument and rebuild it) and the built waveform.
+type pulseDef struct {
+	Name    string
+	Spec    *shapeSpec // nil for a train or an import
+	Kind    string     // shape name, "train" or "imported"
+	Args    map[string]argVal
+	Elems   []trainElem
+	Pulse   *shape.Pulse
+	Nucleus physics.Nucleus
+	Source  string // imported file
+}
+
+// builder hands a shape's Build function its resolved arguments in base units.
+type builder struct {
+	vals  map[string]float64
+	words map[string]string
+	gamma float64
+}
+
+func (b *builder) num(name string, def float64) float64 {
+	if v, ok := b.vals[name]; ok {
+		return v
+	}
+	return def
+}
+
+func (b *builder) word(name, def string) string {
+	if w, ok := b.words[name]; ok {
+		return w
+	}
+	return def
+}
+
+func (b *builder) common() shape.Common {
+	c := shape.NewCommon()
+	c.Duration = b.num("duration", math.NaN())
+	c.Flip = b.num("flip", math.NaN())
+	c.Peak = b.num("peak", math.NaN())
+	c.Phase = b.num("phase", 0)
+	c.Center = b.num("center", 0)
+	c.Samples = int(b.num("samples", 0))
+	c.Dwell = b.num("dwell", math.NaN())
+	c.Gradient = b.num("gradient", 0)
+	c.Thickness = b.num("thickness", 0)
+	c.Role, _ = shape.ParseRole(b.word("role", ""))
+	return c
+}
+
+// evalArgs evaluates a call's named arguments against the shape row.
+func (ev *evaluator) evalArgs(spec *shapeSpec, c *Call) (map[string]argVal, error) {
+	out := map[string]argVal{}
+	for _, a := range c.Args {
+		if a.Name == nil {
+			return nil, errAt(a.Value.Position(), "%s takes named arguments (NAME = VALUE), got a positional one", spec.Name)
+		}
+		name := a.Name.Name
+		as, ok := spec.arg(name)
+		if !ok {
+			return nil, errAt(a.Name.P, "%s has no argument %s%s", spec.Name, quoteText(name), suggest(name, spec.argNames()))
+		}
+		if _, dup := out[name]; dup {
+			return nil, errAt(a.Name.P, "argument %s given twice", name)
+		}
+		if as.Group != "" {
+			for other, ov := range out {
+				if os, _ := spec.arg(other); os.Group == as.Group {
+					_ = ov
+					return nil, errAt(a.Name.P, "give %s or %s, not both", other, name)
+				}
+			}
+		}
+		v, err := ev.evalArg(as, a.Value, a.Name.P)
+		if err != nil {
+			return nil, err
+		}
+		out[name] = v
+	}
+	return out, nil
+}
+
+// evalArg evaluates one argument value.
+func (ev *evaluator) evalArg(as argSpec, e Expr, namePos Pos) (argVal, error) {
+	p := e.Position()
+	if as.Kind == argWord {
+		w, ok := wordOf(e)
+		if !ok || !contains(as.Words, w) {
+			got := "a value"
+			if ok {
+				got = quoteText(w)
+			} else if v, err := ev.evalExpr(e); err == nil {
+				got = describeValue(v)
+			}
+			return argVal{}, errAt(p, "%s expects one of %s, got %s%s", as.Name, strings.Join(as.Words, ", "), got, suggest(w, as.Words))
+		}
+		return argVal{Pos: p, Word: w}, nil
+	}
+	if id, ok := e.(*Ident); ok {
+		if _, known := ev.st.names[id.Name]; !known && as.Kind == argQuantity {
+			return argVal{}, errAt(p, "unknown name %s%s", quoteText(id.Name), suggest(id.Name, ev.st.nameList()))
+		}
+	}
+	v, err := ev.evalExpr(e)
+	if err != nil {
+		return argVal{}, err
+	}
+	if err := ev.checkArgValue(as, v, p); err != nil {
+		return argVal{}, err
+	}
+	return argVal{Pos: p, Val: v}, nil
+}
+
+func (ev *evaluator) checkArgValue(as argSpec, v Value, p Pos) error {
+	switch as.Kind {
+	case argCount:
+		if v.Q.D != dimNumber {
+			return errAt(p, "%s expects a whole number, got %s", as.Name, describeValue(v))
+		}
+		if v.Q.V != math.Trunc(v.Q.V) || v.Q.V < 1 || v.Q.V > 1<<24 {
+			return errAt(p, "%s expects a whole number from 1 to %d, got %s", as.Name, 1<<24, v)
+		}
+		return nil
+	}
+	_, err := ev.want(v, as.Dim, as.Name, p)
+	return err
+}
+
+// resolve turns evaluated arguments into base-unit numbers for the builder.
+func (ev *evaluator) resolve(spec *shapeSpec, args map[string]argVal) (*builder, error) {
+	b := &builder{vals: map[string]float64{}, words: map[string]string{}, gamma: ev.st.nucleus.Gamma()}
+	for name, a := range args {
+		as, _ := spec.arg(name)
+		switch as.Kind {
+		case argWord:
+			b.words[name] = a.Word
+		case argCount:
+			b.vals[name] = a.Val.Q.V
+		default:
+			x, err := ev.want(a.Val, as.Dim, name, a.Pos)
+			if err != nil {
+				return nil, err
+			}
+			b.vals[name] = x
+		}
+	}
+	return b, nil
+}
+
+// build makes the pulse of a shape row with the given arguments; callPos places
+// errors that belong to no single argument.
+func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos) (*shape.Pulse, error) {
+	for _, as := range spec.allArgs() {
+		if _, ok := args[as.Name]; as.Required && !ok {
+			return nil, errAt(callPos, "%s needs %s (%s)", spec.Name, as.Name, as.Help)
+		}
+	}
+	b, err := ev.resolve(spec, args)
+	if err != nil {
+		return nil, err
+	}
+	p, err := spec.Build(b)
+	if err != nil {
+		return nil, errAt(ev.blame(err, args, callPos), "%s", strings.TrimPrefix(err.Error(), spec.Name+": "))
+	}
+	return p, nil
+}
+
+// blame places a shape's error at the argument it names, if any.
+func (ev *evaluator) blame(err error, args map[string]argVal, def Pos) Pos {
+	msg := err.Error()
+	names := make([]string, 0, len(args))
+	for n := range args {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	best, bestAt := def, len(msg)+1
+	for _, n := range names {
+		if i := indexWord(msg, n); i >= 0 && i < bestAt {
+			best, bestAt = args[n].Pos, i
+		}
+	}
+	return best
+}
+
+func indexWord(s, w string) int {
+	for i := 0; i+len(w) <= len(s); i++ {
+		if s[i:i+len(w)] != w {
+			continue
+		}
+		if (i == 0 || !isWordByte(s[i-1])) && (i+len(w) == len(s) || !isWordByte(s[i+len(w)])) {
+			return i
+		}
+	}
+	return -1
+}
+
+func isWordByte(c byte) bool { return c == '_' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' }
+
+func contains(list []string, w string) bool {
+	for _, x := range list {
+		if x == w {
+			return true
+		}
+	}
+	return false
+}
+
+// pulse runs `pulse NAME = SHAPE(...)` or `pulse NAME = OTHER(...)`.
+func (ev *evaluator) pulse(s *PulseStmt) error {
+	if err := ev.checkRedefine(s.Name, true); err != nil {
+		return err
+	}
+	def, err := ev.definePulse(s.Name.Name, s.Call)
+	if err != nil {
+		return err
+	}
+	if err := ev.checkCtx(); err != nil {
+		return err
+	}
+	ev.st.define(s.Name.Name, &binding{pulse: def})
+	ev.emit(textBundle(pulseSummary(def)))
+	return nil
+}
+
+// definePulse builds a pulse from a shape call, a copy of a named pulse, or a train.
+func (ev *evaluator) definePulse(name string, c *Call) (*pulseDef, error) {
+	fn := c.Fun.Name
+	if fn == "train" {
+		return ev.train(name, c)
+	}
+	if spec, ok := lookupShape(fn); ok {
+		args, err := ev.evalArgs(spec, c)
+		if err != nil {
+			return nil, err
+		}
+		p, err := ev.build(spec, args, c.Fun.P)
+		if err != nil {
+			return nil, err
+		}
+		return &pulseDef{Name: name, Spec: spec, Kind: spec.Name, Args: args, Pulse: p, Nucleus: ev.st.nucleus}, nil
+	}
+	if b, ok := ev.st.names[fn]; ok && b.pulse != nil {
+		return ev.copyPulse(name, b.pulse, c)
+	}
+	if b, ok := ev.st.names[fn]; ok {
+		return nil, errAt(c.Fun.P, "%s is a quantity (%s), not a shape or a pulse", quoteText(fn), b.val)
+	}
+	cands := append(shapeNames(), ev.st.pulseNames()...)
+	return nil, errAt(c.Fun.P, "unknown shape or pulse %s%s (shapes: %s)", quoteText(fn), suggest(fn, cands), strings.Join(shapeNames(), ", "))
+}
+
+// copyPulse rebuilds pulse old with some arguments changed; an argument replaces
+// the others of its group (peak replaces flip).
+func (ev *evaluator) copyPulse(name string, old *pulseDef, c *Call) (*pulseDef, error) {
+	if old.Spec == nil {
+		if len(c.Args) > 0 {
+			return nil, errAt(c.Args[0].Value.Position(), "%s is %s pulse; its arguments cannot be changed", quoteText(old.Name), map[bool]string{true: "a train", false: "an imported"}[old.Kind == "train"])
+		}
+		cp := *old
+		cp.Name = name
+		return &cp, nil
+	}
+	changes, err := ev.evalArgs(old.Spec, c)
+	if err != nil {
+		return nil, err
+	}
+	args := mergeArgs(old.Spec, old.Args, changes)
+	p, err := ev.build(old.Spec, args, c.Fun.P)
+	if err != nil {
+		return nil, err
+	}
+	return &pulseDef{Name: name, Spec: old.Spec, Kind: old.Kind, Args: args, Pulse: p, Nucleus: ev.st.nucleus}, nil
+}
+
+// mergeArgs applies changes over base; a changed argument drops the others of its
+// group.
+func mergeArgs(spec *shapeSpec, base, changes map[string]argVal) map[string]argVal {
+	out := map[string]argVal{}
+	for n, v := range base {
+		out[n] = v
+	}
+	for n, v := range changes {
+		as, _ := spec.arg(n)
+		if as.Group != "" {
+			for m := range out {
+				if ms, _ := spec.arg(m); ms.Group == as.Group {
+					delete(out, m)
+				}
+			}
+		}
+		out[n] = v
+	}
+	return out
+}
+
+// pulseSummary is the one-line answer to a pulse statement.
+func pulseSummary(d *pulseDef) string {
+	p := d.Pulse
+	gb := math.Abs(p.Gamma) / (2 * math.Pi)
+	parts := []string{
+		fmt.Sprintf("pulse %s: %s", d.Name, d.Kind),
+		Quantity{p.Duration(), dimTime}.String(),
+		fmt.Sprintf("%d samples", p.Wave.Len()),
+		fmt.Sprintf("peak %s (%s)", Quantity{p.Peak(), dimField}.format("uT"), Quantity{p.Peak() * gb, dimFrequency}.format("Hz")),
+	}
+	if !math.IsNaN(p.Flip) && !p.Adiabatic {
+		parts = append(parts, "flip "+Quantity{p.Flip, dimAngle}.format("deg"))
+	}
+	if p.Bandwidth != 0 {
+		parts = append(parts, "bandwidth "+Quantity{p.Bandwidth, dimFrequency}.String())
+	}
+	if p.Role != shape.RoleNone {
+		parts = append(parts, "role "+p.Role.String())
+	}
+	return strings.Join(parts, ", ")
+}

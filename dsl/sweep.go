@@ -1,0 +1,941 @@
+package dsl
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"sync"
+
+	"nutate/display"
+	"nutate/physics"
+	"nutate/physics/shape"
+)
+
+// Limits of a sweep. The step budget is the engine's; the others keep outputs to a
+// size a notebook can hold.
+const (
+	maxAxisPoints  = 100_000
+	maxMapCells    = 1_000_000
+	maxSweepBuilds = 10_000
+	progressSteps  = 1e7 // sweeps longer than this report progress
+	measureCost    = 2000 // isochromat-steps per sample for measured properties (estimate)
+)
+
+// spinAxes are the axes that vary the spins rather than the pulse.
+var spinAxes = []struct{ Name, Help string }{
+	{"offset", "frequency offset from the pulse carrier (Hz units, or ppm once `field` is set; ppm axes run high to low)"},
+	{"b1", "B1 scale: a factor (0.5 to 1.5), a percent (50% to 150%), or an absolute peak (0 uT to 25 uT, or Hz)"},
+	{"position", "position along the slice gradient (length units; the pulse needs a gradient or thickness)"},
+	{"t1", "longitudinal relaxation time during the pulse"},
+	{"t2", "transverse relaxation time during the pulse"},
+}
+
+func spinAxisNames() []string {
+	var out []string
+	for _, a := range spinAxes {
+		out = append(out, a.Name)
+	}
+	return out
+}
+
+// sweepAxis is an evaluated axis.
+type sweepAxis struct {
+	kind    string
+	pos     Pos
+	spin    bool
+	arg     argSpec
+	from    Value
+	step    float64 // base units per point
+	n       int
+	unit    string // display unit ("" plain, "%" percent)
+	reverse bool
+}
+
+func (a *sweepAxis) value(i int) Value {
+	v := a.from
+	v.Q.V = a.from.Q.V + a.step*float64(i)
+	return v
+}
+
+// display returns the axis values in its display unit.
+func (a *sweepAxis) display() []float64 {
+	f := 1.0
+	if u, ok := lookupUnit(a.unit); ok {
+		f = u.Factor
+	}
+	out := make([]float64, a.n)
+	for i := range out {
+		out[i] = a.value(i).Q.V / f
+	}
+	return out
+}
+
+func (a *sweepAxis) label() string { return a.kind }
+
+// evalAxis evaluates `KIND FROM to TO (points N | step S)` against the pulses.
+func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
+	a := &sweepAxis{kind: ax.Kind.Name, pos: ax.Kind.P}
+	from, err := ev.evalExpr(ax.From)
+	if err != nil {
+		return nil, err
+	}
+	to, err := ev.evalExpr(ax.To)
+	if err != nil {
+		return nil, err
+	}
+	if contains(spinAxisNames(), a.kind) {
+		a.spin = true
+		var ok bool
+		switch a.kind {
+		case "offset":
+			ok = from.Q.D == dimFrequency || from.Q.D == dimPPM
+			if ok && from.Q.D == dimPPM && ev.st.field == 0 {
+				return nil, errAt(ax.From.Position(), "an offset in ppm needs the main field: set it first with `field 3 T`")
+			}
+		case "b1":
+			ok = from.Q.D == dimNumber || from.Q.D == dimField || from.Q.D == dimFrequency
+		case "position":
+			ok = from.Q.D == dimLength
+		case "t1", "t2":
+			ok = from.Q.D == dimTime
+		}
+		if !ok {
+			want := map[string]string{"offset": "a frequency (Hz or ppm)", "b1": "a factor, a percent or a peak B1 (T units or Hz)", "position": "a length", "t1": "a time", "t2": "a time"}[a.kind]
+			return nil, errAt(ax.From.Position(), "%s axis expects %s, got %s", a.kind, want, describeValue(from))
+		}
+	} else {
+		found := false
+		for _, d := range defs {
+			if d.Spec == nil {
+				return nil, errAt(ax.Kind.P, "%s is %s pulse; only spin axes (%s) apply to it", quoteText(d.Name), map[bool]string{true: "a train", false: "an imported"}[d.Kind == "train"], strings.Join(spinAxisNames(), ", "))
+			}
+			as, ok := d.Spec.arg(a.kind)
+			if !ok {
+				cands := append(spinAxisNames(), d.Spec.argNames()...)
+				return nil, errAt(ax.Kind.P, "unknown axis %s for %s pulse %s%s (axes: %s, or an argument of the shape)", quoteText(a.kind), d.Kind, d.Name, suggest(a.kind, cands), strings.Join(spinAxisNames(), ", "))
+			}
+			if as.Kind == argWord {
+				return nil, errAt(ax.Kind.P, "%s takes a word (%s) and cannot be swept", a.kind, strings.Join(as.Words, ", "))
+			}
+			a.arg, found = as, true
+		}
+		if !found {
+			return nil, errAt(ax.Kind.P, "unknown axis %s", quoteText(a.kind))
+		}
+		if err := ev.checkArgValue(a.arg, from, ax.From.Position()); err != nil {
+			return nil, err
+		}
+	}
+	if to.Q.D != from.Q.D {
+		return nil, errAt(ax.To.Position(), "%s axis runs from %s to %s: want the same kind of quantity at both ends", a.kind, describeValue(from), describeValue(to))
+	}
+	if a.arg.Kind == argQuantity && !a.spin {
+		if err := ev.checkArgValue(a.arg, to, ax.To.Position()); err != nil {
+			return nil, err
+		}
+	}
+	span := to.Q.V - from.Q.V
+	if ax.Points != nil {
+		pv, err := ev.evalExpr(ax.Points)
+		if err != nil {
+			return nil, err
+		}
+		if pv.Q.D != dimNumber || pv.Q.V != math.Trunc(pv.Q.V) || pv.Q.V < 1 {
+			return nil, errAt(ax.Points.Position(), "points expects a whole number of at least 1, got %s", describeValue(pv))
+		}
+		if pv.Q.V > maxAxisPoints {
+			return nil, errAt(ax.Points.Position(), "points %s exceeds the limit of %d per axis", pv, maxAxisPoints)
+		}
+		a.n = int(pv.Q.V)
+		if a.n > 1 {
+			a.step = span / float64(a.n-1)
+		} else if span != 0 {
+			return nil, errAt(ax.Points.Position(), "one point cannot span %s to %s; want points of at least 2", from, to)
+		}
+	} else {
+		sv, err := ev.evalExpr(ax.Step)
+		if err != nil {
+			return nil, err
+		}
+		if sv.Q.D != from.Q.D {
+			return nil, errAt(ax.Step.Position(), "step expects %s like the axis ends, got %s", from.Q.D.Noun(), describeValue(sv))
+		}
+		if sv.Q.V == 0 || (span != 0 && math.Signbit(sv.Q.V) != math.Signbit(span)) {
+			return nil, errAt(ax.Step.Position(), "step %s does not lead from %s to %s", sv, from, to)
+		}
+		k := math.Floor(span/sv.Q.V + 1e-9)
+		if k+1 > maxAxisPoints {
+			return nil, errAt(ax.Step.Position(), "step %s gives %g points, over the limit of %d per axis", sv, k+1, maxAxisPoints)
+		}
+		a.n = int(k) + 1
+		a.step = sv.Q.V
+	}
+	a.from = from
+	a.unit = from.Unit
+	if a.unit == "" {
+		a.unit = to.Unit
+	}
+	if a.unit == "" || a.unit != "%" && from.Q.D == dimNumber {
+		a.unit = autoUnit(Quantity{math.Max(math.Abs(from.Q.V), math.Abs(to.Q.V)), from.Q.D})
+	}
+	if a.arg.Kind == argCount {
+		for i := 0; i < a.n; i++ {
+			if v := a.value(i).Q.V; math.Abs(v-math.Round(v)) > 1e-9 {
+				return nil, errAt(ax.Kind.P, "%s takes whole numbers, but the axis reaches %s; choose points or step so every value is whole", a.kind, formatNumber(v))
+			}
+		}
+	}
+	a.reverse = from.Q.D == dimPPM
+	return a, nil
+}
+
+// curveData is one quantity of one pulse over the sweep, indexed i0*n1 + i1.
+type curveData struct {
+	pulse    string
+	quantity quantitySpec
+	values   []float64
+	role     shape.Role
+}
+
+// sweep runs `sweep NAMES over AXES [show ...] [with ...]`.
+func (ev *evaluator) sweep(s *SweepStmt) error {
+	defs, err := ev.pulses(s.Names)
+	if err != nil {
+		return err
+	}
+	set, err := ev.evalSettings(s.With, "offset", "b1", "t1", "t2", "start", "tr")
+	if err != nil {
+		return err
+	}
+	var axes []*sweepAxis
+	for i, ax := range s.Axes {
+		a, err := ev.evalAxis(ax, defs)
+		if err != nil {
+			return err
+		}
+		for _, b := range axes {
+			if b.kind == a.kind {
+				return errAt(ax.Kind.P, "axis %s given twice", a.kind)
+			}
+		}
+		if _, fixed := set.given[a.kind]; fixed && a.spin {
+			return errAt(set.given[a.kind], "%s is both an axis and a setting", a.kind)
+		}
+		_ = i
+		axes = append(axes, a)
+	}
+	anyShapeAxis := false
+	for _, a := range axes {
+		if !a.spin {
+			anyShapeAxis = true
+		}
+	}
+	// Quantities.
+	var qs []quantitySpec
+	if len(s.Show) == 0 {
+		for _, n := range defaultQuantities(defs[0].Pulse.Role) {
+			q, _ := lookupQuantity(n)
+			qs = append(qs, q)
+		}
+		if len(axes) == 2 {
+			qs = qs[:1]
+		}
+	}
+	for _, id := range s.Show {
+		q, ok := lookupQuantity(id.Name)
+		if !ok {
+			return errAt(id.P, "unknown quantity %s%s (quantities: %s)", quoteText(id.Name), suggest(id.Name, quantityNames()), strings.Join(quantityNames(), ", "))
+		}
+		if q.Property && !anyShapeAxis {
+			return errAt(id.P, "%s is a property of the pulse and does not change over %s; sweep a shape argument (duration, flip, ...) to show it", q.Name, axes[0].kind)
+		}
+		if q.Name == "b1rms" && set.tr == 0 {
+			return errAt(id.P, "b1rms needs the repetition time: add `with tr = ...`")
+		}
+		if q.Name == "echo" && (set.t1 > 0 || set.t2 > 0 || axisNamed(axes, "t1") || axisNamed(axes, "t2")) {
+			return errAt(id.P, "echo is defined without relaxation; drop t1 and t2")
+		}
+		for _, p := range qs {
+			if p.Name == q.Name {
+				return errAt(id.P, "quantity %s listed twice", q.Name)
+			}
+		}
+		qs = append(qs, q)
+	}
+	if len(axes) == 2 && len(qs) > 1 {
+		return errAt(s.Show[1].P, "a map over two axes shows one quantity, got %d", len(qs))
+	}
+	n0, n1 := axes[0].n, 1
+	if len(axes) == 2 {
+		n1 = axes[1].n
+		if n0*n1 > maxMapCells {
+			return errAt(s.Axes[1].Kind.P, "map of %d × %d = %d points exceeds the limit of %d", n0, n1, n0*n1, maxMapCells)
+		}
+	}
+	for _, d := range defs {
+		if axisNamed(axes, "position") && d.Pulse.Wave.Gradient == nil && !anyShapeAxis {
+			return errAt(axisPos(axes, "position"), "a position axis needs a slice gradient, but %s has none (give gradient or thickness)", d.Name)
+		}
+	}
+	for _, q := range qs {
+		if q.Name == "echo" {
+			if axisNamed(axes, "t1") || axisNamed(axes, "t2") {
+				return errAt(axisPos(axes, "t1", "t2"), "echo is defined without relaxation; sweep t1 or t2 with mz, mxy ...")
+			}
+		}
+	}
+	runs, total, err := ev.planSweep(defs, axes, qs, set)
+	if err != nil {
+		return err
+	}
+	if total > physics.DefaultMaxSteps {
+		return errAt(s.P, "sweep needs %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+	}
+	curves, err := ev.runSweep(runs, axes, qs, set, n0, n1, total, "sweep "+joinNames(s.Names))
+	if err != nil {
+		return err
+	}
+	title := "sweep " + joinNames(s.Names) + " over " + axes[0].kind
+	if len(axes) == 2 {
+		title += " and " + axes[1].kind
+		for _, c := range curves {
+			ev.emit(mapOutput(title, axes, c, n0, n1))
+		}
+		return nil
+	}
+	ev.emit(profileOutput(title, axes[0], curves, defs, ev.st))
+	return nil
+}
+
+func joinNames(ids []Ident) string {
+	var s []string
+	for _, id := range ids {
+		s = append(s, id.Name)
+	}
+	return strings.Join(s, ", ")
+}
+
+func axisNamed(axes []*sweepAxis, names ...string) bool {
+	for _, a := range axes {
+		if contains(names, a.kind) {
+			return true
+		}
+	}
+	return false
+}
+
+func axisPos(axes []*sweepAxis, names ...string) Pos {
+	for _, a := range axes {
+		if contains(names, a.kind) {
+			return a.pos
+		}
+	}
+	return axes[0].pos
+}
+
+// sweepRun is one built pulse and the cells of the sweep it fills.
+type sweepRun struct {
+	def   *pulseDef
+	pi    int          // index of the pulse
+	p     *shape.Pulse // built for this point of the shape axes
+	fixed map[int]int  // axis index → point index fixed by this build
+	spins int          // isochromats simulated
+}
+
+// planSweep builds every pulse the sweep needs (one per point of the shape axes)
+// and counts the isochromat-steps.
+func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantitySpec, set *settings) ([]*sweepRun, float64, error) {
+	var shapeIdx, spinIdx []int
+	for i, a := range axes {
+		if a.spin {
+			spinIdx = append(spinIdx, i)
+		} else {
+			shapeIdx = append(shapeIdx, i)
+		}
+	}
+	spins := 1
+	for _, i := range spinIdx {
+		spins *= axes[i].n
+	}
+	needMag, needMeasure := false, false
+	for _, q := range qs {
+		if !q.Property {
+			needMag = true
+		}
+		switch q.Name {
+		case "bandwidth", "tbw", "transition", "ripple", "threshold", "b1rms", "flip":
+			needMeasure = true
+		}
+	}
+	builds := 1
+	for _, i := range shapeIdx {
+		builds *= axes[i].n
+	}
+	if builds*len(defs) > maxSweepBuilds {
+		return nil, 0, errAt(axes[shapeIdx[0]].pos, "sweep rebuilds the pulse %d times, over the limit of %d", builds*len(defs), maxSweepBuilds)
+	}
+	var runs []*sweepRun
+	total := 0.0
+	for pi, d := range defs {
+		for b := 0; b < builds; b++ {
+			if err := ev.checkCtx(); err != nil {
+				return nil, 0, err
+			}
+			r := &sweepRun{def: d, pi: pi, p: d.Pulse, fixed: map[int]int{}, spins: spins}
+			if len(shapeIdx) > 0 {
+				changes := map[string]argVal{}
+				rem := b
+				for k := len(shapeIdx) - 1; k >= 0; k-- {
+					ai := shapeIdx[k]
+					idx := rem % axes[ai].n
+					rem /= axes[ai].n
+					r.fixed[ai] = idx
+					changes[axes[ai].kind] = argVal{Pos: axes[ai].pos, Val: axes[ai].value(idx)}
+				}
+				p, err := ev.build(d.Spec, mergeArgs(d.Spec, d.Args, changes), axes[shapeIdx[0]].pos)
+				if err != nil {
+					var pe *posError
+					msg := err.Error()
+					if e, ok := err.(*posError); ok {
+						pe = e
+						msg = pe.msg
+					}
+					return nil, 0, errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+				}
+				r.p = p
+			}
+			if axisNamed(axes, "position") && r.p.Wave.Gradient == nil {
+				return nil, 0, errAt(axisPos(axes, "position"), "a position axis needs a slice gradient, but %s has none (give gradient or thickness)", d.Name)
+			}
+			n := float64(r.p.Wave.Len())
+			if needMag {
+				total += float64(spins) * n
+			}
+			if needMeasure {
+				total += measureCost * n
+			}
+			if total > physics.DefaultMaxSteps {
+				return nil, 0, errAt(axes[0].pos, "sweep needs more than %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+			}
+			runs = append(runs, r)
+		}
+	}
+	return runs, total, nil
+}
+
+func pointText(axes []*sweepAxis, fixed map[int]int) string {
+	var parts []string
+	for i, a := range axes {
+		if idx, ok := fixed[i]; ok {
+			parts = append(parts, a.kind+" = "+a.value(idx).String())
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
+// progress aggregates the engine's progress across the simulations of a sweep and
+// passes it on in whole percents.
+type progress struct {
+	mu    sync.Mutex
+	sink  func(string, int, int)
+	task  string
+	total float64
+	base  float64
+	last  int
+}
+
+func (p *progress) report(done float64) {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	pct := int(100 * (p.base + done) / p.total)
+	if pct > p.last && pct <= 100 {
+		p.last = pct
+		p.sink(p.task, pct, 100)
+	}
+}
+
+// runSweep simulates and measures every run and fills the curves.
+func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, n0, n1 int, total float64, task string) ([]*curveData, error) {
+	var prog *progress
+	if total > progressSteps && ev.sink.Progress != nil {
+		prog = &progress{sink: ev.sink.Progress, task: task, total: total, last: -1}
+		prog.report(0)
+	}
+	npulse := 0
+	for _, r := range runs {
+		npulse = max(npulse, r.pi+1)
+	}
+	curves := make([]*curveData, 0, npulse*len(qs))
+	byPulse := make([][]*curveData, npulse)
+	for _, r := range runs {
+		if byPulse[r.pi] != nil {
+			continue
+		}
+		for _, q := range qs {
+			c := &curveData{pulse: r.def.Name, quantity: q, values: make([]float64, n0*n1), role: r.def.Pulse.Role}
+			byPulse[r.pi] = append(byPulse[r.pi], c)
+			curves = append(curves, c)
+		}
+	}
+	for _, r := range runs {
+		if err := ev.checkCtx(); err != nil {
+			return nil, err
+		}
+		if err := ev.runOne(r, axes, qs, set, n1, byPulse[r.pi], prog); err != nil {
+			return nil, err
+		}
+	}
+	if prog != nil && prog.last < 100 {
+		prog.sink(prog.task, 100, 100)
+	}
+	return curves, nil
+}
+
+// runOne fills the cells of one build.
+func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, n1 int, curves []*curveData, prog *progress) error {
+	p := r.p
+	gb := gammaBarOf(p)
+	var spinAx []int
+	for i, a := range axes {
+		if a.spin {
+			spinAx = append(spinAx, i)
+		}
+	}
+	cell := func(k int) int {
+		idx := [2]int{}
+		for ai, v := range r.fixed {
+			idx[ai] = v
+		}
+		rem := k
+		for j := len(spinAx) - 1; j >= 0; j-- {
+			ai := spinAx[j]
+			idx[ai] = rem % axes[ai].n
+			rem /= axes[ai].n
+		}
+		return idx[0]*n1 + idx[1]
+	}
+	needMag, needMeasure := false, false
+	for _, q := range qs {
+		if !q.Property {
+			needMag = true
+		}
+		switch q.Name {
+		case "bandwidth", "tbw", "transition", "ripple", "threshold", "b1rms":
+			needMeasure = true
+		case "flip":
+			needMeasure = needMeasure || math.IsNaN(p.Flip)
+		}
+	}
+	var res *physics.Result
+	if needMag {
+		iso, err := ev.isochromats(r, axes, spinAx, set, gb)
+		if err != nil {
+			return err
+		}
+		opt := physics.Options{Start: set.start}
+		base := 0.0
+		if prog != nil {
+			prog.mu.Lock()
+			base = prog.base
+			prog.mu.Unlock()
+			n := float64(p.Wave.Len())
+			opt.Progress = func(done, total int) { prog.report(float64(done) * n) }
+		}
+		res, err = physics.Simulate(ev.ctx, &p.Wave, p.Gamma, iso, opt)
+		if err != nil {
+			if ev.ctx.Err() != nil {
+				return ev.ctx.Err()
+			}
+			return errAt(axes[0].pos, "simulating %s: %v", r.def.Name, err)
+		}
+		if prog != nil {
+			prog.mu.Lock()
+			prog.base = base + float64(r.spins)*float64(p.Wave.Len())
+			prog.mu.Unlock()
+		}
+	}
+	var props shape.Properties
+	if needMeasure {
+		var err error
+		props, err = shape.Measure(ev.ctx, p, shape.MeasureOptions{TR: set.tr, Field: ev.st.field})
+		if err != nil {
+			if ev.ctx.Err() != nil {
+				return ev.ctx.Err()
+			}
+			return errAt(axes[0].pos, "measuring %s at %s: %v", r.def.Name, pointText(axes, r.fixed), err)
+		}
+		if prog != nil {
+			prog.mu.Lock()
+			prog.base += measureCost * float64(p.Wave.Len())
+			prog.mu.Unlock()
+			prog.report(0)
+		}
+	}
+	for qi, q := range qs {
+		c := curves[qi]
+		for k := 0; k < r.spins; k++ {
+			var v float64
+			switch q.Name {
+			case "mx":
+				v = res.Mx[k]
+			case "my":
+				v = res.My[k]
+			case "mz":
+				v = res.Mz[k]
+			case "mxy":
+				v = math.Hypot(res.Mx[k], res.My[k])
+			case "phase":
+				v = math.Atan2(res.My[k], res.Mx[k]) * 180 / math.Pi
+			case "echo":
+				if res.Beta == nil {
+					return errAt(axes[0].pos, "echo is defined without relaxation; drop t1 and t2")
+				}
+				b := res.Beta[k]
+				v = real(b)*real(b) + imag(b)*imag(b)
+			case "peak":
+				v = p.Peak() * 1e6
+			case "energy":
+				v = p.Energy() * 1e15
+			case "b1rms":
+				v = props.B1rms * 1e6
+			case "flip":
+				v = p.Flip
+				if math.IsNaN(v) {
+					v = props.Rotation
+				}
+				v *= 180 / math.Pi
+			case "bandwidth":
+				v = props.Bandwidth
+			case "tbw":
+				v = props.Bandwidth * p.Duration()
+			case "transition":
+				v = props.Transition
+			case "ripple":
+				v = props.PassRipple * 100
+			case "threshold":
+				v = props.Threshold * 1e6
+			}
+			c.values[cell(k)] = v
+		}
+	}
+	return nil
+}
+
+// isochromats sets up the spins of one build: the spin axes as a grid (first axis
+// slowest) and the fixed settings elsewhere.
+func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, set *settings, gb float64) (*physics.Isochromats, error) {
+	n := r.spins
+	iso := &physics.Isochromats{}
+	fill := func(v float64) []float64 {
+		a := make([]float64, n)
+		for i := range a {
+			a[i] = v
+		}
+		return a
+	}
+	if set.offset != 0 {
+		iso.Offset = fill(set.offset)
+	}
+	if set.b1 != nil {
+		f, ok := b1Factor(*set.b1, r.p.Peak(), gb)
+		if !ok {
+			return nil, errAt(set.given["b1"], "b1 %s is an absolute peak, but %s has zero amplitude", set.b1, r.def.Name)
+		}
+		iso.B1Scale = fill(f)
+	}
+	if set.t1 > 0 {
+		iso.T1 = fill(set.t1)
+	}
+	if set.t2 > 0 {
+		iso.T2 = fill(set.t2)
+	}
+	stride := n
+	for _, ai := range spinAx {
+		a := axes[ai]
+		stride /= a.n
+		vals := make([]float64, a.n)
+		for i := range vals {
+			v := a.value(i)
+			switch a.kind {
+			case "offset":
+				if v.Q.D == dimPPM {
+					vals[i] = v.Q.V * 1e-6 * gb * ev.st.field
+				} else {
+					vals[i] = v.Q.V
+				}
+			case "b1":
+				f, ok := b1Factor(v, r.p.Peak(), gb)
+				if !ok {
+					return nil, errAt(a.pos, "b1 axis in absolute units, but %s has zero amplitude", r.def.Name)
+				}
+				vals[i] = f
+			default:
+				vals[i] = v.Q.V
+			}
+		}
+		arr := make([]float64, n)
+		for k := range arr {
+			arr[k] = vals[(k/stride)%a.n]
+		}
+		switch a.kind {
+		case "offset":
+			iso.Offset = arr
+		case "b1":
+			iso.B1Scale = arr
+		case "position":
+			iso.Position = arr
+		case "t1":
+			iso.T1 = arr
+		case "t2":
+			iso.T2 = arr
+		}
+	}
+	_ = fmt.Sprint
+	return iso, nil
+}
+
+// jsonFloats encodes NaN as null.
+func jsonFloats(v []float64) []any {
+	out := make([]any, len(v))
+	for i, x := range v {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			out[i] = nil
+		} else {
+			out[i] = x
+		}
+	}
+	return out
+}
+
+func axisJSON(a *sweepAxis) map[string]any {
+	return map[string]any{"name": a.kind, "unit": a.unit, "values": jsonFloats(a.display()), "reverse": a.reverse}
+}
+
+// profileOutput draws the curves of a one-axis sweep with its summary.
+func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state) display.Bundle {
+	x := a.display()
+	prof := display.Profile{
+		Title: title,
+		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse},
+	}
+	var jc []map[string]any
+	for _, c := range curves {
+		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Unit: unitLabel(c.quantity.Unit), Y: c.values})
+		jc = append(jc, map[string]any{"pulse": c.pulse, "quantity": c.quantity.Name, "unit": unitLabel(c.quantity.Unit), "values": jsonFloats(c.values)})
+	}
+	prof.Marks = bandMarks(a, defs, st)
+	prof.Summary = summaryTable(title, a, x, curves)
+	data := map[string]any{"kind": "profile", "title": title, "axes": []any{axisJSON(a)}, "curves": jc}
+	return profileBundle(prof, data)
+}
+
+// bandMarks marks the design band edges of each pulse on offset and position axes.
+func bandMarks(a *sweepAxis, defs []*pulseDef, st *state) []display.Mark {
+	var marks []display.Mark
+	for _, d := range defs {
+		p := d.Pulse
+		if p.Bandwidth == 0 {
+			continue
+		}
+		gb := gammaBarOf(p)
+		for _, side := range []float64{-1, 1} {
+			f := p.Center + side*p.Bandwidth/2
+			var x float64
+			switch {
+			case a.kind == "offset" && a.from.Q.D == dimPPM:
+				x = f / (gb * st.field * 1e-6)
+			case a.kind == "offset":
+				u, _ := lookupUnit(a.unit)
+				x = f / u.Factor
+			case a.kind == "position" && p.Gradient != 0:
+				u, _ := lookupUnit(a.unit)
+				x = f / (gb * p.Gradient) / u.Factor
+			default:
+				continue
+			}
+			marks = append(marks, display.Mark{X: x, Label: d.Name + " band edge"})
+		}
+	}
+	return marks
+}
+
+func unitLabel(u string) string {
+	switch u {
+	case "uT":
+		return "µT"
+	case "us":
+		return "µs"
+	case "um":
+		return "µm"
+	}
+	return u
+}
+
+// summaryTable lists up to 50 points row by row; longer curves are summarized by
+// their features.
+func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData) display.Table {
+	if len(x) <= 50 {
+		t := display.Table{Title: title, Columns: []display.Column{{Name: a.kind, Unit: unitLabel(a.unit)}}}
+		for _, c := range curves {
+			name := c.quantity.Name
+			if len(uniquePulses(curves)) > 1 {
+				name = c.pulse + " " + name
+			}
+			t.Columns = append(t.Columns, display.Column{Name: name, Unit: unitLabel(c.quantity.Unit)})
+		}
+		for i := range x {
+			row := []string{formatNumber(x[i])}
+			for _, c := range curves {
+				row = append(row, fmtCell(c.values[i]))
+			}
+			t.Rows = append(t.Rows, row)
+		}
+		t.Notes = energyNote(curves)
+		return t
+	}
+	t := display.Table{
+		Title: title + " (features; the data is in the JSON output and `export`)",
+		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
+			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple"}, {Name: "stop ripple"}},
+	}
+	for _, c := range curves {
+		f := curveFeatures(x, c.values, c.quantity.Name == "phase")
+		t.Rows = append(t.Rows, []string{c.pulse, c.quantity.Name,
+			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
+			fmtCellOpt(f.width), f.crossings, fmtCellOpt(f.passRipple), fmtCellOpt(f.stopRipple)})
+	}
+	t.Notes = append([]string{"width at half: distance between the half-level crossings around the main peak or dip; ripples are peak-to-peak inside the central half of that band and the largest excursion from the baseline outside it."}, energyNote(curves)...)
+	return t
+}
+
+func energyNote(curves []*curveData) []string {
+	for _, c := range curves {
+		if c.quantity.Name == "energy" || c.quantity.Name == "b1rms" {
+			return []string{energyCaution}
+		}
+	}
+	return nil
+}
+
+func uniquePulses(curves []*curveData) []string {
+	var out []string
+	for _, c := range curves {
+		if !contains(out, c.pulse) {
+			out = append(out, c.pulse)
+		}
+	}
+	return out
+}
+
+func fmtCell(v float64) string {
+	if math.IsNaN(v) {
+		return "—"
+	}
+	return fmt.Sprintf("%.4g", v)
+}
+
+func fmtCellOpt(v float64) string {
+	if math.IsNaN(v) {
+		return "—"
+	}
+	return formatNumber(roundSig(v, 5))
+}
+
+func roundSig(v float64, sig int) float64 {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
+	}
+	e := math.Pow(10, float64(sig-1)-math.Floor(math.Log10(math.Abs(v))))
+	return math.Round(v*e) / e
+}
+
+// mapOutput draws one quantity of one pulse over two axes.
+func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) display.Bundle {
+	// Z[iy][ix] with the first axis horizontal.
+	z := make([][]float64, n1)
+	for iy := range z {
+		z[iy] = make([]float64, n0)
+		for ix := range z[iy] {
+			z[iy][ix] = c.values[ix*n1+iy]
+		}
+	}
+	m := display.Map{
+		Title:    title + ": " + c.pulse + " " + c.quantity.Name,
+		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse},
+		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse},
+		Pulse:    c.pulse,
+		Quantity: c.quantity.Name,
+		Unit:     unitLabel(c.quantity.Unit),
+		Z:        z,
+	}
+	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
+	if ok {
+		m.Contour, m.HasContour = level, true
+	}
+	lo, hi, loAt, hiAt := math.Inf(1), math.Inf(-1), 0, 0
+	met := 0
+	for i, v := range c.values {
+		if v < lo {
+			lo, loAt = v, i
+		}
+		if v > hi {
+			hi, hiAt = v, i
+		}
+		if ok && cmp(v) {
+			met++
+		}
+	}
+	at := func(i int) string {
+		return axes[0].value(i/n1).String() + ", " + axes[1].value(i%n1).String()
+	}
+	rows := [][]string{
+		{"points", fmt.Sprintf("%d × %d", n0, n1)},
+		{"min", fmtCell(lo) + " at " + at(loAt)},
+		{"max", fmtCell(hi) + " at " + at(hiAt)},
+	}
+	if ok {
+		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(len(c.values)), 4)) + " % of the map"})
+	}
+	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: energyNote([]*curveData{c})}
+	data := map[string]any{"kind": "map", "title": m.Title, "x": axisJSON(axes[0]), "y": axisJSON(axes[1]),
+		"pulse": c.pulse, "quantity": c.quantity.Name, "unit": unitLabel(c.quantity.Unit), "z": zJSON(z)}
+	return mapBundle(m, data)
+}
+
+func zJSON(z [][]float64) []any {
+	out := make([]any, len(z))
+	for i, r := range z {
+		out[i] = jsonFloats(r)
+	}
+	return out
+}
+
+// roleTarget is the level a role's profile must reach (the targets of
+// shape.Measure's threshold): invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9, refocus
+// |β|² ≥ 0.9, saturate |Mz| ≤ 0.1.
+func roleTarget(r shape.Role, q string) (float64, func(float64) bool, bool) {
+	switch {
+	case r == shape.RoleInvert && q == "mz":
+		return -0.9, func(v float64) bool { return v <= -0.9 }, true
+	case r == shape.RoleExcite && q == "mxy":
+		return 0.9, func(v float64) bool { return v >= 0.9 }, true
+	case r == shape.RoleRefocus && q == "echo":
+		return 0.9, func(v float64) bool { return v >= 0.9 }, true
+	case r == shape.RoleSaturate && q == "mz":
+		return 0.1, func(v float64) bool { return math.Abs(v) <= 0.1 }, true
+	}
+	return 0, nil, false
+}
+
+func targetText(r shape.Role, level float64) string {
+	switch r {
+	case shape.RoleInvert:
+		return "≤ −0.9"
+	case shape.RoleSaturate:
+		return "within ±0.1"
+	}
+	return "≥ 0.9"
+}

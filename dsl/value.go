@@ -1,0 +1,173 @@
+package dsl
+
+import (
+	"math"
+	"strings"
+)
+
+// Value is a quantity with the unit it was written or converted in, kept for
+// display ("3 kHz" stays "3 kHz" in messages).
+type Value struct {
+	Q    Quantity
+	Unit string
+}
+
+func (v Value) String() string {
+	u := v.Unit
+	if u != "" {
+		if unit, ok := lookupUnit(u); !ok || unit.Dim != v.Q.D {
+			u = ""
+		}
+	}
+	if u == "%" || (u == "" && v.Q.D == dimNumber) {
+		if u == "%" {
+			return v.Q.format("%")
+		}
+	}
+	return v.Q.format(u)
+}
+
+// describeValue names a value and its dimension for messages: "3 kHz (a frequency)".
+func describeValue(v Value) string {
+	if v.Q.D == dimNumber {
+		return v.String() + " (a plain number)"
+	}
+	return v.String() + " (" + v.Q.D.Noun() + ")"
+}
+
+// evalExpr computes an expression to a value. Names resolve to `let` quantities.
+func (ev *evaluator) evalExpr(e Expr) (Value, error) {
+	switch x := e.(type) {
+	case *Number:
+		if x.Unit == nil {
+			return Value{Q: Quantity{x.Value, dimNumber}}, nil
+		}
+		u, ok := lookupUnit(x.Unit.Name)
+		if !ok {
+			return Value{}, errAt(x.Unit.P, "unknown unit %s%s", quoteText(x.Unit.Name), suggest(x.Unit.Name, unitNames()))
+		}
+		return Value{Q: Quantity{x.Value * u.Factor, u.Dim}, Unit: u.Name}, nil
+	case *Ident:
+		b, ok := ev.st.names[x.Name]
+		if !ok {
+			return Value{}, errAt(x.P, "unknown name %s%s", quoteText(x.Name), suggest(x.Name, ev.st.nameList()))
+		}
+		if b.pulse != nil {
+			return Value{}, errAt(x.P, "%s is a pulse, not a quantity", quoteText(x.Name))
+		}
+		return b.val, nil
+	case *Unary:
+		v, err := ev.evalExpr(x.X)
+		if err != nil {
+			return v, err
+		}
+		if x.Op == tMinus {
+			v.Q.V = -v.Q.V
+		}
+		return v, nil
+	case *Binary:
+		a, err := ev.evalExpr(x.X)
+		if err != nil {
+			return a, err
+		}
+		b, err := ev.evalExpr(x.Y)
+		if err != nil {
+			return b, err
+		}
+		switch x.Op {
+		case tPlus, tMinus:
+			if a.Q.D != b.Q.D {
+				verb := "add"
+				if x.Op == tMinus {
+					verb = "subtract"
+				}
+				return Value{}, errAt(x.P, "cannot %s %s and %s", verb, describeValue(a), describeValue(b))
+			}
+			r := a
+			if x.Op == tPlus {
+				r.Q.V = a.Q.V + b.Q.V
+			} else {
+				r.Q.V = a.Q.V - b.Q.V
+			}
+			if r.Unit == "%" && b.Unit != "%" {
+				r.Unit = ""
+			}
+			return r, nil
+		case tStar:
+			r := Value{Q: Quantity{a.Q.V * b.Q.V, a.Q.D.mul(b.Q.D)}}
+			r.Unit = productUnit(a, b)
+			return r, checkFinite(x.P, r)
+		case tSlash:
+			if b.Q.V == 0 {
+				return Value{}, errAt(x.P, "division by zero")
+			}
+			r := Value{Q: Quantity{a.Q.V / b.Q.V, a.Q.D.div(b.Q.D)}}
+			if b.Q.D == dimNumber && a.Unit != "%" {
+				r.Unit = a.Unit
+			}
+			return r, checkFinite(x.P, r)
+		}
+	case *Convert:
+		v, err := ev.evalExpr(x.X)
+		if err != nil {
+			return v, err
+		}
+		u, ok := lookupUnit(x.Unit.Name)
+		if !ok {
+			return Value{}, errAt(x.Unit.P, "unknown unit %s%s", quoteText(x.Unit.Name), suggest(x.Unit.Name, unitNames()))
+		}
+		q, err := convert(v.Q, u.Dim, ev.st.nucleus.GammaBar, ev.st.field, ev.st.nucleus.Name)
+		if err != nil {
+			return Value{}, errAt(x.P, "%s in %s: %v", v, u.Name, err)
+		}
+		return Value{Q: q, Unit: u.Name}, nil
+	case *Call:
+		return Value{}, errAt(x.Fun.P, "%s(...) is a pulse shape, not a quantity; define it with `pulse NAME = %s(...)`", x.Fun.Name, x.Fun.Name)
+	}
+	return Value{}, errAt(e.Position(), "expected a value")
+}
+
+// productUnit keeps the unit hint when one side is a plain number.
+func productUnit(a, b Value) string {
+	switch {
+	case a.Q.D == dimNumber && b.Unit != "%":
+		return b.Unit
+	case b.Q.D == dimNumber && a.Unit != "%":
+		return a.Unit
+	}
+	return ""
+}
+
+func checkFinite(p Pos, v Value) error {
+	if math.IsInf(v.Q.V, 0) || math.IsNaN(v.Q.V) {
+		return errAt(p, "result is out of range")
+	}
+	return nil
+}
+
+// want converts v to dimension d for the argument or setting named what, accepting
+// the trade's equivalents: a field given in Hz (through γ̄), a frequency given in
+// ppm (through γ̄ and the main field).
+func (ev *evaluator) want(v Value, d Dim, what string, p Pos) (float64, error) {
+	if v.Q.D == d {
+		return v.Q.V, nil
+	}
+	if (d == dimField && v.Q.D == dimFrequency) || (d == dimFrequency && v.Q.D == dimPPM) {
+		q, err := convert(v.Q, d, ev.st.nucleus.GammaBar, ev.st.field, ev.st.nucleus.Name)
+		if err != nil {
+			return 0, errAt(p, "%s = %s: %v", what, v, err)
+		}
+		return q.V, nil
+	}
+	return 0, errAt(p, "%s expects %s, got %s", what, wantNoun(d), describeValue(v))
+}
+
+func wantNoun(d Dim) string {
+	switch d {
+	case dimField:
+		return "a magnetic field (T units, or Hz through the nucleus)"
+	case dimFrequency:
+		return "a frequency (Hz, or ppm once the field is set)"
+	}
+	return strings.TrimSpace(d.Noun())
+}
