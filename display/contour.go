@@ -1,6 +1,8 @@
 package display
 
 import (
+	"math"
+
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -118,20 +120,27 @@ func contour(x, y []float64, z [][]float64, level float64) [][][2]float64 {
 	return lines
 }
 
-// contourLines draws traced contour polylines black on a white halo.
+// contourLines draws traced contour polylines black on a white halo, dropping
+// points closer than 0.4 pt to the last one kept (detail no viewer can see on a
+// fine grid).
 type contourLines [][][2]float64
 
 func (cl contourLines) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
 	var path vg.Path
 	for _, l := range cl {
+		var last vg.Point
 		for i, q := range l {
 			pt := vg.Point{X: trX(q[0]), Y: trY(q[1])}
-			if i == 0 {
+			switch {
+			case i == 0:
 				path.Move(pt)
-			} else {
+			case i == len(l)-1 || math.Hypot(float64(pt.X-last.X), float64(pt.Y-last.Y)) >= 0.4:
 				path.Line(pt)
+			default:
+				continue
 			}
+			last = pt
 		}
 	}
 	if len(path) == 0 {

@@ -2,11 +2,15 @@ package display
 
 import (
 	"bytes"
+	"encoding/json"
 	"encoding/xml"
 	"flag"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
+	"slices"
+	"strings"
 	"testing"
 )
 
@@ -61,4 +65,300 @@ func checkXML(t *testing.T, s string) {
 			t.Fatalf("svg is not well-formed XML: %v", err)
 		}
 	}
+}
+
+// render returns the bundle's SVG, failing if it is missing.
+func render(t *testing.T, b Bundle) string {
+	t.Helper()
+	s, ok := b["image/svg+xml"].(string)
+	if !ok || s == "" {
+		t.Fatalf("bundle has no image/svg+xml string")
+	}
+	return s
+}
+
+// svgText collects the character data of the SVG's <text> elements.
+func svgText(t *testing.T, s string) []string {
+	t.Helper()
+	checkXML(t, s)
+	var out []string
+	d := xml.NewDecoder(strings.NewReader(s))
+	in := false
+	for {
+		tok, err := d.Token()
+		if err == io.EOF {
+			return out
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		switch e := tok.(type) {
+		case xml.StartElement:
+			in = e.Name.Local == "text"
+		case xml.EndElement:
+			in = false
+		case xml.CharData:
+			if in {
+				out = append(out, string(e))
+			}
+		}
+	}
+}
+
+func TestSVGIsXMLWithLabels(t *testing.T) {
+	w, wt := sampleWaveform(true)
+	for _, tc := range []struct {
+		name string
+		b    Bundle
+		want []string
+	}{
+		{"profile", sampleProfile().Bundle(), []string{"Slice profile", "offset (Hz)", "mxy", "phase (deg)", "p1", "gauss", "pass edge", "+FWHM/2"}},
+		{"map", sampleMap().Bundle(), []string{"Inversion efficiency", "offset (Hz)", "B1 scale", "mxy", "mxy = 0.5"}},
+		{"waveform", w.Bundle(wt), []string{"hs1 waveform", "time (ms)", "amplitude (µT)", "phase (deg)", "frequency (Hz)", "gradient (mT/m)"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			s := render(t, tc.b)
+			texts := svgText(t, s)
+			for _, want := range tc.want {
+				if !slices.Contains(texts, want) {
+					t.Errorf("svg has no text %q; texts: %q", want, texts)
+				}
+			}
+			if strings.Contains(s, "@font-face") || strings.Contains(s, "http://") && strings.Count(s, "http://") != 2 {
+				t.Errorf("svg embeds fonts or refers to the network")
+			}
+			if !strings.Contains(s, "sans-serif") {
+				t.Errorf("svg text has no generic sans-serif fallback")
+			}
+			html, _ := tc.b["text/html"].(string)
+			if !strings.Contains(html, "<svg") || strings.Contains(html, "<?xml") {
+				t.Errorf("text/html does not carry the figure inline")
+			}
+			if p, _ := tc.b["text/plain"].(string); p == "" {
+				t.Errorf("no text/plain")
+			}
+		})
+	}
+}
+
+func TestDeterministic(t *testing.T) {
+	a, b := samples(), samples()
+	for name := range a {
+		t.Run(name, func(t *testing.T) {
+			for _, mime := range []string{"image/svg+xml", "text/html", "text/plain"} {
+				if a[name][mime] != b[name][mime] {
+					t.Errorf("%s differs between two renderings", mime)
+				}
+			}
+			ja, jb := a[name]["application/json"].(json.RawMessage), b[name]["application/json"].(json.RawMessage)
+			if !bytes.Equal(ja, jb) {
+				t.Errorf("application/json differs between two renderings")
+			}
+		})
+	}
+}
+
+// Size budgets on the fixed inputs; the thinning and the PNG raster keep
+// figures small while the JSON keeps every value.
+func TestSizeBudget(t *testing.T) {
+	big := sampleProfile()
+	big.X.Values = linspace(-3000, 3000, 20001)
+	for i := range big.Curves {
+		y := make([]float64, len(big.X.Values))
+		for k, x := range big.X.Values {
+			y[k] = math.Sin(x/37) * math.Exp(-x*x/4e6)
+		}
+		big.Curves[i].Y = y
+	}
+	bigMap := sampleMapSized(1201, 1001)
+	for _, tc := range []struct {
+		name  string
+		b     Bundle
+		limit int
+	}{
+		{"601-point two-pulse overlay", sampleProfile().Bundle(), 120 << 10},
+		{"161x101 map", sampleMap().Bundle(), 400 << 10},
+		{"20001-point two-pulse overlay", Bundle{"image/svg+xml": big.SVG()}, 120 << 10},
+		{"1201x1001 map", Bundle{"image/svg+xml": bigMap.SVG()}, 400 << 10},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			s := render(t, tc.b)
+			checkXML(t, s)
+			if len(s) > tc.limit {
+				t.Errorf("svg is %d bytes, want ≤ %d", len(s), tc.limit)
+			}
+		})
+	}
+}
+
+// Decoding targets for the JSON round trip; pointers tell null from 0.
+type (
+	axisOut struct {
+		Label, Unit string
+		Reverse     bool
+		Values      []*float64
+	}
+	tableOut struct {
+		Title   string
+		Columns []struct{ Name, Unit string }
+		Rows    [][]string
+		Notes   []string
+	}
+	profileOut struct {
+		Kind, Title string
+		X           axisOut
+		Curves      []struct {
+			Pulse, Quantity, Unit string
+			Y                     []*float64
+		}
+		Marks []struct {
+			X     *float64
+			Label string
+		}
+		Summary tableOut
+	}
+	mapOut struct {
+		Kind, Title, Pulse, Quantity, Unit string
+		X, Y                               axisOut
+		Z                                  [][]*float64
+		Contour                            *float64
+		Summary                            tableOut
+	}
+	waveformOut struct {
+		Kind, Title string
+		Time        axisOut
+		Series      []struct {
+			Quantity, Unit string
+			Values         []*float64
+		}
+		Properties tableOut
+	}
+)
+
+func decode(t *testing.T, b Bundle, v any) {
+	t.Helper()
+	raw, ok := b["application/json"].(json.RawMessage)
+	if !ok {
+		t.Fatalf("application/json is %T, want json.RawMessage", b["application/json"])
+	}
+	// The bundle must also survive being marshalled inside a message.
+	if _, err := json.Marshal(map[string]any(b)); err != nil {
+		t.Fatalf("bundle does not marshal: %v", err)
+	}
+	if err := json.Unmarshal(raw, v); err != nil {
+		t.Fatalf("application/json does not decode: %v", err)
+	}
+}
+
+// sameValues compares decoded values with the originals exactly: JSON carries
+// the shortest text that reads back to the same float64, and null for NaN/Inf.
+func sameValues(t *testing.T, what string, got []*float64, want []float64) {
+	t.Helper()
+	if len(got) != len(want) {
+		t.Fatalf("%s: got %d values, want %d", what, len(got), len(want))
+	}
+	for i, w := range want {
+		switch {
+		case !finite(w) && got[i] != nil:
+			t.Fatalf("%s[%d]: got %v, want null for %v", what, i, *got[i], w)
+		case finite(w) && (got[i] == nil || *got[i] != w):
+			t.Fatalf("%s[%d]: got %v, want %v", what, i, got[i], w)
+		}
+	}
+}
+
+func sameTable(t *testing.T, got tableOut, want Table) {
+	t.Helper()
+	if got.Title != want.Title || len(got.Columns) != len(want.Columns) || len(got.Rows) != len(want.Rows) || len(got.Notes) != len(want.Notes) {
+		t.Fatalf("table: got %+v, want %+v", got, want)
+	}
+	for i, c := range want.Columns {
+		if got.Columns[i].Name != c.Name || got.Columns[i].Unit != c.Unit {
+			t.Errorf("column %d: got %+v, want %+v", i, got.Columns[i], c)
+		}
+	}
+	for i, r := range want.Rows {
+		if !slices.Equal(got.Rows[i], r) {
+			t.Errorf("row %d: got %q, want %q", i, got.Rows[i], r)
+		}
+	}
+}
+
+func TestJSONRoundTrip(t *testing.T) {
+	t.Run("table", func(t *testing.T) {
+		tb := sampleTable()
+		var got tableOut
+		decode(t, tb.Bundle(), &got)
+		sameTable(t, got, tb)
+	})
+	t.Run("profile", func(t *testing.T) {
+		p := sampleProfile()
+		p.Curves[1].Y[7] = math.NaN()
+		p.Marks = append(p.Marks, Mark{X: math.Inf(1), Label: "off scale"})
+		var got profileOut
+		decode(t, p.Bundle(), &got)
+		if got.Kind != "profile" || got.Title != p.Title || got.X.Label != p.X.Label || got.X.Unit != p.X.Unit {
+			t.Errorf("header: got %q %q %q %q", got.Kind, got.Title, got.X.Label, got.X.Unit)
+		}
+		sameValues(t, "x", got.X.Values, p.X.Values)
+		if len(got.Curves) != len(p.Curves) {
+			t.Fatalf("got %d curves, want %d", len(got.Curves), len(p.Curves))
+		}
+		for i, c := range p.Curves {
+			g := got.Curves[i]
+			if g.Pulse != c.Pulse || g.Quantity != c.Quantity || g.Unit != c.Unit {
+				t.Errorf("curve %d: got %s/%s/%s, want %s/%s/%s", i, g.Pulse, g.Quantity, g.Unit, c.Pulse, c.Quantity, c.Unit)
+			}
+			sameValues(t, c.Pulse+" "+c.Quantity, g.Y, c.Y)
+		}
+		for i, m := range p.Marks {
+			sameValues(t, "mark", []*float64{got.Marks[i].X}, []float64{m.X})
+			if got.Marks[i].Label != m.Label {
+				t.Errorf("mark %d: got %q, want %q", i, got.Marks[i].Label, m.Label)
+			}
+		}
+		sameTable(t, got.Summary, p.Summary)
+	})
+	t.Run("map", func(t *testing.T) {
+		m := sampleMap()
+		m.Z[3][4] = math.NaN()
+		var got mapOut
+		decode(t, m.Bundle(), &got)
+		if got.Kind != "map" || got.Pulse != m.Pulse || got.Quantity != m.Quantity || got.Y.Label != m.Y.Label {
+			t.Errorf("header: got %+v", got.Kind)
+		}
+		sameValues(t, "x", got.X.Values, m.X.Values)
+		sameValues(t, "y", got.Y.Values, m.Y.Values)
+		if len(got.Z) != len(m.Z) {
+			t.Fatalf("got %d rows, want %d", len(got.Z), len(m.Z))
+		}
+		for j := range m.Z {
+			sameValues(t, "z row", got.Z[j], m.Z[j])
+		}
+		sameValues(t, "contour", []*float64{got.Contour}, []float64{m.Contour})
+		sameTable(t, got.Summary, m.Summary)
+	})
+	t.Run("waveform", func(t *testing.T) {
+		w, tb := sampleWaveform(false)
+		var got waveformOut
+		decode(t, w.Bundle(tb), &got)
+		if got.Time.Unit != "s" {
+			t.Errorf("time unit: got %q, want s", got.Time.Unit)
+		}
+		sameValues(t, "time", got.Time.Values, w.Time)
+		want := []struct {
+			q, u string
+			v    []float64
+		}{{"amplitude", "µT", w.Amplitude}, {"phase", "deg", w.Phase}, {"frequency", "Hz", w.Frequency}}
+		if len(got.Series) != len(want) {
+			t.Fatalf("got %d series, want %d (nil gradient left out)", len(got.Series), len(want))
+		}
+		for i, s := range want {
+			if got.Series[i].Quantity != s.q || got.Series[i].Unit != s.u {
+				t.Errorf("series %d: got %s (%s), want %s (%s)", i, got.Series[i].Quantity, got.Series[i].Unit, s.q, s.u)
+			}
+			sameValues(t, s.q, got.Series[i].Values, s.v)
+		}
+		sameTable(t, got.Properties, tb)
+	})
 }

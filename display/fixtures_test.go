@@ -58,9 +58,11 @@ func sampleProfile() Profile {
 }
 
 // sampleMap is a 161 × 101 offset × B1 map with a contour at 0.5.
-func sampleMap() Map {
-	x := linspace(-4000, 4000, 161)
-	y := linspace(0.5, 1.5, 101)
+func sampleMap() Map { return sampleMapSized(161, 101) }
+
+func sampleMapSized(nx, ny int) Map {
+	x := linspace(-4000, 4000, nx)
+	y := linspace(0.5, 1.5, ny)
 	z := make([][]float64, len(y))
 	for j, s := range y {
 		z[j] = make([]float64, len(x))

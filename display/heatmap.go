@@ -42,7 +42,7 @@ func (m Map) Bundle() Bundle {
 		"text/plain":       strings.TrimLeft(plain, "\n"),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
-		"application/json": mustJSON(m.jsonValue()),
+		"application/json": m.json(),
 	}
 }
 
@@ -391,30 +391,4 @@ func reverseRanges(r [][2]int) {
 	for i, j := 0, len(r)-1; i < j; i, j = i+1, j-1 {
 		r[i], r[j] = r[j], r[i]
 	}
-}
-
-type mapJSON struct {
-	Kind     string    `json:"kind"`
-	Title    string    `json:"title"`
-	Pulse    string    `json:"pulse"`
-	Quantity string    `json:"quantity"`
-	Unit     string    `json:"unit"`
-	X        axisJSON  `json:"x"`
-	Y        axisJSON  `json:"y"`
-	Z        []floats  `json:"z"`
-	Contour  *jnum     `json:"contour"`
-	Summary  tableJSON `json:"summary"`
-}
-
-func (m Map) jsonValue() mapJSON {
-	j := mapJSON{Kind: "map", Title: m.Title, Pulse: m.Pulse, Quantity: m.Quantity, Unit: m.Unit,
-		X: m.X.jsonValue(), Y: m.Y.jsonValue(), Z: []floats{}, Summary: m.Summary.jsonValue()}
-	for _, row := range m.Z {
-		j.Z = append(j.Z, floats(orEmpty(row)))
-	}
-	if m.HasContour {
-		c := jnum(m.Contour)
-		j.Contour = &c
-	}
-	return j
 }

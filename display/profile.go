@@ -2,7 +2,6 @@ package display
 
 import (
 	"fmt"
-	"strconv"
 	"strings"
 )
 
@@ -34,7 +33,7 @@ func (p Profile) Bundle() Bundle {
 		"text/plain":       strings.TrimLeft(plain, "\n"),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
-		"application/json": mustJSON(p.jsonValue()),
+		"application/json": p.json(),
 	}
 }
 
@@ -193,66 +192,4 @@ func (p Profile) extremes() Table {
 		t.Rows = append(t.Rows, row)
 	}
 	return t
-}
-
-// jnum is a float that marshals non-finite values as null.
-type jnum float64
-
-// MarshalJSON implements json.Marshaler.
-func (v jnum) MarshalJSON() ([]byte, error) {
-	if !finite(float64(v)) {
-		return []byte("null"), nil
-	}
-	return strconv.AppendFloat(nil, float64(v), 'g', -1, 64), nil
-}
-
-type axisJSON struct {
-	Label   string `json:"label"`
-	Unit    string `json:"unit"`
-	Reverse bool   `json:"reverse"`
-	Values  floats `json:"values"`
-}
-
-func (a Axis) jsonValue() axisJSON {
-	return axisJSON{Label: a.Label, Unit: a.Unit, Reverse: a.Reverse, Values: floats(orEmpty(a.Values))}
-}
-
-func orEmpty(v []float64) []float64 {
-	if v == nil {
-		return []float64{}
-	}
-	return v
-}
-
-type curveJSON struct {
-	Pulse    string `json:"pulse"`
-	Quantity string `json:"quantity"`
-	Unit     string `json:"unit"`
-	Y        floats `json:"y"`
-}
-
-type markJSON struct {
-	X     jnum   `json:"x"`
-	Label string `json:"label"`
-}
-
-type profileJSON struct {
-	Kind    string      `json:"kind"`
-	Title   string      `json:"title"`
-	X       axisJSON    `json:"x"`
-	Curves  []curveJSON `json:"curves"`
-	Marks   []markJSON  `json:"marks"`
-	Summary tableJSON   `json:"summary"`
-}
-
-func (p Profile) jsonValue() profileJSON {
-	j := profileJSON{Kind: "profile", Title: p.Title, X: p.X.jsonValue(),
-		Curves: []curveJSON{}, Marks: []markJSON{}, Summary: p.Summary.jsonValue()}
-	for _, c := range p.Curves {
-		j.Curves = append(j.Curves, curveJSON{Pulse: c.Pulse, Quantity: c.Quantity, Unit: c.Unit, Y: floats(orEmpty(c.Y))})
-	}
-	for _, m := range p.Marks {
-		j.Marks = append(j.Marks, markJSON{X: jnum(m.X), Label: m.Label})
-	}
-	return j
 }

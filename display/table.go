@@ -1,7 +1,6 @@
 package display
 
 import (
-	"encoding/json"
 	"html"
 	"strconv"
 	"strings"
@@ -25,7 +24,7 @@ func (t Table) Bundle() Bundle {
 	return Bundle{
 		"text/plain":       t.Plain(),
 		"text/html":        t.HTML(),
-		"application/json": mustJSON(t.jsonValue()),
+		"application/json": t.json(),
 	}
 }
 
@@ -175,63 +174,5 @@ func (t Table) HTML() string {
 	return b.String()
 }
 
-// tableJSON is the application/json form of a Table.
-type tableJSON struct {
-	Title   string       `json:"title"`
-	Columns []columnJSON `json:"columns"`
-	Rows    [][]string   `json:"rows"`
-	Notes   []string     `json:"notes"`
-}
-
-type columnJSON struct {
-	Name string `json:"name"`
-	Unit string `json:"unit"`
-}
-
-func (t Table) jsonValue() tableJSON {
-	j := tableJSON{Title: t.Title, Columns: []columnJSON{}, Rows: [][]string{}, Notes: []string{}}
-	for _, c := range t.Columns {
-		j.Columns = append(j.Columns, columnJSON(c))
-	}
-	for _, r := range t.Rows {
-		j.Rows = append(j.Rows, append([]string{}, r...))
-	}
-	j.Notes = append(j.Notes, t.Notes...)
-	return j
-}
-
 // isEmpty reports a table with neither rows nor notes.
 func (t Table) isEmpty() bool { return len(t.Rows) == 0 && len(t.Notes) == 0 }
-
-// floats marshals as a JSON array with non-finite values as null, so data with
-// gaps (NaN) still encodes; values keep full float64 precision.
-type floats []float64
-
-// MarshalJSON implements json.Marshaler.
-func (f floats) MarshalJSON() ([]byte, error) {
-	b := make([]byte, 0, 2+len(f)*12)
-	b = append(b, '[')
-	for i, v := range f {
-		if i > 0 {
-			b = append(b, ',')
-		}
-		if v != v || v > maxFloat || v < -maxFloat {
-			b = append(b, "null"...)
-			continue
-		}
-		b = strconv.AppendFloat(b, v, 'g', -1, 64)
-	}
-	return append(b, ']'), nil
-}
-
-const maxFloat = 1.7976931348623157e308
-
-// mustJSON marshals a value built from this package's own JSON types, which
-// cannot fail; it returns raw bytes so the bundle embeds them verbatim.
-func mustJSON(v any) json.RawMessage {
-	b, err := json.Marshal(v)
-	if err != nil {
-		panic("display: " + err.Error())
-	}
-	return b
-}

@@ -24,7 +24,7 @@ func (w Waveform) Bundle(t Table) Bundle {
 		"text/plain":       strings.TrimLeft(plain, "\n"),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
-		"application/json": mustJSON(w.jsonValue(t)),
+		"application/json": w.json(t),
 	}
 }
 
@@ -111,29 +111,4 @@ func (w Waveform) SVG() string {
 		s.panels = []panel{{label: "(no samples)"}}
 	}
 	return s.svg()
-}
-
-type seriesJSON struct {
-	Quantity string `json:"quantity"`
-	Unit     string `json:"unit"`
-	Values   floats `json:"values"`
-}
-
-type waveformJSON struct {
-	Kind       string       `json:"kind"`
-	Title      string       `json:"title"`
-	Time       axisJSON     `json:"time"`
-	Series     []seriesJSON `json:"series"`
-	Properties tableJSON    `json:"properties"`
-}
-
-func (w Waveform) jsonValue(t Table) waveformJSON {
-	j := waveformJSON{Kind: "waveform", Title: w.Title,
-		Time:       Axis{Label: "time", Unit: "s", Values: w.Time}.jsonValue(),
-		Series:     []seriesJSON{},
-		Properties: t.jsonValue()}
-	for _, s := range w.series() {
-		j.Series = append(j.Series, seriesJSON{Quantity: s.quantity, Unit: s.unit, Values: floats(s.values)})
-	}
-	return j
 }

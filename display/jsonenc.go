@@ -1,0 +1,143 @@
+package display
+
+import (
+	"encoding/json"
+	"strconv"
+)
+
+// The application/json values are written by hand rather than through
+// encoding/json: maps carry up to millions of numbers, and encoding/json would
+// re-validate every byte a Marshaler returns. Keys keep a fixed order, numbers the
+// shortest text that reads back to the same float64, and non-finite numbers
+// become null. The result is a json.RawMessage, which encoding/json embeds as is.
+
+// object writes one JSON object field by field.
+type object struct{ b []byte }
+
+func newObject() *object { return &object{b: []byte{'{'}} }
+
+func (o *object) raw(key string, v []byte) *object {
+	if len(o.b) > 1 {
+		o.b = append(o.b, ',')
+	}
+	o.b = appendString(o.b, key)
+	o.b = append(o.b, ':')
+	o.b = append(o.b, v...)
+	return o
+}
+
+func (o *object) str(key, v string) *object { return o.raw(key, appendString(nil, v)) }
+
+func (o *object) done() json.RawMessage { return append(o.b, '}') }
+
+func appendString(b []byte, s string) []byte {
+	q, _ := json.Marshal(s) // a string always marshals
+	return append(b, q...)
+}
+
+func appendNum(b []byte, v float64) []byte {
+	if !finite(v) {
+		return append(b, "null"...)
+	}
+	return strconv.AppendFloat(b, v, 'g', -1, 64)
+}
+
+func jsonNum(v float64) []byte { return appendNum(nil, v) }
+
+func jsonFloats(v []float64) []byte {
+	b := make([]byte, 0, 2+len(v)*20)
+	b = append(b, '[')
+	for i, x := range v {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = appendNum(b, x)
+	}
+	return append(b, ']')
+}
+
+func jsonStrings(v []string) []byte {
+	b := []byte{'['}
+	for i, s := range v {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = appendString(b, s)
+	}
+	return append(b, ']')
+}
+
+func jsonArray(items [][]byte) []byte {
+	n := 2
+	for _, it := range items {
+		n += len(it) + 1
+	}
+	b := make([]byte, 0, n)
+	b = append(b, '[')
+	for i, it := range items {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, it...)
+	}
+	return append(b, ']')
+}
+
+func jsonBool(v bool) []byte { return strconv.AppendBool(nil, v) }
+
+// json is the table as {"title", "columns": [{"name", "unit"}], "rows", "notes"}.
+func (t Table) json() json.RawMessage {
+	var cols, rows [][]byte
+	for _, c := range t.Columns {
+		cols = append(cols, newObject().str("name", c.Name).str("unit", c.Unit).done())
+	}
+	for _, r := range t.Rows {
+		rows = append(rows, jsonStrings(r))
+	}
+	return newObject().str("title", t.Title).raw("columns", jsonArray(cols)).
+		raw("rows", jsonArray(rows)).raw("notes", jsonStrings(t.Notes)).done()
+}
+
+func (a Axis) json() []byte {
+	return newObject().str("label", a.Label).str("unit", a.Unit).
+		raw("reverse", jsonBool(a.Reverse)).raw("values", jsonFloats(a.Values)).done()
+}
+
+func (p Profile) json() json.RawMessage {
+	var curves, marks [][]byte
+	for _, c := range p.Curves {
+		curves = append(curves, newObject().str("pulse", c.Pulse).str("quantity", c.Quantity).
+			str("unit", c.Unit).raw("y", jsonFloats(c.Y)).done())
+	}
+	for _, m := range p.Marks {
+		marks = append(marks, newObject().raw("x", jsonNum(m.X)).str("label", m.Label).done())
+	}
+	return newObject().str("kind", "profile").str("title", p.Title).raw("x", p.X.json()).
+		raw("curves", jsonArray(curves)).raw("marks", jsonArray(marks)).
+		raw("summary", p.Summary.json()).done()
+}
+
+func (m Map) json() json.RawMessage {
+	rows := make([][]byte, len(m.Z))
+	for i, r := range m.Z {
+		rows[i] = jsonFloats(r)
+	}
+	contour := []byte("null")
+	if m.HasContour {
+		contour = jsonNum(m.Contour)
+	}
+	return newObject().str("kind", "map").str("title", m.Title).str("pulse", m.Pulse).
+		str("quantity", m.Quantity).str("unit", m.Unit).raw("x", m.X.json()).raw("y", m.Y.json()).
+		raw("z", jsonArray(rows)).raw("contour", contour).raw("summary", m.Summary.json()).done()
+}
+
+func (w Waveform) json(t Table) json.RawMessage {
+	var series [][]byte
+	for _, s := range w.series() {
+		series = append(series, newObject().str("quantity", s.quantity).str("unit", s.unit).
+			raw("values", jsonFloats(s.values)).done())
+	}
+	return newObject().str("kind", "waveform").str("title", w.Title).
+		raw("time", Axis{Label: "time", Unit: "s", Values: w.Time}.json()).
+		raw("series", jsonArray(series)).raw("properties", t.json()).done()
+}
