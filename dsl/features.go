@@ -62,7 +62,7 @@ func curveFeatures(x, y []float64, phase bool) features {
 	if len(all) > 0 {
 		f.crossings = strings.Join(all, ", ")
 	}
-	side := func(v float64) bool { return (v - half) * (y[ext] - half) > 0 }
+	side := func(v float64) bool { return (v-half)*(y[ext]-half) > 0 }
 	lo, hi := ext, ext
 	for lo > 0 && side(y[lo-1]) {
 		lo--

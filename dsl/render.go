@@ -5,29 +5,13 @@ import (
 )
 
 // The functions here are the thin adapter between the language's outputs and
-// package display.
+// package display, which renders text/plain, text/html, image/svg+xml and
+// application/json (every value of a sweep, with axes and units).
 
 func tableBundle(t display.Table) display.Bundle { return t.Bundle() }
 
-// profileBundle is a plot of curves with its summary table and the data as JSON.
-func profileBundle(p display.Profile, data any) display.Bundle {
-	b := p.Summary.Bundle()
-	if data != nil {
-		b["application/json"] = data
-	}
-	return b
-}
+func profileBundle(p display.Profile) display.Bundle { return p.Bundle() }
 
-// mapBundle is a map of one quantity over two axes.
-func mapBundle(m display.Map, data any) display.Bundle {
-	b := m.Summary.Bundle()
-	if data != nil {
-		b["application/json"] = data
-	}
-	return b
-}
+func mapBundle(m display.Map) display.Bundle { return m.Bundle() }
 
-// waveformBundle is a pulse's waveform plot with its properties table.
-func waveformBundle(w display.Waveform, props display.Table) display.Bundle {
-	return props.Bundle()
-}
+func waveformBundle(w display.Waveform, props display.Table) display.Bundle { return w.Bundle(props) }

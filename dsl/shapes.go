@@ -402,7 +402,9 @@ func indexWord(s, w string) int {
 	return -1
 }
 
-func isWordByte(c byte) bool { return c == '_' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' }
+func isWordByte(c byte) bool {
+	return c == '_' || c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9'
+}
 
 func contains(list []string, w string) bool {
 	for _, x := range list {
@@ -508,7 +510,7 @@ func pulseSummary(d *pulseDef) string {
 	parts := []string{
 		fmt.Sprintf("pulse %s: %s", d.Name, d.Kind),
 		Quantity{p.Duration(), dimTime}.String(),
-		fmt.Sprintf("%d samples", p.Wave.Len()),
+		plural(p.Wave.Len(), "sample"),
 		fmt.Sprintf("peak %s (%s)", Quantity{p.Peak(), dimField}.format("uT"), Quantity{p.Peak() * gb, dimFrequency}.format("Hz")),
 	}
 	if !math.IsNaN(p.Flip) && !p.Adiabatic {

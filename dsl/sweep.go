@@ -17,7 +17,7 @@ const (
 	maxAxisPoints  = 100_000
 	maxMapCells    = 1_000_000
 	maxSweepBuilds = 10_000
-	progressSteps  = 1e7 // sweeps longer than this report progress
+	progressSteps  = 1e7  // sweeps longer than this report progress
 	measureCost    = 2000 // isochromat-steps per sample for measured properties (estimate)
 )
 
@@ -697,23 +697,6 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 	return iso, nil
 }
 
-// jsonFloats encodes NaN as null.
-func jsonFloats(v []float64) []any {
-	out := make([]any, len(v))
-	for i, x := range v {
-		if math.IsNaN(x) || math.IsInf(x, 0) {
-			out[i] = nil
-		} else {
-			out[i] = x
-		}
-	}
-	return out
-}
-
-func axisJSON(a *sweepAxis) map[string]any {
-	return map[string]any{"name": a.kind, "unit": a.unit, "values": jsonFloats(a.display()), "reverse": a.reverse}
-}
-
 // profileOutput draws the curves of a one-axis sweep with its summary.
 func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state) display.Bundle {
 	x := a.display()
@@ -721,15 +704,12 @@ func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*puls
 		Title: title,
 		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse},
 	}
-	var jc []map[string]any
 	for _, c := range curves {
 		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Unit: unitLabel(c.quantity.Unit), Y: c.values})
-		jc = append(jc, map[string]any{"pulse": c.pulse, "quantity": c.quantity.Name, "unit": unitLabel(c.quantity.Unit), "values": jsonFloats(c.values)})
 	}
 	prof.Marks = bandMarks(a, defs, st)
 	prof.Summary = summaryTable(title, a, x, curves)
-	data := map[string]any{"kind": "profile", "title": title, "axes": []any{axisJSON(a)}, "curves": jc}
-	return profileBundle(prof, data)
+	return profileBundle(prof)
 }
 
 // bandMarks marks the design band edges of each pulse on offset and position axes.
@@ -900,17 +880,7 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) displa
 		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(len(c.values)), 4)) + " % of the map"})
 	}
 	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: energyNote([]*curveData{c})}
-	data := map[string]any{"kind": "map", "title": m.Title, "x": axisJSON(axes[0]), "y": axisJSON(axes[1]),
-		"pulse": c.pulse, "quantity": c.quantity.Name, "unit": unitLabel(c.quantity.Unit), "z": zJSON(z)}
-	return mapBundle(m, data)
-}
-
-func zJSON(z [][]float64) []any {
-	out := make([]any, len(z))
-	for i, r := range z {
-		out[i] = jsonFloats(r)
-	}
-	return out
+	return mapBundle(m)
 }
 
 // roleTarget is the level a role's profile must reach (the targets of

@@ -1,6 +1,7 @@
 package dsl
 
 import (
+	"fmt"
 	"math"
 	"strings"
 )
@@ -170,4 +171,12 @@ func wantNoun(d Dim) string {
 		return "a frequency (Hz, or ppm once the field is set)"
 	}
 	return strings.TrimSpace(d.Noun())
+}
+
+// plural writes "1 sample", "2 samples".
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
 }
