@@ -1,0 +1,57 @@
+package slr
+
+import (
+	"fmt"
+	"testing"
+
+	"nutate/physics/shape"
+)
+
+// BenchmarkInversion256 designs a 256-sample inversion pulse with TBW 8 in each
+// phase (target for linear phase: ≤ 20 ms on one core).
+func BenchmarkInversion256(b *testing.B) {
+	g := proton(b)
+	for _, d := range []Design{Linear, Minimum} {
+		b.Run(d.String(), func(b *testing.B) {
+			spec := NewSpec(shape.RoleInvert)
+			spec.TBW, spec.Design = 8, d
+			c := shape.NewCommon()
+			c.Duration, c.Samples = 4e-3, 256
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := Pulse(spec, c, g); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+func BenchmarkRemez(b *testing.B) {
+	for _, n := range []int{64, 256, 511, 1024} {
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			fp, fs := edges(n, n, 8, DInf(0.00125, 0.0707))
+			bands := []Band{{0, fp, 1, 1}, {fs, 0.5, 0, 0.00125 / 0.0707}}
+			for b.Loop() {
+				if _, err := Remez(n, bands); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+func BenchmarkForwardInverse(b *testing.B) {
+	for _, n := range []int{256, 1024} {
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			rf := make([]complex128, n)
+			for j := range rf {
+				rf[j] = complex(0.01, 0.002*float64(j%7))
+			}
+			for b.Loop() {
+				a, bb := Forward(rf)
+				Inverse(a, bb)
+			}
+		})
+	}
+}

@@ -1,0 +1,243 @@
+package slr
+
+import (
+	"fmt"
+	"math"
+
+	"nutate/physics/shape"
+)
+
+// Defaults of a Spec made by NewSpec.
+const (
+	DefaultTBW     = 4
+	DefaultRipple  = 0.01 // profile ripple, pass and stop, as a fraction
+	DefaultSamples = 256
+	// MaxSamples bounds the design: the exchange and the transforms cost O(N²).
+	MaxSamples = 4096
+)
+
+// Spec is an SLR design specification. Unset float fields are NaN (use NewSpec)
+// and take the defaults; zero is not a valid value for any of them.
+type Spec struct {
+	Role       shape.Role // what the profile is for; Common.Role is used when RoleNone
+	TBW        float64    // time-bandwidth product: bandwidth (Hz) × duration (s)
+	PassRipple float64    // δe1: passband ripple of the profile, fraction
+	StopRipple float64    // δe2: stopband ripple of the profile, fraction
+	Design     Design     // phase of the β filter
+}
+
+// NewSpec returns a specification for role with every optional value unset.
+func NewSpec(role shape.Role) Spec {
+	return Spec{Role: role, TBW: math.NaN(), PassRipple: math.NaN(), StopRipple: math.NaN()}
+}
+
+// Info describes how a design was made.
+type Info struct {
+	D1, D2     float64 // β filter ripples (Ripples)
+	DInf       float64 // D∞ of the equiripple filter that was designed
+	PassEdge   float64 // Hz from the band centre: end of the filter's passband
+	StopEdge   float64 // Hz from the band centre: start of the filter's stopband
+	Method     string  // "remez" or "least squares", and the phase construction
+	BetaScaled bool    // β was scaled down to keep |β| < 1
+	A, B       []complex128
+}
+
+func roleFlip(r shape.Role) float64 {
+	switch r {
+	case shape.RoleInvert, shape.RoleRefocus:
+		return math.Pi
+	case shape.RoleSaturate:
+		return math.Pi / 2
+	}
+	return math.NaN()
+}
+
+// Pulse designs an SLR pulse for spec with the Common arguments c (duration,
+// samples or dwell, flip for excitation, phase, center, gradient or thickness) for
+// a nucleus of gyromagnetic ratio gamma (rad·s⁻¹·T⁻¹). Inversion and refocusing
+// pulses are 180°, saturation 90°; excitation takes c.Flip in (0, 180°). The
+// bandwidth is TBW/duration between the 50 % points of |β|. Errors say which
+// value cannot be met and the closest that can.
+func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
+	p, _, err := design(spec, c, gamma)
+	return p, err
+}
+
+// PulseInfo is Pulse that also returns how the design was made, including the
+// polynomials A and B.
+func PulseInfo(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, error) {
+	return design(spec, c, gamma)
+}
+
+func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, error) {
+	fail := func(format string, args ...any) (*shape.Pulse, *Info, error) {
+		return nil, nil, fmt.Errorf("slr: "+format, args...)
+	}
+	if gamma == 0 || math.IsNaN(gamma) || math.IsInf(gamma, 0) {
+		return fail("gamma: got %g rad/s/T, want a finite non-zero value", gamma)
+	}
+	role := spec.Role
+	if role == shape.RoleNone {
+		role = c.Role
+	} else if c.Role != shape.RoleNone && c.Role != role {
+		return fail("role: got %v and %v, want one role", spec.Role, c.Role)
+	}
+	if role < shape.RoleExcite || role > shape.RoleSaturate {
+		return fail("role: required, want excite, invert, refocus or saturate")
+	}
+	if spec.Design < Linear || spec.Design > Maximum {
+		return fail("design: got %v, want linear, minimum or maximum", spec.Design)
+	}
+	tbw := orDefault(spec.TBW, DefaultTBW)
+	pass := orDefault(spec.PassRipple, DefaultRipple)
+	stop := orDefault(spec.StopRipple, DefaultRipple)
+	if !(tbw > 0) || math.IsInf(tbw, 0) {
+		return fail("tbw: got %g, want > 0", tbw)
+	}
+	for _, r := range []struct {
+		name string
+		v    float64
+	}{{"pass", pass}, {"stop", stop}} {
+		if !(r.v > 0 && r.v < 1) {
+			return fail("%s ripple: got %g, want between 0 and 1 (exclusive)", r.name, r.v)
+		}
+	}
+	if !math.IsNaN(c.Peak) {
+		return fail("peak: the amplitude of an slr pulse follows from its design; give flip (excite) or neither")
+	}
+	flip := roleFlip(role)
+	if role == shape.RoleExcite {
+		if math.IsNaN(c.Flip) {
+			return fail("flip: required for an excite pulse")
+		}
+		if !(c.Flip > 0 && c.Flip < math.Pi) {
+			return fail("flip: got %.6g°, want above 0° and below 180° for excite (use role invert or refocus for 180°)", c.Flip*180/math.Pi)
+		}
+		flip = c.Flip
+	} else if !math.IsNaN(c.Flip) && math.Abs(c.Flip-flip) > 1e-9 {
+		return fail("flip: got %.6g°, want %.6g° for %v (or omit it)", c.Flip*180/math.Pi, flip*180/math.Pi, role)
+	}
+	n, dt, err := sampling(c)
+	if err != nil {
+		return nil, nil, fmt.Errorf("slr: %w", err)
+	}
+	d1, d2 := Ripples(role, flip, pass, stop)
+	if !(d1 > 0 && d1 < 1 && d2 > 0 && d2 < 1) {
+		return fail("pass %g, stop %g give filter ripples %.3g, %.3g for %v, want both between 0 and 1", pass, stop, d1, d2, role)
+	}
+	// Transition width ≈ D∞/taps cycles/sample (Herrmann, Rabiner & Chan 1973).
+	dinf, taps := DInf(d1, d2), n
+	if spec.Design != Linear {
+		dinf, taps = DInf(2*d1, d2*d2/2), 2*n-1
+	}
+	if fp, _ := edges(n, taps, tbw, dinf); !(fp > 0) {
+		// fp > 0 ⇔ tbw > n·D∞/taps.
+		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want more than %.4g, or larger ripples",
+			tbw, d1, d2, pass, stop, role, spec.Design, float64(n)*dinf/float64(taps))
+	}
+	if _, fs := edges(n, taps, tbw, dinf); !(fs < 0.5) {
+		need := n
+		for ; ; need++ {
+			t := need
+			if spec.Design != Linear {
+				t = 2*need - 1
+			}
+			if _, s := edges(need, t, tbw, dinf); s < 0.5 {
+				break
+			}
+		}
+		return fail("samples: got %d, fewer than the filter needs for tbw %g with these ripples; want at least %d", n, tbw, need)
+	}
+	cep := newCepstrum(gridSize(n))
+	h, fp, fs, method, err := betaFilter(n, tbw, d1, d2, spec.Design, cep)
+	if err != nil {
+		return nil, nil, fmt.Errorf("slr: %w", err)
+	}
+	a, b, scaled := polynomials(h, flip, cep)
+	rf := Inverse(a, b)
+	p := &shape.Pulse{
+		Shape:     "slr",
+		Gamma:     gamma,
+		Role:      role,
+		Flip:      flip,
+		Bandwidth: tbw / c.Duration,
+		TBW:       tbw,
+		Center:    c.Center,
+	}
+	p.Wave.Dwell = make([]float64, n)
+	p.Wave.B1 = make([]complex128, n)
+	T := c.Duration
+	for j, r := range rf {
+		p.Wave.Dwell[j] = dt
+		// rf = γ·B1·Δt; the phase ramp exp(i(φ + 2π·center·(t − T/2))) at the
+		// sample midpoint applies Phase and Center as for every shape.
+		ph := c.Phase + 2*math.Pi*c.Center*((float64(j)+0.5)*dt-T/2)
+		s, co := math.Sincos(ph)
+		p.Wave.B1[j] = r / complex(gamma*dt, 0) * complex(co, s)
+	}
+	if err := slice(p, c); err != nil {
+		return nil, nil, err
+	}
+	info := &Info{D1: d1, D2: d2, DInf: dinf, PassEdge: fp / dt, StopEdge: fs / dt, Method: method, BetaScaled: scaled, A: a, B: b}
+	return p, info, nil
+}
+
+func orDefault(v, def float64) float64 {
+	if math.IsNaN(v) {
+		return def
+	}
+	return v
+}
+
+// sampling returns the number of samples and the dwell from c.
+func sampling(c shape.Common) (int, float64, error) {
+	if !(c.Duration > 0) || math.IsInf(c.Duration, 0) {
+		return 0, 0, fmt.Errorf("duration: got %g s, want > 0", c.Duration)
+	}
+	n := c.Samples
+	if !math.IsNaN(c.Dwell) {
+		if c.Samples != 0 {
+			return 0, 0, fmt.Errorf("samples and dwell: got both, want one")
+		}
+		if !(c.Dwell > 0) {
+			return 0, 0, fmt.Errorf("dwell: got %g s, want > 0", c.Dwell)
+		}
+		n = int(math.Round(c.Duration / c.Dwell))
+		if n < 1 || math.Abs(float64(n)*c.Dwell-c.Duration) > 1e-9*c.Duration {
+			return 0, 0, fmt.Errorf("dwell: got %g s, which does not divide duration %g s", c.Dwell, c.Duration)
+		}
+	}
+	if n == 0 {
+		n = DefaultSamples
+	}
+	if n < 8 || n > MaxSamples {
+		return 0, 0, fmt.Errorf("samples: got %d, want 8 to %d", n, MaxSamples)
+	}
+	return n, c.Duration / float64(n), nil
+}
+
+// slice sets the slice-select gradient: thickness = BW/(γ̄·G) (common practice).
+func slice(p *shape.Pulse, c shape.Common) error {
+	if c.Gradient != 0 && c.Thickness != 0 {
+		return fmt.Errorf("slr: gradient and thickness: got both, want one")
+	}
+	g := c.Gradient
+	if c.Thickness != 0 {
+		if !(c.Thickness > 0) || math.IsInf(c.Thickness, 0) {
+			return fmt.Errorf("slr: thickness: got %g m, want > 0", c.Thickness)
+		}
+		g = 2 * math.Pi * p.Bandwidth / (math.Abs(p.Gamma) * c.Thickness)
+	}
+	if math.IsNaN(g) || math.IsInf(g, 0) {
+		return fmt.Errorf("slr: gradient: got %g T/m, want a finite value", g)
+	}
+	if g == 0 {
+		return nil
+	}
+	p.Gradient = g
+	p.Wave.Gradient = make([]float64, p.Wave.Len())
+	for j := range p.Wave.Gradient {
+		p.Wave.Gradient[j] = g
+	}
+	return nil
+}
