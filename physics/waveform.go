@@ -1,6 +1,9 @@
 package physics
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // Waveform is a piecewise-constant RF pulse in the frame rotating at its carrier.
 // Sample j lasts Dwell[j] seconds with complex field B1[j] = B1x + i·B1y (tesla).
@@ -37,8 +40,14 @@ func (w *Waveform) Validate() error {
 		return fmt.Errorf("waveform has %d gradient samples for %d RF samples", len(w.Gradient), len(w.B1))
 	}
 	for j, d := range w.Dwell {
-		if !(d > 0) {
+		if !(d > 0) || math.IsInf(d, 1) {
 			return fmt.Errorf("sample %d has dwell %g s, want > 0", j, d)
+		}
+		if b := w.B1[j]; math.IsNaN(real(b)) || math.IsNaN(imag(b)) || math.IsInf(real(b), 0) || math.IsInf(imag(b), 0) {
+			return fmt.Errorf("sample %d has B1 %g T, want a finite value", j, b)
+		}
+		if w.Gradient != nil && (math.IsNaN(w.Gradient[j]) || math.IsInf(w.Gradient[j], 0)) {
+			return fmt.Errorf("sample %d has gradient %g T/m, want a finite value", j, w.Gradient[j])
 		}
 	}
 	return nil
