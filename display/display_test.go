@@ -77,8 +77,8 @@ func render(t *testing.T, b Bundle) string {
 	return s
 }
 
-// svgText collects the character data of the SVG's <text> elements.
-func svgText(t *testing.T, s string) []string {
+// textsOf collects the character data of the SVG's <text> elements.
+func textsOf(t *testing.T, s string) []string {
 	t.Helper()
 	checkXML(t, s)
 	var out []string
@@ -118,7 +118,7 @@ func TestSVGIsXMLWithLabels(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			s := render(t, tc.b)
-			texts := svgText(t, s)
+			texts := textsOf(t, s)
 			for _, want := range tc.want {
 				if !slices.Contains(texts, want) {
 					t.Errorf("svg has no text %q; texts: %q", want, texts)

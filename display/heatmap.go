@@ -130,9 +130,10 @@ func (m Map) SVG() string {
 		})
 	}
 	rows := legendRows(legend, figWidth-20)
+	title := wrapText(m.Title, boldStyle(titleSize), figWidth-24)
 	var headH vg.Length = headPad
-	if m.Title != "" {
-		headH += rowHeight + 3
+	if len(title) > 0 {
+		headH += vg.Length(len(title))*rowHeight + 3
 	}
 	headH += vg.Length(len(rows)) * rowHeight
 	H := headH + bodyH
@@ -177,12 +178,7 @@ func (m Map) SVG() string {
 	dc := p.DataCanvas(main)
 
 	y := H - headPad
-	if m.Title != "" {
-		tts := boldStyle(titleSize)
-		tts.XAlign, tts.YAlign = draw.XCenter, draw.YTop
-		full.FillText(tts, vg.Point{X: figWidth / 2, Y: y}, m.Title)
-		y -= rowHeight + 3
-	}
+	y = drawTitle(full, title, y)
 	if len(rows) > 0 {
 		drawLegend(full, rows, dc.Min.X, dc.Max.X, y-rowHeight/2)
 	}

@@ -46,3 +46,59 @@ func trimZeros(s string) string {
 	s = strings.TrimRight(s, "0")
 	return strings.TrimSuffix(s, ".")
 }
+
+// NumColumn formats a column of numbers for a table with one number of decimals,
+// so the points line up: enough decimals to give the largest magnitude sig
+// significant digits, then trailing zeros that every entry shares are dropped.
+// Columns whose largest magnitude is below 1e-3 or at least 1e6 fall back to Num
+// for each entry. Non-finite entries print as Num does.
+func NumColumn(v []float64, sig int) []string {
+	sig = min(max(sig, 1), 17)
+	var big float64
+	for _, x := range v {
+		if finite(x) {
+			big = math.Max(big, math.Abs(x))
+		}
+	}
+	out := make([]string, len(v))
+	if big != 0 && (big < 1e-3 || big >= 1e6) {
+		for i, x := range v {
+			out[i] = Num(x, sig)
+		}
+		return out
+	}
+	dec := 0
+	if big != 0 {
+		dec = min(max(sig-1-int(math.Floor(math.Log10(big))), 0), 12)
+	}
+	for i, x := range v {
+		if !finite(x) {
+			out[i] = Num(x, sig)
+			continue
+		}
+		out[i] = strconv.FormatFloat(x, 'f', dec, 64)
+		if strings.Trim(out[i], "-0.") == "" {
+			out[i] = strings.TrimPrefix(out[i], "-") // no "-0.000"
+		}
+	}
+	// Drop decimals that are zero in every finite entry.
+	for dec > 0 {
+		all := true
+		for i, x := range v {
+			if finite(x) && !strings.HasSuffix(out[i], "0") {
+				all = false
+				break
+			}
+		}
+		if !all {
+			break
+		}
+		for i, x := range v {
+			if finite(x) {
+				out[i] = strings.TrimSuffix(out[i][:len(out[i])-1], ".")
+			}
+		}
+		dec--
+	}
+	return out
+}

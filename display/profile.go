@@ -149,14 +149,18 @@ func (p Profile) dataTable() Table {
 	for _, c := range p.Curves {
 		t.Columns = append(t.Columns, Column{Name: p.curveName(c), Unit: c.Unit})
 	}
-	for i, x := range p.X.Values {
-		row := []string{Num(x, 6)}
-		for _, c := range p.Curves {
-			v := "-"
-			if i < len(c.Y) {
-				v = Num(c.Y[i], 4)
+	cols := [][]string{NumColumn(p.X.Values, 6)}
+	for _, c := range p.Curves {
+		y := c.Y[:min(len(c.Y), len(p.X.Values))]
+		cols = append(cols, NumColumn(y, 4))
+	}
+	for i := range p.X.Values {
+		row := make([]string, len(cols))
+		for k, col := range cols {
+			row[k] = "-"
+			if i < len(col) {
+				row[k] = col[i]
 			}
-			row = append(row, v)
 		}
 		t.Rows = append(t.Rows, row)
 	}

@@ -34,7 +34,9 @@ type stack struct {
 
 func panelHeightFor(n int) vg.Length {
 	switch {
-	case n <= 2:
+	case n == 1:
+		return 2.5 * vg.Inch
+	case n == 2:
 		return 1.8 * vg.Inch
 	case n == 3:
 		return 1.5 * vg.Inch
@@ -172,9 +174,10 @@ func (s stack) svg() string {
 	trX, _ := ps[0].Transforms(&dc)
 	placed, markRows := placeMarks(s.marks, trX, ps[0].X.Min, ps[0].X.Max, 2, figWidth-2)
 
+	title := wrapText(s.title, boldStyle(titleSize), figWidth-24)
 	var headH vg.Length = headPad
-	if s.title != "" {
-		headH += rowHeight + 3
+	if len(title) > 0 {
+		headH += vg.Length(len(title))*rowHeight + 3
 	}
 	headH += vg.Length(len(rows)) * rowHeight
 	headH += vg.Length(markRows) * markRow
@@ -189,12 +192,7 @@ func (s stack) svg() string {
 	full.Fill(full.Rectangle.Path())
 
 	y := H - headPad
-	if s.title != "" {
-		ts := boldStyle(titleSize)
-		ts.XAlign, ts.YAlign = draw.XCenter, draw.YTop
-		full.FillText(ts, vg.Point{X: figWidth / 2, Y: y}, s.title)
-		y -= rowHeight + 3
-	}
+	y = drawTitle(full, title, y)
 	if len(rows) > 0 {
 		drawLegend(full, rows, dc.Min.X, dc.Max.X, y-rowHeight/2)
 		y -= vg.Length(len(rows)) * rowHeight
@@ -216,4 +214,19 @@ func (s stack) svg() string {
 		}
 	}
 	return finishSVG(c)
+}
+
+// drawTitle draws the wrapped title lines centred, top at y, and returns the y
+// below them.
+func drawTitle(c draw.Canvas, lines []string, y vg.Length) vg.Length {
+	ts := boldStyle(titleSize)
+	ts.XAlign, ts.YAlign = draw.XCenter, draw.YTop
+	for _, l := range lines {
+		c.FillText(ts, vg.Point{X: figWidth / 2, Y: y}, l)
+		y -= rowHeight
+	}
+	if len(lines) > 0 {
+		y -= 3
+	}
+	return y
 }

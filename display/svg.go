@@ -2,8 +2,11 @@ package display
 
 import (
 	"bytes"
+	"fmt"
+	"html"
 	"image/color"
 	"math"
+	"regexp"
 	"strconv"
 	"strings"
 
@@ -293,7 +296,7 @@ func (degreeTicks) Ticks(lo, hi float64) []plot.Tick {
 	}
 	var ts []plot.Tick
 	for v := math.Ceil(lo/step) * step; v <= hi; v += step {
-		ts = append(ts, plot.Tick{Value: v, Label: Num(v, 6)})
+		ts = append(ts, plot.Tick{Value: v, Label: minus(Num(v, 6))})
 		if m := v + step/2; m <= hi && step >= 45 {
 			ts = append(ts, plot.Tick{Value: m})
 		}
@@ -354,7 +357,9 @@ func drawLegend(c draw.Canvas, rows [][]legendItem, x0, x1, y vg.Length) {
 
 // finishSVG writes the canvas and makes the text self-contained and portable:
 // vgsvg names the measuring font (Liberation) without fallbacks and tags PNG data
-// as JPEG; neither is what a browser should see.
+// as JPEG; neither is what a browser should see. Each text also gets its measured
+// length (textLength), so a viewer that falls back to a wider or narrower
+// sans-serif still fits it into the space the layout gave it.
 func finishSVG(c *vgsvg.Canvas) string {
 	var buf bytes.Buffer
 	if _, err := c.WriteTo(&buf); err != nil {
@@ -367,6 +372,61 @@ func finishSVG(c *vgsvg.Canvas) string {
 	s = strings.ReplaceAll(s, ";font-style:normal", "")
 	s = strings.ReplaceAll(s, `<image x=`, `<image preserveAspectRatio="none" x=`)
 	s = strings.ReplaceAll(s, "data:image/jpg;base64,", "data:image/png;base64,")
+	return svgText.ReplaceAllStringFunc(s, fitText)
+}
+
+var (
+	svgText  = regexp.MustCompile(`<text x="[^"]*" y="[^"]*" transform="scale\(1, -1\)"\n\tstyle="[^"]*">[^<]*</text>`)
+	fontSize = regexp.MustCompile(`font-size:([0-9.]+)px`)
+)
+
+// fitText adds textLength to one vgsvg <text> element.
+func fitText(el string) string {
+	m := fontSize.FindStringSubmatch(el)
+	if m == nil {
+		return el
+	}
+	size, err := strconv.ParseFloat(m[1], 64)
+	if err != nil {
+		return el
+	}
+	ts := textStyle(vg.Length(size))
+	if strings.Contains(el, "font-weight:bold") {
+		ts = boldStyle(vg.Length(size))
+	}
+	open := strings.Index(el, ">")
+	txt := html.UnescapeString(strings.TrimSuffix(el[open+1:], "</text>"))
+	w := ts.Width(txt)
+	if w <= 0 {
+		return el
+	}
+	return el[:open] + fmt.Sprintf(` textLength="%.5g" lengthAdjust="spacingAndGlyphs"`, float64(w)) + el[open:]
+}
+
+// wrapText breaks s at spaces into lines no wider than width.
+func wrapText(s string, ts text.Style, width vg.Length) []string {
+	var lines []string
+	cur := ""
+	for _, w := range strings.Fields(s) {
+		try := strings.TrimSpace(cur + " " + w)
+		if cur != "" && ts.Width(try) > width {
+			lines = append(lines, cur)
+			cur = w
+			continue
+		}
+		cur = try
+	}
+	if cur != "" {
+		lines = append(lines, cur)
+	}
+	return lines
+}
+
+// minus writes a leading hyphen as the typographic minus sign, for tick labels.
+func minus(s string) string {
+	if strings.HasPrefix(s, "-") {
+		return "−" + s[1:]
+	}
 	return s
 }
 
@@ -418,9 +478,9 @@ func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
 			v = 0
 		}
 		if step >= 1e5 || step < 1e-4 {
-			return Num(v, 4)
+			return minus(Num(v, 4))
 		}
-		return strconv.FormatFloat(v, 'f', dec, 64)
+		return minus(strconv.FormatFloat(v, 'f', dec, 64))
 	}
 	var ts []plot.Tick
 	k0, k1 := math.Ceil(lo/step-1e-9), math.Floor(hi/step+1e-9)
