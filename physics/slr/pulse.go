@@ -169,9 +169,11 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 	T := c.Duration
 	for j, r := range rf {
 		p.Wave.Dwell[j] = dt
-		// rf = γ·B1·Δt; the phase ramp exp(i(φ + 2π·center·(t − T/2))) at the
-		// sample midpoint applies Phase and Center as for every shape.
-		ph := c.Phase + 2*math.Pi*c.Center*((float64(j)+0.5)*dt-T/2)
+		// rf = γ·B1·Δt. Phase and Center as for every shape: the ramp
+		// exp(i(φ − 2π·center·(t − T/2))) at the sample midpoint moves the band
+		// to offset +center in the convention of package physics, where a
+		// spin at offset Δf turns as exp(−i·2πΔf·t) in the carrier frame.
+		ph := c.Phase - 2*math.Pi*c.Center*((float64(j)+0.5)*dt-T/2)
 		s, co := math.Sincos(ph)
 		p.Wave.B1[j] = r / complex(gamma*dt, 0) * complex(co, s)
 	}
