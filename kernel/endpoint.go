@@ -30,10 +30,15 @@ type endpoint struct {
 
 	// onMsg is called on the peer's reader goroutine for each user message.
 	onMsg func(p *peer, frames [][]byte)
+	// joined, when set (tests), is told of each peer that completes its handshake.
+	joined chan<- string
 
 	queueLen   int           // messages a peer's queue holds
 	queueBytes int64         // bytes a peer's queue holds
 	grace      time.Duration // how long a full queue may block before dropping
+
+	firstPeer chan struct{} // closed when the first peer has joined
+	firstOnce sync.Once
 
 	mu     sync.Mutex
 	peers  map[*peer]struct{}
@@ -48,11 +53,11 @@ const (
 	defaultGrace      = 100 * time.Millisecond
 )
 
-func newEndpoint(name string, typ zmq4.SocketType, ln net.Listener, lg *log.Logger, onMsg func(*peer, [][]byte)) *endpoint {
+func newEndpoint(name string, typ zmq4.SocketType, ln net.Listener, lg *log.Logger, onMsg func(*peer, [][]byte), joined chan<- string) *endpoint {
 	e := &endpoint{
-		name: name, typ: typ, ln: ln, log: lg, onMsg: onMsg,
+		name: name, typ: typ, ln: ln, log: lg, onMsg: onMsg, joined: joined,
 		queueLen: defaultQueueLen, queueBytes: defaultQueueBytes, grace: defaultGrace,
-		peers: make(map[*peer]struct{}),
+		peers: make(map[*peer]struct{}), firstPeer: make(chan struct{}),
 	}
 	e.wg.Add(1)
 	go e.acceptLoop()
@@ -98,6 +103,13 @@ func (e *endpoint) open(c net.Conn) {
 	e.mu.Unlock()
 	go p.readLoop()
 	go p.writeLoop()
+	e.firstOnce.Do(func() { close(e.firstPeer) })
+	if debugLog {
+		e.log.Printf("%s: peer %s joined", e.name, p.addr)
+	}
+	if e.joined != nil {
+		e.joined <- e.name
+	}
 }
 
 // broadcast queues frames for every peer.

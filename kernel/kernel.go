@@ -74,8 +74,9 @@ func (d *dispatcher) status(req Message, state string) {
 
 // handle answers one request, bracketed by busy and idle on iopub. It runs on
 // the shell goroutine for shell requests and on the control goroutine for
-// control requests; only execute_request is long.
-func (d *dispatcher) handle(r request, control bool) {
+// control requests; only execute_request is long. It reports whether execute
+// requests already queued should be aborted (a cell failed with stop_on_error).
+func (d *dispatcher) handle(r request, control bool) (abortQueued bool) {
 	d.status(r.msg, "busy")
 	defer d.status(r.msg, "idle")
 	switch t := r.msg.Header.MsgType; t {
@@ -91,7 +92,7 @@ func (d *dispatcher) handle(r request, control bool) {
 			d.log.Printf("execute_request on control ignored")
 			return
 		}
-		d.execute(r)
+		return d.execute(r)
 	case "complete_request":
 		d.complete(r)
 	case "inspect_request":
@@ -114,6 +115,15 @@ func (d *dispatcher) handle(r request, control bool) {
 	default:
 		d.log.Printf("unknown message type %q ignored", t)
 	}
+	return false
+}
+
+// abort answers an execute_request that was queued behind a failed cell with
+// stop_on_error (messaging protocol, "Execute": status "aborted").
+func (d *dispatcher) abort(r request) {
+	d.status(r.msg, "busy")
+	d.answer(r, "execute_reply", map[string]any{"status": "aborted"})
+	d.status(r.msg, "idle")
 }
 
 func (d *dispatcher) kernelInfo(r request) {
@@ -170,7 +180,7 @@ func (d *dispatcher) Interrupt() {
 // errInterrupted is what an interrupted cell reports.
 const interruptedName = "Interrupted"
 
-func (d *dispatcher) execute(r request) {
+func (d *dispatcher) execute(r request) (abortQueued bool) {
 	var c struct {
 		Code         string `json:"code"`
 		Silent       bool   `json:"silent"`
@@ -179,7 +189,7 @@ func (d *dispatcher) execute(r request) {
 	}
 	if err := json.Unmarshal(r.msg.Content, &c); err != nil {
 		d.replyError(r, "execute_reply", "BadRequest", "execute_request: content: "+err.Error(), nil)
-		return
+		return false
 	}
 	store := !c.Silent && (c.StoreHistory == nil || *c.StoreHistory)
 
@@ -215,7 +225,7 @@ func (d *dispatcher) execute(r request) {
 			"user_expressions": map[string]any{},
 			"payload":          []any{},
 		})
-		return
+		return false
 	}
 	ename, evalue, tb := describeError(err, ctx)
 	errContent := map[string]any{"ename": ename, "evalue": evalue, "traceback": tb}
@@ -227,6 +237,7 @@ func (d *dispatcher) execute(r request) {
 		"evalue":          evalue,
 		"traceback":       tb,
 	})
+	return !c.Silent && (c.StopOnError == nil || *c.StopOnError)
 }
 
 // run calls the executor, turning a panic into an error: the one recover at the

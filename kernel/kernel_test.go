@@ -453,3 +453,44 @@ func TestGlobMatch(t *testing.T) {
 		}
 	}
 }
+
+func TestStopOnErrorAbortsQueued(t *testing.T) {
+	// A failed cell with stop_on_error aborts the execute requests already
+	// queued (messaging protocol, "Execute": stop_on_error); other requests are
+	// still answered; with stop_on_error=false the next cell runs.
+	type want struct{ typ, status string }
+	tests := []struct {
+		name  string
+		cells []map[string]any
+		want  []want
+	}{
+		{"stop", []map[string]any{{"code": "fail"}, {"code": "queued"}, nil, {"code": "queued too"}},
+			[]want{{"execute_reply", "error"}, {"execute_reply", "aborted"}, {"kernel_info_reply", "ok"}, {"execute_reply", "aborted"}}},
+		{"continue", []map[string]any{{"code": "fail", "stop_on_error": false}, {"code": "runs"}},
+			[]want{{"execute_reply", "error"}, {"execute_reply", "ok"}}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			h := newHarness()
+			s := &Server{d: h.d, stop: make(chan struct{})}
+			q := make(chan request, 8)
+			for _, c := range tc.cells {
+				if c == nil {
+					q <- h.req("kernel_info_request", map[string]any{})
+				} else {
+					q <- h.req("execute_request", c)
+				}
+			}
+			done := make(chan struct{})
+			go s.serve(q, done, false)
+			for i, w := range tc.want {
+				r := <-h.replies
+				if r.Header.MsgType != w.typ || field(r, "status") != w.status {
+					t.Fatalf("reply %d: got %s %v, want %s %s", i, r.Header.MsgType, field(r, "status"), w.typ, w.status)
+				}
+			}
+			close(s.stop)
+			<-done
+		})
+	}
+}

@@ -89,8 +89,13 @@ const (
 // Start binds the five sockets described by info (a port of 0 picks a free one)
 // and starts serving exec. Logs go to lg (nil: standard error).
 func Start(info ConnectionInfo, exec Executor, lg *log.Logger) (*Server, error) {
+	return start(info, exec, lg, nil)
+}
+
+// start is Start with a channel told of every peer that joins (tests).
+func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- string) (*Server, error) {
 	if lg == nil {
-		lg = log.New(os.Stderr, "nutate kernel: ", log.LstdFlags)
+		lg = log.New(os.Stderr, "nutate kernel: ", log.LstdFlags|log.Lmicroseconds)
 	}
 	signer, err := NewSigner(info.Key, info.SignatureScheme)
 	if err != nil {
@@ -132,7 +137,7 @@ func Start(info ConnectionInfo, exec Executor, lg *log.Logger) (*Server, error) 
 		if a, ok := ln.Addr().(*net.TCPAddr); ok {
 			*port = a.Port
 		}
-		e := newEndpoint(name, typ, ln, lg, onMsg)
+		e := newEndpoint(name, typ, ln, lg, onMsg, joined)
 		eps = append(eps, e)
 		return e, nil
 	}
@@ -180,6 +185,9 @@ func (s *Server) queue(name string, q chan request) func(*peer, [][]byte) {
 			}
 			return
 		}
+		if debugLog {
+			s.log.Printf("%s: %s %s", name, m.Header.MsgType, m.Header.MsgID)
+		}
 		r := request{msg: m, reply: func(out Message) {
 			frames, err := s.signer.Encode(out)
 			if err != nil {
@@ -209,14 +217,54 @@ func (s *Server) publish(m Message) {
 	s.pubMu.Unlock()
 }
 
+// debugLog, set by NUTATE_KERNEL_DEBUG=1, logs every request and every peer.
+var debugLog = os.Getenv("NUTATE_KERNEL_DEBUG") == "1"
+
+// iopubWait bounds how long the first request waits for an iopub subscriber.
+const iopubWait = 500 * time.Millisecond
+
 // serve runs the requests of one channel in order until shutdown.
+//
+// The first request waits (at most iopubWait) until an iopub subscriber has
+// joined: a client connects all its sockets at once, and busy/idle published
+// before its subscription exists are lost, which costs a client waiting for
+// readiness another round of kernel_info.
 func (s *Server) serve(q chan request, done chan struct{}, control bool) {
 	defer close(done)
+	first := s.iopub != nil
 	for {
 		select {
 		case r := <-q:
-			s.d.handle(r, control)
+			if first {
+				first = false
+				t := time.NewTimer(iopubWait)
+				select {
+				case <-s.iopub.firstPeer:
+				case <-t.C:
+				}
+				t.Stop()
+			}
+			if s.d.handle(r, control) {
+				s.abortQueued(q)
+			}
 		case <-s.stop:
+			return
+		}
+	}
+}
+
+// abortQueued answers "aborted" to the execute requests already waiting in q
+// and handles the other requests found there as usual.
+func (s *Server) abortQueued(q chan request) {
+	for {
+		select {
+		case r := <-q:
+			if r.msg.Header.MsgType == "execute_request" {
+				s.d.abort(r)
+			} else if s.d.handle(r, false) {
+				continue
+			}
+		default:
 			return
 		}
 	}
