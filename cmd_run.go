@@ -1,12 +1,170 @@
 package main
 
 import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
 	"fmt"
+	"io"
 	"os"
+	"os/signal"
+	"path/filepath"
+	"strings"
+
+	"nutate/display"
+	"nutate/dsl"
 )
 
-// cmdRun executes notebooks and scripts headless.
+// setFlags collects repeated --set NAME=VALUE options.
+type setFlags []string
+
+func (s *setFlags) String() string     { return strings.Join(*s, ",") }
+func (s *setFlags) Set(v string) error { *s = append(*s, v); return nil }
+
+// cmdRun executes notebooks and scripts headless: `nutate run [flags] FILE...`.
 func cmdRun(args []string) int {
-	fmt.Fprintln(os.Stderr, "nutate run: not built yet")
-	return 1
+	fs := flag.NewFlagSet("run", flag.ContinueOnError)
+	fs.SetOutput(os.Stderr)
+	output := fs.String("output", "", "write the executed notebook here instead of in place (one input file only)")
+	asJSON := fs.Bool("json", false, "scripts: print one JSON object (the MIME bundle) per output line")
+	check := fs.Bool("check", false, "notebooks: re-execute and fail if the stored outputs differ from fresh ones")
+	var sets setFlags
+	fs.Var(&sets, "set", "NAME=VALUE: the script's `let NAME = ...` takes VALUE instead (repeatable)")
+	fs.Usage = func() {
+		fmt.Fprintln(os.Stderr, "usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...")
+		fs.PrintDefaults()
+	}
+	if err := fs.Parse(args); err != nil {
+		return 2
+	}
+	files := fs.Args()
+	if len(files) == 0 {
+		fs.Usage()
+		return 2
+	}
+	if *output != "" && len(files) != 1 {
+		fmt.Fprintln(os.Stderr, "nutate run: --output takes one input file, got", len(files))
+		return 2
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
+	for _, f := range files {
+		var err error
+		if strings.EqualFold(filepath.Ext(f), ".ipynb") {
+			err = r.notebook(ctx, f, *output)
+		} else {
+			if *check {
+				err = fmt.Errorf("--check compares a notebook's stored outputs; %s is a script", f)
+			} else {
+				err = r.script(ctx, f)
+			}
+		}
+		if err != nil {
+			fmt.Fprintf(os.Stderr, "nutate run: %s: %v\n", f, err)
+			return 1
+		}
+	}
+	return 0
+}
+
+type runner struct {
+	json, check bool
+	sets        []string
+	stdout      io.Writer
+	stderr      io.Writer
+	progress    bool
+}
+
+// session returns a fresh session for a file, with the --set overrides applied.
+func (r *runner) session(file string) (*dsl.Session, error) {
+	dir, err := filepath.Abs(filepath.Dir(file))
+	if err != nil {
+		return nil, err
+	}
+	s := dsl.NewSession(dir)
+	for _, kv := range r.sets {
+		name, value, ok := strings.Cut(kv, "=")
+		if !ok || strings.TrimSpace(name) == "" {
+			return nil, fmt.Errorf("--set %q: want NAME=VALUE", kv)
+		}
+		if err := s.Override(strings.TrimSpace(name), value); err != nil {
+			return nil, fmt.Errorf("--set %s: %v", name, err)
+		}
+	}
+	return s, nil
+}
+
+func (r *runner) sink(display func(display.Bundle)) dsl.Sink {
+	sink := dsl.Sink{Display: display}
+	if r.progress {
+		sink.Progress = func(task string, done, total int) {
+			fmt.Fprintf(r.stderr, "\r%s: %3.0f%%", task, 100*float64(done)/float64(max(total, 1)))
+			if done >= total {
+				fmt.Fprint(r.stderr, "\r\033[K")
+			}
+		}
+	}
+	return sink
+}
+
+// checkOverrides reports --set names that no `let` used.
+func checkOverrides(s *dsl.Session) error {
+	if unused := s.UnusedOverrides(); len(unused) > 0 {
+		return fmt.Errorf("--set %s: no `let` of that name ran", strings.Join(unused, ", "))
+	}
+	return nil
+}
+
+// script runs a script file, printing each output's text/plain (or JSON bundle).
+func (r *runner) script(ctx context.Context, file string) error {
+	src, err := os.ReadFile(file)
+	if err != nil {
+		return err
+	}
+	s, err := r.session(file)
+	if err != nil {
+		return err
+	}
+	var werr error
+	err = s.Exec(ctx, string(src), r.sink(func(b display.Bundle) {
+		if werr != nil {
+			return
+		}
+		if r.json {
+			var buf bytes.Buffer
+			enc := json.NewEncoder(&buf)
+			enc.SetEscapeHTML(false)
+			werr = enc.Encode(b)
+			if werr == nil {
+				_, werr = r.stdout.Write(buf.Bytes())
+			}
+			return
+		}
+		text, _ := b["text/plain"].(string)
+		_, werr = fmt.Fprintln(r.stdout, strings.TrimRight(text, "\n"))
+	}))
+	if err != nil {
+		return errorText(err)
+	}
+	if werr != nil {
+		return werr
+	}
+	return checkOverrides(s)
+}
+
+// errorText turns a language error into one error whose message is its traceback.
+func errorText(err error) error {
+	var tb interface{ Traceback() []string }
+	if errors.As(err, &tb) {
+		return errors.New(strings.Join(tb.Traceback(), "\n"))
+	}
+	return err
+}
+
+func isTerminal(f *os.File) bool {
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
 }

@@ -5,6 +5,9 @@ package main
 import (
 	"fmt"
 	"os"
+	"strings"
+
+	"nutate/dsl"
 )
 
 // version is the program version, stamped into notebook metadata.
@@ -29,9 +32,11 @@ func realMain(args []string) int {
 		return cmdInstall(args[1:])
 	case "run":
 		return cmdRun(args[1:])
-	case "help", "-h", "--help":
+	case "-h", "--help":
 		fmt.Println(usage)
 		return 0
+	case "help":
+		return cmdHelp(args[1:])
 	}
 	fmt.Fprintf(os.Stderr, "nutate: unknown command %q\n%s\n", args[0], usage)
 	return 2
@@ -45,4 +50,18 @@ commands:
                                install the kernelspec "nutate"
   run [--output F] [--json] [--check] [--set NAME=VALUE] FILE...
                                execute notebooks (.ipynb) or scripts headless
+  help [TOPIC]                 the language reference (statements, shapes, arguments,
+                               quantities, units, conventions)
   version                      print the version`
+
+// cmdHelp prints the language reference, from the same texts as the kernel's
+// inspection.
+func cmdHelp(args []string) int {
+	text, err := dsl.Help(strings.Join(args, " "))
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate help:", err)
+		return 1
+	}
+	fmt.Println(strings.TrimRight(text, "\n"))
+	return 0
+}

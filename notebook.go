@@ -1,0 +1,332 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"sort"
+	"strings"
+
+	"nutate/display"
+)
+
+// nbformat 4 notebooks are kept as generic JSON so that fields this program does not
+// know survive a run. They are written as Jupyter writes them: keys sorted, one-space
+// indent, non-ASCII as is, a final newline; numbers keep their source text. So a
+// re-run of an unchanged notebook gives identical bytes.
+
+type notebook map[string]any
+
+func readNotebook(file string) (notebook, error) {
+	raw, err := os.ReadFile(file)
+	if err != nil {
+		return nil, err
+	}
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.UseNumber()
+	var nb notebook
+	if err := dec.Decode(&nb); err != nil {
+		return nil, fmt.Errorf("not a notebook (JSON): %v", err)
+	}
+	if v, _ := nb["nbformat"].(json.Number); v.String() != "4" {
+		return nil, fmt.Errorf("nbformat %v: want 4", nb["nbformat"])
+	}
+	if _, ok := nb["cells"].([]any); !ok {
+		return nil, errors.New("notebook has no cells list")
+	}
+	return nb, nil
+}
+
+func (nb notebook) encode() ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", " ")
+	if err := enc.Encode(map[string]any(nb)); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// cellSource joins a cell's source, which nbformat allows as a string or a list.
+func cellSource(cell map[string]any) string {
+	switch s := cell["source"].(type) {
+	case string:
+		return s
+	case []any:
+		var b strings.Builder
+		for _, line := range s {
+			if str, ok := line.(string); ok {
+				b.WriteString(str)
+			}
+		}
+		return b.String()
+	}
+	return ""
+}
+
+// multiline splits text the way nbformat stores it: lines keeping their "\n".
+func multiline(s string) []any {
+	var out []any
+	for len(s) > 0 {
+		i := strings.IndexByte(s, '\n')
+		if i < 0 {
+			out = append(out, s)
+			break
+		}
+		out = append(out, s[:i+1])
+		s = s[i+1:]
+	}
+	if out == nil {
+		out = []any{}
+	}
+	return out
+}
+
+// displayOutput converts a bundle to an nbformat display_data output.
+func displayOutput(b display.Bundle) map[string]any {
+	data := map[string]any{}
+	for mime, v := range b {
+		if s, ok := v.(string); ok && (strings.HasPrefix(mime, "text/") || strings.HasSuffix(mime, "+xml")) {
+			data[mime] = multiline(s)
+			continue
+		}
+		data[mime] = normalizeJSON(v)
+	}
+	return map[string]any{"output_type": "display_data", "data": data, "metadata": map[string]any{}}
+}
+
+// normalizeJSON round-trips a value through JSON so that stored and fresh outputs
+// compare alike.
+func normalizeJSON(v any) any {
+	raw, err := json.Marshal(v)
+	if err != nil {
+		return fmt.Sprint(v)
+	}
+	dec := json.NewDecoder(bytes.NewReader(raw))
+	dec.UseNumber()
+	var out any
+	if err := dec.Decode(&out); err != nil {
+		return fmt.Sprint(v)
+	}
+	return out
+}
+
+func errorOutput(err error) map[string]any {
+	tb := strings.Split(errorText(err).Error(), "\n")
+	tbAny := make([]any, len(tb))
+	for i, l := range tb {
+		tbAny[i] = l
+	}
+	name := "NutateError"
+	if errors.Is(err, context.Canceled) {
+		name = "Interrupted"
+	}
+	return map[string]any{"output_type": "error", "ename": name, "evalue": tb[0], "traceback": tbAny}
+}
+
+// execute runs every code cell in one session, replacing outputs and execution
+// counts. It stops at the first error, which it records in that cell; the cells
+// after it are cleared so that no stale result remains. The error is returned.
+func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
+	s, err := r.session(file)
+	if err != nil {
+		return err
+	}
+	count := 0
+	var failed error
+	for i, c := range nb["cells"].([]any) {
+		cell, ok := c.(map[string]any)
+		if !ok || cell["cell_type"] != "code" {
+			continue
+		}
+		if failed != nil {
+			cell["outputs"] = []any{}
+			cell["execution_count"] = nil
+			continue
+		}
+		count++
+		outputs := []any{}
+		err := s.Exec(ctx, cellSource(cell), r.sink(func(b display.Bundle) {
+			outputs = append(outputs, displayOutput(b))
+		}))
+		if err != nil {
+			outputs = append(outputs, errorOutput(err))
+			failed = fmt.Errorf("cell %d: %v", i+1, errorText(err))
+		}
+		cell["outputs"] = outputs
+		cell["execution_count"] = json.Number(fmt.Sprint(count))
+	}
+	if failed == nil {
+		failed = checkOverrides(s)
+	}
+	meta, _ := nb["metadata"].(map[string]any)
+	if meta == nil {
+		meta = map[string]any{}
+		nb["metadata"] = meta
+	}
+	lang := newExecutor("").Language()
+	meta["kernelspec"] = map[string]any{"name": "nutate", "display_name": "Nutate (RF pulses)", "language": "nutate"}
+	meta["language_info"] = map[string]any{"name": lang.Name, "version": lang.Version, "mimetype": lang.Mimetype, "file_extension": lang.FileExtension}
+	settings := []any{}
+	for _, s := range r.sets {
+		settings = append(settings, s)
+	}
+	meta["nutate"] = map[string]any{"version": version, "settings": settings}
+	return failed
+}
+
+// notebook executes a notebook and writes it back (or to output); with check set it
+// compares instead of writing.
+func (r *runner) notebook(ctx context.Context, file, output string) error {
+	nb, err := readNotebook(file)
+	if err != nil {
+		return err
+	}
+	if r.check {
+		stored, err := readNotebook(file)
+		if err != nil {
+			return err
+		}
+		if err := r.execute(ctx, file, nb); err != nil {
+			return err
+		}
+		if diff := firstDifference(stored, nb); diff != "" {
+			return fmt.Errorf("stored outputs differ from a fresh run:\n%s", diff)
+		}
+		fmt.Fprintf(r.stdout, "%s: outputs reproduce\n", file)
+		return nil
+	}
+	runErr := r.execute(ctx, file, nb)
+	raw, err := nb.encode()
+	if err != nil {
+		return err
+	}
+	if output == "" {
+		output = file
+	}
+	if err := os.WriteFile(output, raw, 0o644); err != nil {
+		return err
+	}
+	if runErr != nil {
+		return runErr
+	}
+	fmt.Fprintf(r.stdout, "%s: executed, written to %s\n", file, output)
+	return nil
+}
+
+// firstDifference describes the first place where the code-cell outputs of two
+// notebooks differ, or returns "".
+func firstDifference(stored, fresh notebook) string {
+	sc, fc := stored["cells"].([]any), fresh["cells"].([]any)
+	for i := range fc {
+		if i >= len(sc) {
+			return fmt.Sprintf("cell %d: missing in the stored notebook", i+1)
+		}
+		a, _ := sc[i].(map[string]any)
+		b, _ := fc[i].(map[string]any)
+		if b["cell_type"] != "code" {
+			continue
+		}
+		ao, _ := a["outputs"].([]any)
+		bo, _ := b["outputs"].([]any)
+		for k := 0; k < max(len(ao), len(bo)); k++ {
+			if k >= len(ao) {
+				return fmt.Sprintf("cell %d: output %d is missing from the stored notebook", i+1, k+1)
+			}
+			if k >= len(bo) {
+				return fmt.Sprintf("cell %d: stored output %d is not produced by a fresh run", i+1, k+1)
+			}
+			if d := outputDifference(normalizeJSON(ao[k]), normalizeJSON(bo[k])); d != "" {
+				return fmt.Sprintf("cell %d, output %d: %s", i+1, k+1, d)
+			}
+		}
+	}
+	return ""
+}
+
+func outputDifference(a, b any) string {
+	am, _ := a.(map[string]any)
+	bm, _ := b.(map[string]any)
+	ad, _ := am["data"].(map[string]any)
+	bd, _ := bm["data"].(map[string]any)
+	if ad == nil || bd == nil {
+		if ja, jb := jsonText(a), jsonText(b); ja != jb {
+			return firstLineDiff("output", ja, jb)
+		}
+		return ""
+	}
+	keys := map[string]bool{}
+	for k := range ad {
+		keys[k] = true
+	}
+	for k := range bd {
+		keys[k] = true
+	}
+	for _, k := range sortedKeys(keys) {
+		ja, jb := dataText(ad[k]), dataText(bd[k])
+		if ja != jb {
+			return firstLineDiff(k, ja, jb)
+		}
+	}
+	return ""
+}
+
+func dataText(v any) string {
+	if lines, ok := v.([]any); ok {
+		var b strings.Builder
+		for _, l := range lines {
+			s, ok := l.(string)
+			if !ok {
+				return jsonText(v)
+			}
+			b.WriteString(s)
+		}
+		return b.String()
+	}
+	if s, ok := v.(string); ok {
+		return s
+	}
+	return jsonText(v)
+}
+
+func jsonText(v any) string {
+	raw, _ := json.MarshalIndent(v, "", " ")
+	return string(raw)
+}
+
+func firstLineDiff(what, a, b string) string {
+	al, bl := strings.Split(a, "\n"), strings.Split(b, "\n")
+	for i := 0; i < max(len(al), len(bl)); i++ {
+		var x, y string
+		if i < len(al) {
+			x = al[i]
+		}
+		if i < len(bl) {
+			y = bl[i]
+		}
+		if x != y {
+			return fmt.Sprintf("%s, line %d:\n  stored: %s\n  fresh:  %s", what, i+1, clip(x), clip(y))
+		}
+	}
+	return what + " differs"
+}
+
+func clip(s string) string {
+	if len(s) > 200 {
+		return s[:200] + "…"
+	}
+	return s
+}
+
+func sortedKeys(m map[string]bool) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}

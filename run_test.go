@@ -1,0 +1,174 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestNotebooksReproduce re-executes every bundled notebook and requires its stored
+// outputs to come out byte for byte: the reproducibility promise of `nutate run --check`.
+func TestNotebooksReproduce(t *testing.T) {
+	files, err := filepath.Glob("notebooks/*.ipynb")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(files) == 0 {
+		t.Fatal("no notebooks in notebooks/")
+	}
+	for _, f := range files {
+		t.Run(filepath.Base(f), func(t *testing.T) {
+			var out bytes.Buffer
+			r := runner{check: true, stdout: &out, stderr: &out}
+			if err := r.notebook(context.Background(), f, ""); err != nil {
+				t.Fatalf("%v\n(refresh with `go run . run %s` after an intended change)", err, f)
+			}
+			// A fresh run writes exactly the stored bytes.
+			tmp := filepath.Join(t.TempDir(), "out.ipynb")
+			r = runner{stdout: &out, stderr: &out}
+			if err := r.notebook(context.Background(), f, tmp); err != nil {
+				t.Fatal(err)
+			}
+			a, _ := os.ReadFile(f)
+			b, _ := os.ReadFile(tmp)
+			if !bytes.Equal(a, b) {
+				t.Errorf("re-running %s changes its bytes", f)
+			}
+		})
+	}
+}
+
+func writeNotebook(t *testing.T, dir string, cells ...string) string {
+	t.Helper()
+	var cs []map[string]any
+	for _, c := range cells {
+		cs = append(cs, map[string]any{"cell_type": "code", "metadata": map[string]any{}, "source": c, "outputs": []any{}, "execution_count": nil})
+	}
+	raw, err := json.Marshal(map[string]any{"cells": cs, "metadata": map[string]any{}, "nbformat": 4, "nbformat_minor": 4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := filepath.Join(dir, "nb.ipynb")
+	if err := os.WriteFile(f, raw, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return f
+}
+
+// TestCheckCatchesEditedOutput: --check must fail, naming the place, when a stored
+// output was edited by hand.
+func TestCheckCatchesEditedOutput(t *testing.T) {
+	dir := t.TempDir()
+	f := writeNotebook(t, dir, "print 1 kHz in uT")
+	var out bytes.Buffer
+	r := runner{stdout: &out, stderr: &out}
+	if err := r.notebook(context.Background(), f, ""); err != nil {
+		t.Fatal(err)
+	}
+	r.check = true
+	if err := r.notebook(context.Background(), f, ""); err != nil {
+		t.Fatalf("fresh notebook should reproduce: %v", err)
+	}
+	raw, _ := os.ReadFile(f)
+	// 1 kHz of B1 is 23.486595 µT for protons (CODATA 2018, ../shared/CHECKS.md).
+	if !bytes.Contains(raw, []byte("23.48")) {
+		t.Fatalf("executed notebook lacks the printed value:\n%s", raw)
+	}
+	edited := bytes.Replace(raw, []byte("23.48"), []byte("24.48"), 1)
+	if err := os.WriteFile(f, edited, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	err := r.notebook(context.Background(), f, "")
+	if err == nil {
+		t.Fatal("--check passed a notebook whose stored output was edited")
+	}
+	if !strings.Contains(err.Error(), "cell 1") || !strings.Contains(err.Error(), "24.48") {
+		t.Errorf("difference report should name the cell and show the stored line, got: %v", err)
+	}
+}
+
+// TestRunStopsAtFirstError: the error is recorded in its cell, later cells are
+// cleared, and the run fails.
+func TestRunStopsAtFirstError(t *testing.T) {
+	dir := t.TempDir()
+	f := writeNotebook(t, dir, "let a = 1 ms", "let b = a + 1 kHz", "print a")
+	var out bytes.Buffer
+	r := runner{stdout: &out, stderr: &out}
+	if err := r.notebook(context.Background(), f, ""); err == nil {
+		t.Fatal("run of a failing notebook succeeded")
+	}
+	nb, err := readNotebook(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cells := nb["cells"].([]any)
+	outs := cells[1].(map[string]any)["outputs"].([]any)
+	if len(outs) == 0 || outs[len(outs)-1].(map[string]any)["output_type"] != "error" {
+		t.Errorf("cell 2 should hold the error, got %v", outs)
+	}
+	if n := len(cells[2].(map[string]any)["outputs"].([]any)); n != 0 {
+		t.Errorf("cell 3 ran after the error: %d outputs", n)
+	}
+}
+
+// TestSetOverridesLet: --set NAME=VALUE replaces the value of `let NAME`; an unused
+// override is an error.
+func TestSetOverridesLet(t *testing.T) {
+	dir := t.TempDir()
+	script := filepath.Join(dir, "s.nut")
+	if err := os.WriteFile(script, []byte("let d = 250 us\nprint d in us\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	r := runner{sets: []string{"d=500 us"}, stdout: &out, stderr: &out}
+	if err := r.script(context.Background(), script); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(out.String(), "500") || strings.Contains(out.String(), "250") {
+		t.Errorf("override not applied: %q", out.String())
+	}
+	out.Reset()
+	r = runner{sets: []string{"nosuch=1"}, stdout: &out, stderr: &out}
+	if err := r.script(context.Background(), script); err == nil || !strings.Contains(err.Error(), "nosuch") {
+		t.Errorf("unused override should fail naming it, got %v", err)
+	}
+}
+
+// TestRunJSON: --json prints one MIME bundle per line, each with text/plain.
+func TestRunJSON(t *testing.T) {
+	dir := t.TempDir()
+	script := filepath.Join(dir, "s.nut")
+	src := "pulse hard = rect(duration = 250 us, flip = 90 deg)\nprint 1 kHz in uT\nsweep hard over offset -2 kHz to 2 kHz points 101\n"
+	if err := os.WriteFile(script, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	r := runner{json: true, stdout: &out, stderr: &out}
+	if err := r.script(context.Background(), script); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(out.String()), "\n")
+	if len(lines) < 2 {
+		t.Fatalf("want a bundle per output, got %d lines", len(lines))
+	}
+	sawSVG := false
+	for _, l := range lines {
+		var b map[string]any
+		if err := json.Unmarshal([]byte(l), &b); err != nil {
+			t.Fatalf("line is not JSON: %v\n%s", err, l)
+		}
+		if _, ok := b["text/plain"]; !ok {
+			t.Errorf("bundle without text/plain: %s", l)
+		}
+		if _, ok := b["image/svg+xml"]; ok {
+			sawSVG = true
+		}
+	}
+	if !sawSVG {
+		t.Error("the sweep gave no SVG plot")
+	}
+}
