@@ -44,6 +44,16 @@ func rampIndex(t float64) int {
 type oklab struct{ L, a, b float64 }
 
 func makeRamp(anchors []color.NRGBA, n int) []color.NRGBA {
+	out := make([]color.NRGBA, n)
+	for i, p := range rampLab(anchors, n) {
+		out[i] = fromOKLab(p)
+	}
+	return out
+}
+
+// rampLab samples the OKLab polyline through the anchors at n points equally
+// spaced in distance along it.
+func rampLab(anchors []color.NRGBA, n int) []oklab {
 	lab := make([]oklab, len(anchors))
 	for i, c := range anchors {
 		lab[i] = toOKLab(c)
@@ -54,7 +64,7 @@ func makeRamp(anchors []color.NRGBA, n int) []color.NRGBA {
 		d := lab[i].sub(lab[i-1])
 		cum[i] = cum[i-1] + math.Sqrt(d.L*d.L+d.a*d.a+d.b*d.b)
 	}
-	out := make([]color.NRGBA, n)
+	out := make([]oklab, n)
 	seg := 1
 	for k := range n {
 		s := cum[len(cum)-1] * float64(k) / float64(n-1)
@@ -63,7 +73,7 @@ func makeRamp(anchors []color.NRGBA, n int) []color.NRGBA {
 		}
 		f := (s - cum[seg-1]) / (cum[seg] - cum[seg-1])
 		p, q := lab[seg-1], lab[seg]
-		out[k] = fromOKLab(oklab{p.L + f*(q.L-p.L), p.a + f*(q.a-p.a), p.b + f*(q.b-p.b)})
+		out[k] = oklab{p.L + f*(q.L-p.L), p.a + f*(q.a-p.a), p.b + f*(q.b-p.b)}
 	}
 	return out
 }

@@ -1,0 +1,250 @@
+package display
+
+import (
+	"image/color"
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/plot/vg"
+)
+
+// A circle z = x² + y² = r² traced by marching squares: every point lies on the
+// circle up to the linear-interpolation error h²/(8r) (analytic bound), and the
+// line closes on itself.
+func TestContourCircle(t *testing.T) {
+	x, y := linspace(-2, 2, 81), linspace(-2, 2, 81)
+	z := make([][]float64, len(y))
+	for j := range y {
+		z[j] = make([]float64, len(x))
+		for i := range x {
+			z[j][i] = x[i]*x[i] + y[j]*y[j]
+		}
+	}
+	h := x[1] - x[0]
+	lines := contour(x, y, z, 1)
+	if len(lines) != 1 {
+		t.Fatalf("got %d lines, want 1 closed loop", len(lines))
+	}
+	l := lines[0]
+	if l[0] != l[len(l)-1] {
+		t.Errorf("loop not closed: starts %v, ends %v", l[0], l[len(l)-1])
+	}
+	tol := h * h / 8 * 1.01
+	for _, p := range l {
+		if r := math.Hypot(p[0], p[1]); math.Abs(r-1) > tol {
+			t.Fatalf("point %v at radius %v, want 1 ± %.2g", p, r, tol)
+		}
+	}
+	// A gap in the data opens the loop instead of failing.
+	z[40][60] = math.NaN() // (x, y) = (1, 0): on the circle
+	if lines := contour(x, y, z, 1); len(lines) != 1 || lines[0][0] == lines[0][len(lines[0])-1] {
+		t.Errorf("with a NaN cell on the circle: got %d lines, want one open chain", len(lines))
+	}
+	if lines := contour(x, y, z, 100); len(lines) != 0 {
+		t.Errorf("level above the data: got %d lines, want none", len(lines))
+	}
+}
+
+// OKLab reference values: sRGB red is oklch(62.8% 0.2577 29.23°) in CSS Color
+// Module Level 4 (W3C), i.e. a = 0.2249, b = 0.1258; white is L = 1, a = b = 0
+// (Ottosson 2020).
+func TestOKLab(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		c    [3]uint8
+		want oklab
+	}{
+		{"red", [3]uint8{255, 0, 0}, oklab{0.62796, 0.22486, 0.12585}},
+		{"white", [3]uint8{255, 255, 255}, oklab{1, 0, 0}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			got := toOKLab(rgb(tc.c))
+			if math.Abs(got.L-tc.want.L) > 1e-3 || math.Abs(got.a-tc.want.a) > 1e-3 || math.Abs(got.b-tc.want.b) > 1e-3 {
+				t.Errorf("got %+v, want %+v ± 1e-3", got, tc.want)
+			}
+			if back := fromOKLab(got); back != rgb(tc.c) {
+				t.Errorf("round trip: got %v, want %v", back, rgb(tc.c))
+			}
+		})
+	}
+}
+
+// The ramp is perceptually ordered and even: OKLab lightness rises along it, and
+// consecutive samples are equal OKLab distances apart along the anchor polyline
+// (a step that turns a corner at an anchor is a shorter chord; there are at most
+// as many of those as inner anchors).
+func TestRamp(t *testing.T) {
+	lab := rampLab(rampAnchors, rampSize)
+	var total float64
+	for i := 1; i < len(rampAnchors); i++ {
+		d := toOKLab(rampAnchors[i]).sub(toOKLab(rampAnchors[i-1]))
+		total += math.Sqrt(d.L*d.L + d.a*d.a + d.b*d.b)
+	}
+	step := total / (rampSize - 1)
+	corners := 0
+	for i := 1; i < rampSize; i++ {
+		d := lab[i].sub(lab[i-1])
+		dist := math.Sqrt(d.L*d.L + d.a*d.a + d.b*d.b)
+		switch {
+		case math.Abs(dist-step) < 1e-9*step:
+		case dist < step && dist > 0.5*step:
+			corners++
+		default:
+			t.Fatalf("step %d: OKLab distance %v, want %v", i, dist, step)
+		}
+		if lab[i].L <= lab[i-1].L {
+			t.Fatalf("lightness falls at %d: %v → %v", i, lab[i-1].L, lab[i].L)
+		}
+	}
+	if corners > len(rampAnchors)-2 {
+		t.Errorf("%d uneven steps, want at most %d (one per inner anchor)", corners, len(rampAnchors)-2)
+	}
+	if ramp[0] != rampAnchors[0] || ramp[rampSize-1] != rampAnchors[len(rampAnchors)-1] {
+		t.Errorf("ramp ends %v…%v, want the first and last anchors", ramp[0], ramp[rampSize-1])
+	}
+}
+
+func TestThinKeepsOutline(t *testing.T) {
+	var pts []vg.Point
+	for i := range 10000 {
+		x := float64(i) * 0.01 // 100 points per point of width
+		pts = append(pts, vg.Point{X: vg.Length(x), Y: vg.Length(50 * math.Sin(x*3.1))})
+	}
+	out := thin(pts)
+	if len(out) > 4*201 {
+		t.Errorf("got %d points, want ≤ 4 per half-point column", len(out))
+	}
+	if out[0] != pts[0] || out[len(out)-1] != pts[len(pts)-1] {
+		t.Errorf("ends not kept")
+	}
+	// Every column's extremes survive.
+	col := map[int][2]vg.Length{}
+	for _, p := range pts {
+		c := int(math.Floor(float64(p.X) * 2))
+		e, ok := col[c]
+		if !ok {
+			e = [2]vg.Length{p.Y, p.Y}
+		}
+		col[c] = [2]vg.Length{min(e[0], p.Y), max(e[1], p.Y)}
+	}
+	kept := map[int][2]vg.Length{}
+	for _, p := range out {
+		c := int(math.Floor(float64(p.X) * 2))
+		e, ok := kept[c]
+		if !ok {
+			e = [2]vg.Length{p.Y, p.Y}
+		}
+		kept[c] = [2]vg.Length{min(e[0], p.Y), max(e[1], p.Y)}
+	}
+	for c, e := range col {
+		if kept[c] != e {
+			t.Fatalf("column %d: kept range %v, want %v", c, kept[c], e)
+		}
+	}
+}
+
+func TestPixelCells(t *testing.T) {
+	t.Run("one pixel per even cell", func(t *testing.T) {
+		r := pixelCells(cellEdges(linspace(-4000, 4000, 161)), 660)
+		if len(r) != 161 || r[0] != [2]int{0, 1} || r[160] != [2]int{160, 161} {
+			t.Errorf("got %d pixels %v…%v, want 161 identity", len(r), r[0], r[len(r)-1])
+		}
+	})
+	t.Run("averaged down", func(t *testing.T) {
+		r := pixelCells(cellEdges(linspace(0, 1, 1201)), 660)
+		if len(r) != maxPixels {
+			t.Fatalf("got %d pixels, want %d", len(r), maxPixels)
+		}
+		next := 0
+		for i, c := range r {
+			if c[0] != next || c[1] <= c[0] {
+				t.Fatalf("pixel %d covers %v, want to start at %d and be non-empty", i, c, next)
+			}
+			next = c[1]
+		}
+		if next != 1201 {
+			t.Errorf("pixels cover cells up to %d, want 1201", next)
+		}
+	})
+	t.Run("uneven cells", func(t *testing.T) {
+		v := []float64{0, 1, 2, 10, 11}
+		e := cellEdges(v)
+		r := pixelCells(e, 100)
+		for p, c := range r {
+			mid := e[0] + (e[5]-e[0])*(float64(p)+0.5)/float64(len(r))
+			if c[1] != c[0]+1 || mid < e[c[0]] || mid > e[c[1]] {
+				t.Fatalf("pixel %d (centre %v) shows cells %v, edges %v", p, mid, c, e)
+			}
+		}
+	})
+}
+
+// textX maps each SVG text to its x position.
+func textX(t *testing.T, svg string) map[string]float64 {
+	t.Helper()
+	re := regexp.MustCompile(`<text x="([^"]*)"[^>]*>([^<]*)</text>`)
+	out := map[string]float64{}
+	for _, m := range re.FindAllStringSubmatch(svg, -1) {
+		x, err := strconv.ParseFloat(m[1], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[m[2]] = x
+	}
+	return out
+}
+
+func TestReverseAxis(t *testing.T) {
+	p := Profile{X: Axis{Label: "shift", Unit: "ppm", Values: linspace(-1, 6, 71), Reverse: true},
+		Curves: []Curve{{Quantity: "mz", Y: linspace(0, 1, 71)}}}
+	pos := textX(t, p.SVG())
+	hi, ok1 := pos["6"]
+	lo, ok2 := pos["−1"]
+	if !ok1 || !ok2 {
+		t.Fatalf("tick labels 6 and −1 missing: %v", pos)
+	}
+	if hi >= lo {
+		t.Errorf("reversed axis: 6 at x=%v, −1 at x=%v; want 6 on the left", hi, lo)
+	}
+}
+
+// Degenerate input never panics and still gives well-formed output.
+func TestDegenerateInput(t *testing.T) {
+	nan, inf := math.NaN(), math.Inf(1)
+	x := linspace(0, 1, 5)
+	cases := map[string]func() Bundle{
+		"empty profile":        Profile{}.Bundle,
+		"axis without curves":  Profile{X: Axis{Values: x}}.Bundle,
+		"short and long curve": Profile{X: Axis{Values: x}, Curves: []Curve{{Y: []float64{1, 2}}, {Y: linspace(0, 1, 9)}}}.Bundle,
+		"all NaN":              Profile{X: Axis{Values: x}, Curves: []Curve{{Y: []float64{nan, nan, nan, nan, nan}}}}.Bundle,
+		"constant":             Profile{X: Axis{Values: x}, Curves: []Curve{{Y: []float64{2, 2, 2, 2, 2}}}}.Bundle,
+		"single point":         Profile{X: Axis{Values: []float64{3}, Reverse: true}, Curves: []Curve{{Y: []float64{1}}}}.Bundle,
+		"NaN in x, marks off":  Profile{X: Axis{Values: []float64{0, nan, 2, inf, 4}}, Curves: []Curve{{Y: x}}, Marks: []Mark{{X: nan, Label: "a"}, {X: 99, Label: "b"}, {X: 2}}}.Bundle,
+		"huge and tiny":        Profile{X: Axis{Values: []float64{0, 1e-12}}, Curves: []Curve{{Y: []float64{1e300, -1e300}}}}.Bundle,
+		"empty map":            Map{}.Bundle,
+		"ragged map": Map{X: Axis{Values: x}, Y: Axis{Values: x[:3]},
+			Z: [][]float64{{1, 2}, {3}}, HasContour: true, Contour: 2}.Bundle,
+		"one cell map":   Map{X: Axis{Values: []float64{1}}, Y: Axis{Values: []float64{2}}, Z: [][]float64{{5}}, HasContour: true}.Bundle,
+		"all NaN map":    Map{X: Axis{Values: x[:2]}, Y: Axis{Values: x[:2]}, Z: [][]float64{{nan, nan}, {nan, nan}}, HasContour: true}.Bundle,
+		"descending map": Map{X: Axis{Values: []float64{3, 2, 0}}, Y: Axis{Values: []float64{5, 1}, Reverse: true}, Z: [][]float64{{1, 2, 3}, {4, 5, 6}}, ZMin: 9, ZMax: 1}.Bundle,
+		"empty waveform": func() Bundle { return Waveform{}.Bundle(Table{}) },
+		"no time":        func() Bundle { return Waveform{Amplitude: []float64{1, 2}}.Bundle(Table{}) },
+		"one sample":     func() Bundle { return Waveform{Time: []float64{1e-6}, Phase: []float64{90}}.Bundle(Table{}) },
+	}
+	for name, f := range cases {
+		t.Run(name, func(t *testing.T) {
+			b := f()
+			checkXML(t, render(t, b))
+			if s, _ := b["text/plain"].(string); strings.TrimSpace(s) == "" {
+				t.Errorf("empty text/plain")
+			}
+			var v any
+			decode(t, b, &v)
+		})
+	}
+}
+
+func rgb(c [3]uint8) color.NRGBA { return color.NRGBA{R: c[0], G: c[1], B: c[2], A: 0xff} }
