@@ -66,9 +66,10 @@ func Bir4(c Common, gamma float64, bandwidth, lambda, kappa float64) (*Pulse, er
 	theta := c.Flip
 	F := bandwidth / 2
 	tk := math.Tan(kappa)
-	// P(u) = 2π∫F·tan(κu)/tan κ dt over local time, dt = T/4·du.
+	// P(u) = −2π∫F·tan(κu)/tan κ dt over local time, dt = T/4·du (sign as in
+	// applyPhase).
 	P := func(u float64) float64 {
-		return 2 * math.Pi * F / tk * (T / 4) * (-math.Log(math.Cos(kappa * u))) / kappa
+		return 2 * math.Pi * F / tk * (T / 4) * math.Log(math.Cos(kappa*u)) / kappa
 	}
 	jump := math.Pi + theta/2
 	u := make([]float64, n)

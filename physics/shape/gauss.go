@@ -17,7 +17,8 @@ import (
 //     of exp(−4.5) ≈ 0.0111.
 //
 // Pulse.TBW and Pulse.Bandwidth report the tbw and its bandwidth either way.
-// Sample times are sample midpoints.
+// Sample times are sample midpoints; the default of 257 samples is odd so
+// that the peak at the middle is a sample.
 func Gauss(c Common, gamma float64, tbw, cutoff float64) (*Pulse, error) {
 	const name = "gauss"
 	T := c.Duration

@@ -49,7 +49,9 @@ type Properties struct {
 	// Role is the role whose profile was measured: for excite and none |Mxy|,
 	// invert (1 − Mz)/2, refocus |β|², saturate 1 − |Mz|, all from +z.
 	Role Role
-	// OnBand is the profile's value at the pulse's centre frequency.
+	// OnBand is the profile's value at the pulse's centre frequency. The
+	// profile figures below need it to be at least a tenth of the profile's
+	// largest value.
 	OnBand float64
 	// Bandwidth (Hz) is the distance between the offsets, nearest the centre on
 	// either side, where the simulated profile crosses OnBand/2 (refined by
@@ -290,9 +292,20 @@ func (m *meter) crossing(level float64, dir int) (f float64, ok bool, err error)
 	return (a + b) / 2, true, nil
 }
 
+// hasBand reports whether the profile has a band about its centre: an on-band
+// value of at least a tenth of the profile's largest.
+func (m *meter) hasBand() bool {
+	top := 0.0
+	for _, v := range m.val {
+		top = math.Max(top, v)
+	}
+	v0 := m.onBand()
+	return v0 > 1e-12 && v0 >= 0.1*top
+}
+
 func (m *meter) crossesHalf() bool {
 	v0 := m.onBand()
-	if !(v0 > 0.01) {
+	if !m.hasBand() {
 		return true // no band to find; widening would not help
 	}
 	return m.val[0] < v0/2 && m.val[len(m.val)-1] < v0/2
@@ -301,7 +314,7 @@ func (m *meter) crossesHalf() bool {
 func (m *meter) features(pr *Properties) error {
 	v0 := m.onBand()
 	pr.OnBand = v0
-	if !(v0 > 0.01) {
+	if !m.hasBand() {
 		return nil
 	}
 	var cross [3][2]float64 // levels 0.5, 0.9, 0.1; sides left, right

@@ -214,8 +214,11 @@ func amplitudeModulated(name string, c Common, gamma float64, u []float64, dt fl
 }
 
 // applyPhase rotates the waveform by a constant phase and moves its band to
-// center Hz: B1(t) → B1(t)·exp(i(φ + 2π·center·(t − T/2))), the phase referenced to
-// the pulse's midpoint so the centre of the band keeps the phase given.
+// center Hz: B1(t) → B1(t)·exp(i(φ − 2π·center·(t − T/2))), the phase referenced to
+// the pulse's midpoint so the centre of the band keeps the phase given. The minus
+// sign follows package physics: the transverse magnetization of a spin at offset
+// Δf turns as exp(−i·2πΔf·t) in the carrier frame, so an RF field at frequency f
+// relative to the carrier has phase −2π∫f dt.
 func (p *Pulse) applyPhase(phase, center float64) {
 	if phase == 0 && center == 0 {
 		return
@@ -224,7 +227,7 @@ func (p *Pulse) applyPhase(phase, center float64) {
 	t := 0.0
 	for j := range p.Wave.B1 {
 		mid := t + p.Wave.Dwell[j]/2
-		ph := phase + 2*math.Pi*center*(mid-T/2)
+		ph := phase - 2*math.Pi*center*(mid-T/2)
 		s, c := math.Sincos(ph)
 		p.Wave.B1[j] *= complex(c, s)
 		t += p.Wave.Dwell[j]

@@ -176,15 +176,15 @@ func FromSamples(s Samples, c Common, gamma float64) (*Pulse, error) {
 	return p, p.setSlice(c)
 }
 
-// integrateSampledPhase integrates a per-sample frequency (Hz) into a phase at the
-// sample midpoints by the trapezoidal rule between midpoints, zero at the middle
-// sample.
+// integrateSampledPhase integrates a per-sample frequency (Hz) into a phase
+// −2π∫f dt (sign as in applyPhase) at the sample midpoints by the trapezoidal
+// rule between midpoints, zero at the middle sample.
 func integrateSampledPhase(f, dwell []float64) []float64 {
 	n := len(f)
 	ph := make([]float64, n)
 	for j := 1; j < n; j++ {
 		dt := (dwell[j-1] + dwell[j]) / 2
-		ph[j] = ph[j-1] + 2*math.Pi*(f[j-1]+f[j])/2*dt
+		ph[j] = ph[j-1] - 2*math.Pi*(f[j-1]+f[j])/2*dt
 	}
 	ref := ph[n/2]
 	for j := range ph {

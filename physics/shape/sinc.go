@@ -8,8 +8,8 @@ import (
 // Window tapers a sinc.
 type Window int
 
-// Windows: generalised cosine windows w = α + (1−α)cos(2πt/T), t ∈ [−T/2, T/2];
-// Hann α = 0.5, Hamming α = 0.46 (common practice).
+// Windows: generalised cosine windows w = (1−α) + α·cos(2πt/T), t ∈ [−T/2, T/2];
+// Hann α = 0.5, Hamming α = 0.46, i.e. 0.54 + 0.46·cos (common practice).
 const (
 	WindowNone Window = iota
 	WindowHann
@@ -35,7 +35,8 @@ func WindowNames() []string { return windowNames[:] }
 
 // Sinc is a windowed sinc with tbw zero crossings over the duration (the
 // time-bandwidth product; bandwidth ≈ tbw/T, Bernstein, King & Zhou 2004).
-// Sample times are sample midpoints.
+// Sample times are sample midpoints; the default of 257 samples is odd so
+// that the peak at the middle is a sample.
 func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 	if !(tbw > 0) || math.IsInf(tbw, 0) {
 		return nil, fmt.Errorf("sinc: tbw must be positive, got %g", tbw)
@@ -65,9 +66,11 @@ func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 }
 
 // SincLobes is Sinc with the width given as a number of lobes instead of tbw.
-// lobes counts the main lobe and every side lobe over the whole pulse; a lobe
-// runs between neighbouring zero crossings, and the ends of the pulse are zero
-// crossings, so tbw = lobes + 1 (3 lobes: tbw 4, zeros at ±T/4 and ±T/2).
+// lobes counts the main lobe and every side lobe over the whole pulse, a lobe
+// running between neighbouring zero crossings: tbw = lobes + 1. For odd lobes
+// the ends of the pulse are zero crossings and the pulse holds exactly that many
+// whole lobes (3 lobes: tbw 4, zeros at ±T/4 and ±T/2); for even lobes the ends
+// fall in the middle of a lobe and the two end half lobes count as one.
 func SincLobes(c Common, gamma float64, lobes int, win Window) (*Pulse, error) {
 	if lobes < 1 || lobes > 1_000_000 {
 		return nil, fmt.Errorf("sinc: lobes must be 1 to 1000000, got %d", lobes)
@@ -89,5 +92,5 @@ func window(w Window, t, T float64) float64 {
 	default:
 		return 1
 	}
-	return a + (1-a)*math.Cos(2*math.Pi*t/T)
+	return (1 - a) + a*math.Cos(2*math.Pi*t/T)
 }

@@ -30,10 +30,11 @@ func sampleTimes(n int, dt float64) []float64 {
 	return ts
 }
 
-// integratePhase returns φ(t_j) = 2π ∫₀^{t_j} f(t) dt at the sample midpoints t_j
-// (times from the middle of the pulse), by composite Simpson's rule on four
-// sub-intervals between neighbouring midpoints. The phase is zero at the middle of
-// the pulse.
+// integratePhase returns the phase φ(t_j) = −2π ∫₀^{t_j} f(t) dt of an RF field of
+// instantaneous frequency f (Hz, relative to the carrier; see applyPhase for the
+// sign) at the sample midpoints t_j (times from the middle of the pulse), by
+// composite Simpson's rule on four sub-intervals between neighbouring midpoints.
+// The phase is zero at the middle of the pulse.
 func integratePhase(f func(t float64) float64, ts []float64) []float64 {
 	simpson := func(a, b float64) float64 {
 		const k = 4
@@ -54,12 +55,12 @@ func integratePhase(f func(t float64) float64, ts []float64) []float64 {
 	}
 	// Start from the midpoint nearest the middle, integrating from t = 0.
 	m := len(ts) / 2
-	ph[m] = 2 * math.Pi * simpson(0, ts[m])
+	ph[m] = -2 * math.Pi * simpson(0, ts[m])
 	for j := m + 1; j < len(ts); j++ {
-		ph[j] = ph[j-1] + 2*math.Pi*simpson(ts[j-1], ts[j])
+		ph[j] = ph[j-1] - 2*math.Pi*simpson(ts[j-1], ts[j])
 	}
 	for j := m - 1; j >= 0; j-- {
-		ph[j] = ph[j+1] - 2*math.Pi*simpson(ts[j], ts[j+1])
+		ph[j] = ph[j+1] + 2*math.Pi*simpson(ts[j], ts[j+1])
 	}
 	return ph
 }
