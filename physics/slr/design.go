@@ -6,6 +6,8 @@ import (
 	"math"
 	"math/cmplx"
 
+	"sync"
+
 	"gonum.org/v1/gonum/dsp/fourier"
 )
 
@@ -22,6 +24,20 @@ type cepstrum struct {
 
 func newCepstrum(m int) *cepstrum {
 	return &cepstrum{m: m, fft: fourier.NewFFT(m), spec: make([]complex128, m/2+1), seq: make([]float64, m)}
+}
+
+// cepstra keeps FFT plans and buffers between designs, one pool per grid size.
+var cepstra sync.Map // int → *sync.Pool
+
+func getCepstrum(m int) *cepstrum {
+	p, _ := cepstra.LoadOrStore(m, &sync.Pool{New: func() any { return newCepstrum(m) }})
+	return p.(*sync.Pool).Get().(*cepstrum)
+}
+
+func putCepstrum(c *cepstrum) {
+	if p, ok := cepstra.Load(c.m); ok {
+		p.(*sync.Pool).Put(c)
+	}
 }
 
 // logFloor bounds log|H| from below where the magnitude vanishes.
@@ -143,50 +159,76 @@ func crossing(h []float64, level, lo, hi float64) float64 {
 // equiripple by Remez exchange, falling back to least squares when the exchange
 // fails. The published edges centre the transition on the nominal edge; because
 // the transition of an equiripple filter with δ1 ≠ δ2 is not symmetric, the
-// transition is moved (secant steps, each exchange warm-started from the last)
-// until the crossing is within 0.1 % of edge. It reports the method used.
+// transition is moved by secant steps until the crossing is within 0.2 % of
+// edge. The steps run on a coarse grid, each warm-started from the last; the
+// final design on the full grid starts from the coarse extremal set. It reports
+// the method used.
 func lowpass(taps int, edge, tw, level, d1, d2 float64) (h []float64, fp, fs float64, method string, err error) {
-	method = "remez"
-	ext := []float64(nil)
-	design := func(bands []Band) ([]float64, error) {
-		if method == "remez" {
-			h, e, err := remez(taps, bands, ext)
-			if err == nil {
-				ext = e
-				return h, nil
-			}
-			if !errors.Is(err, ErrNoConvergence) {
-				return nil, err
-			}
-			method = "least squares"
-		}
-		return LeastSquares(taps, bands)
-	}
-	var best []float64
-	c := edge
-	for range 6 {
+	bands := func(c float64) ([]Band, bool) {
 		p, s := c-tw/2, c+tw/2
-		if !(p > 0 && s < 0.5) {
-			break
-		}
-		hh, err := design([]Band{{0, p, 1, 1}, {s, 0.5, 0, d1 / d2}})
-		if err != nil {
-			if best != nil {
+		return []Band{{0, p, 1, 1}, {s, 0.5, 0, d1 / d2}}, p > 0 && s < 0.5
+	}
+	centre := func(design func([]Band) ([]float64, error), tol float64) (c float64, h []float64, err error) {
+		c = edge
+		prevC, prevF := math.NaN(), math.NaN()
+		for range 6 {
+			b, ok := bands(c)
+			if !ok {
 				break
 			}
-			return nil, 0, 0, "", err
+			hh, err := design(b)
+			if err != nil {
+				return 0, nil, err
+			}
+			h = hh
+			f := crossing(hh, level, 0, math.Min(0.5, c+1.5*tw))
+			if math.IsNaN(f) || math.Abs(f-edge) <= tol*edge {
+				return c, h, nil
+			}
+			slope := 1.0 // the crossing moves with the transition
+			if !math.IsNaN(prevF) && f != prevF {
+				slope = (f - prevF) / (c - prevC)
+			}
+			prevC, prevF = c, f
+			c += (edge - f) / slope
 		}
-		best, fp, fs = hh, p, s
-		f := crossing(hh, level, 0, math.Min(0.5, s+tw))
-		if math.IsNaN(f) || math.Abs(f-edge) <= 1e-3*edge {
-			break
+		if h == nil {
+			return 0, nil, fmt.Errorf("transition band %g to %g cycles/sample does not fit", edge-tw/2, edge+tw/2)
 		}
-		c += edge - f
+		return prevC, h, nil
 	}
-	if best == nil {
-		return nil, 0, 0, "", fmt.Errorf("transition band %g to %g cycles/sample does not fit", edge-tw/2, edge+tw/2)
+	var ext []float64
+	coarse := func(b []Band) ([]float64, error) {
+		hh, e, err := remez(taps, b, ext, 4)
+		ext = e
+		return hh, err
 	}
-	return best, fp, fs, method, nil
+	fine := func(b []Band) ([]float64, error) {
+		hh, e, err := remez(taps, b, ext, gridDensity)
+		ext = e
+		return hh, err
+	}
+	c, _, err := centre(coarse, 2e-3)
+	if err == nil {
+		var b []Band
+		b, _ = bands(c)
+		h, err = fine(b)
+		if err == nil {
+			f := crossing(h, level, 0, math.Min(0.5, c+1.5*tw))
+			if !(math.Abs(f-edge) <= 5e-3*edge) {
+				c, h, err = centre(fine, 2e-3)
+			}
+		}
+	}
+	method = "remez"
+	if errors.Is(err, ErrNoConvergence) {
+		method = "least squares"
+		c, h, err = centre(func(b []Band) ([]float64, error) { return LeastSquares(taps, b) }, 2e-3)
+	}
+	if err != nil {
+		return nil, 0, 0, "", err
+	}
+	return h, c - tw/2, c + tw/2, method, nil
 }
 
 // betaFilter designs the unit-passband β filter of n taps with ripples d1, d2.
@@ -237,7 +279,7 @@ func betaFilter(n int, tbw, d1, d2 float64, design Design, cep *cepstrum) (h []f
 const betaMargin = 1e-6
 
 // gridFactor sets the minimum-phase grid to gridFactor·n points (at least 2^14):
-// with betaMargin it keeps the forward transform of the RF within 1e-8 of β.
+// with betaMargin it keeps the forward transform of the RF within about 1e-8 of β.
 const gridFactor = 256
 
 // polynomials scales the unit β filter h to β = i·sin(θ/2)·h (the factor i makes

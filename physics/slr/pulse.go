@@ -148,7 +148,8 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 		}
 		return fail("samples: got %d, fewer than the filter needs for tbw %g with these ripples; want at least %d", n, tbw, need)
 	}
-	cep := newCepstrum(gridSize(n))
+	cep := getCepstrum(gridSize(n))
+	defer putCepstrum(cep)
 	h, fp, fs, method, err := betaFilter(n, tbw, d1, d2, spec.Design, cep)
 	if err != nil {
 		return nil, nil, fmt.Errorf("slr: %w", err)

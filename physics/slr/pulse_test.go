@@ -23,7 +23,7 @@ func simulate(t *testing.T, p *shape.Pulse, offs []float64) *physics.Result {
 }
 
 // The exact Bloch engine, run on the hard-pulse model of each designed pulse,
-// agrees with the profile the SLR polynomials predict to 1e-6 (CHECKS.md
+// agrees with the profile predicted by the forward transform's polynomials to 1e-6 (CHECKS.md
 // tolerance for exact Bloch results; Pauly et al. 1991). The piecewise-constant
 // pulse itself differs from that model by the hard-pulse approximation; the
 // difference is logged.
@@ -32,10 +32,11 @@ func TestDesignedProfileMatchesBlochEngine(t *testing.T) {
 	const T = 4e-3
 	for _, c := range designCases()[:15] {
 		t.Run(fmt.Sprintf("%s_%v", c.prof.name, c.design), func(t *testing.T) {
-			p, info := c.build(t, g, T)
+			p, _ := c.build(t, g, T)
 			dt := p.Wave.Dwell[0]
 			offs := offsets(-0.25/dt, 0.25/dt, 257)
-			al, be := Profile(info.A, info.B, dt, offs)
+			a, b := Forward(rotations(p))
+			al, be := Profile(a, b, dt, offs)
 			res, err := physics.Simulate(context.Background(), hardModel(rotations(p), dt, g), g, &physics.Isochromats{Offset: offs}, physics.Options{})
 			if err != nil {
 				t.Fatal(err)

@@ -49,14 +49,19 @@ func checkBands(taps int, bands []Band) error {
 // x = cos ω. For even taps the response is zero at 0.5 cycles/sample. It returns
 // ErrNoConvergence (wrapped) when the exchange does not settle.
 func Remez(taps int, bands []Band) ([]float64, error) {
-	h, _, err := remez(taps, bands, nil)
+	h, _, err := remez(taps, bands, nil, gridDensity)
 	return h, err
 }
 
-// remez is Remez started from the extremal frequencies init (cycles/sample) when
-// they fit the problem, evenly spaced ones otherwise; it also returns the final
-// extremal frequencies, to warm-start a neighbouring design.
-func remez(taps int, bands []Band, init []float64) ([]float64, []float64, error) {
+// gridDensity is the number of dense-grid points per basis function over 0 to
+// 0.5 cycles/sample (16, common practice since Parks & McClellan).
+const gridDensity = 16
+
+// remez is Remez on a grid of the given density, started from the extremal
+// frequencies init (cycles/sample) when they fit the problem, evenly spaced ones
+// otherwise; it also returns the final extremal frequencies, to warm-start a
+// neighbouring or finer design.
+func remez(taps int, bands []Band, init []float64, density int) ([]float64, []float64, error) {
 	if err := checkBands(taps, bands); err != nil {
 		return nil, nil, fmt.Errorf("remez: %w", err)
 	}
@@ -65,9 +70,7 @@ func remez(taps int, bands []Band, init []float64) ([]float64, []float64, error)
 	if odd {
 		r++
 	}
-	// Dense grid: 16 points per basis function over the whole 0 to 0.5 range
-	// (common practice), refined within the bands.
-	step := 0.5 / float64(16*r)
+	step := 0.5 / float64(density*r)
 	var f, x, d, w []float64
 	var bandEnd []int
 	for _, b := range bands {
@@ -139,8 +142,14 @@ func remez(taps int, bands []Band, init []float64) ([]float64, []float64, error)
 	for iter := 0; iter < maxIter; iter++ {
 		ip.fit(ext, x, d, w)
 		maxE := 0.0
+		k := 0
 		for i := range f {
-			e[i] = w[i] * (d[i] - ip.eval(x[i]))
+			if k < len(ext) && ext[k] == i {
+				e[i] = w[i] * (d[i] - ip.ys[k])
+				k++
+			} else {
+				e[i] = w[i] * (d[i] - ip.evalOff(x[i]))
+			}
 			maxE = math.Max(maxE, math.Abs(e[i]))
 		}
 		// Accept extrema down to |δ| less rounding: δ can itself be near rounding
@@ -221,6 +230,19 @@ func (p *interpolant) fit(ext []int, x, d, w []float64) {
 		p.ys[k] = d[i] - sign*p.delta/w[i]
 		sign = -sign
 	}
+}
+
+// evalOff is eval at an x that is none of the nodes.
+func (p *interpolant) evalOff(x float64) float64 {
+	num, den := 0.0, 0.0
+	ys := p.ys[:len(p.xs)]
+	bw := p.bw[:len(p.xs)]
+	for k, xk := range p.xs {
+		t := bw[k] / (x - xk)
+		num += t * ys[k]
+		den += t
+	}
+	return num / den
 }
 
 func (p *interpolant) eval(x float64) float64 {
