@@ -31,6 +31,14 @@ func wordAt(rs []rune, cursor int) (int, int) {
 func (s *Session) Complete(code string, cursor int) ([]string, int, int) {
 	rs := []rune(code)
 	start, end := wordAt(rs, cursor)
+	// A unit glued to a number (`250u`): complete the unit only.
+	if start < len(rs) && rs[start] >= '0' && rs[start] <= '9' {
+		errs := &errorList{}
+		sc := newScanner(string(rs[start:end]), errs)
+		if t := sc.next(); t.Kind == tNumber {
+			start += len([]rune(t.Text))
+		}
+	}
 	prefix := string(rs[start:min(max(cursor, start), len(rs))])
 	before := string(rs[:start])
 	cands := s.candidates(before, prefix)

@@ -96,10 +96,10 @@ func (ev *evaluator) exec(s Stmt) error {
 		if err != nil {
 			return err
 		}
-		b0, err := ev.want(v, dimField, "field", s.X.Position())
-		if err != nil {
-			return err
+		if v.Q.D != dimField {
+			return errAt(s.X.Position(), "field expects a magnetic field in tesla units, got %s", describeValue(v))
 		}
+		b0 := v.Q.V
 		if !(b0 > 0) || b0 > 100 {
 			return errAt(s.X.Position(), "field must be above 0 T and at most 100 T, got %s", v)
 		}

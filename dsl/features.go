@@ -25,10 +25,10 @@ func curveFeatures(x, y []float64, phase bool) features {
 	}
 	imin, imax := 0, 0
 	for i, v := range y {
-		if v < y[imin] {
+		if v < y[imin]-tieTol(y[imin]) {
 			imin = i
 		}
-		if v > y[imax] {
+		if v > y[imax]+tieTol(y[imax]) {
 			imax = i
 		}
 	}
@@ -38,7 +38,7 @@ func curveFeatures(x, y []float64, phase bool) features {
 	}
 	base := (y[0] + y[n-1]) / 2
 	ext := imax
-	if math.Abs(y[imin]-base) > math.Abs(y[imax]-base) {
+	if math.Abs(y[imin]-base) > math.Abs(y[imax]-base)+tieTol(y[imax]) {
 		ext = imin
 	}
 	half := (base + y[ext]) / 2

@@ -220,6 +220,11 @@ func wordHelp(w string) (string, bool) {
 			parts = append(parts, "argument of every shape\n  "+argLine(a))
 		}
 	}
+	for _, a := range trainArgs {
+		if a.Name == w && w == "gap" {
+			parts = append(parts, "argument of train\n  "+argLine(a))
+		}
+	}
 	if argText != "" {
 		parts = append(parts, "argument of "+strings.Join(argShapes, ", ")+"\n  "+argText)
 	}

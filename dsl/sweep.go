@@ -814,6 +814,9 @@ func fmtCell(v float64) string {
 	if math.IsNaN(v) {
 		return "—"
 	}
+	if math.Abs(v) < 1e-10 {
+		v = 0 // rounding noise of an exact zero
+	}
 	return fmt.Sprintf("%.4g", v)
 }
 
@@ -858,10 +861,12 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) displa
 	lo, hi, loAt, hiAt := math.Inf(1), math.Inf(-1), 0, 0
 	met := 0
 	for i, v := range c.values {
-		if v < lo {
+		// Ties within rounding noise keep the first point, so that the
+		// summary does not hinge on the last bits of the simulation.
+		if v < lo-tieTol(lo) {
 			lo, loAt = v, i
 		}
-		if v > hi {
+		if v > hi+tieTol(hi) {
 			hi, hiAt = v, i
 		}
 		if ok && cmp(v) {
@@ -908,4 +913,12 @@ func targetText(r shape.Role, level float64) string {
 		return "within ±0.1"
 	}
 	return "≥ 0.9"
+}
+
+// tieTol is the difference below which two values count as equal in summaries.
+func tieTol(v float64) float64 {
+	if math.IsInf(v, 0) {
+		return 0
+	}
+	return 1e-9 * math.Max(1, math.Abs(v))
 }
