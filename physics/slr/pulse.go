@@ -102,6 +102,9 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 			return fail("%s ripple: got %g, want between 0 and 1 (exclusive)", r.name, r.v)
 		}
 	}
+	if math.IsNaN(c.Phase) || math.IsInf(c.Phase, 0) || math.IsNaN(c.Center) || math.IsInf(c.Center, 0) {
+		return fail("phase and center: got %g rad and %g Hz, want finite values", c.Phase, c.Center)
+	}
 	if !math.IsNaN(c.Peak) {
 		return fail("peak: the amplitude of an slr pulse follows from its design; give flip (excite) or neither")
 	}
@@ -137,7 +140,7 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 	}
 	if _, fs := edges(n, taps, tbw, dinf); !(fs < 0.5) {
 		need := n
-		for ; ; need++ {
+		for ; need <= MaxSamples; need++ {
 			t := need
 			if spec.Design != Linear {
 				t = 2*need - 1
@@ -145,6 +148,9 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 			if _, s := edges(need, t, tbw, dinf); s < 0.5 {
 				break
 			}
+		}
+		if need > MaxSamples {
+			return fail("tbw: got %g, too large for at most %d samples with these ripples", tbw, MaxSamples)
 		}
 		return fail("samples: got %d, fewer than the filter needs for tbw %g with these ripples; want at least %d", n, tbw, need)
 	}
