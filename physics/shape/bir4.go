@@ -27,7 +27,9 @@ var DefaultBir4Kappa = math.Atan(20)
 // (Hz). lambda (0: DefaultBir4Lambda) and kappa in rad (0: DefaultBir4Kappa) are
 // the modulation constants. The frequency is integrated into the phase of B1
 // (∫tan = −ln cos / κ, in closed form) and recorded in Pulse.Freq. On resonance
-// and well above its threshold, the pulse turns +z to Mz = cos θ for any B1 scale.
+// and well above its threshold, the pulse turns +z to Mz = cos θ for any B1 scale;
+// its tolerance of offsets grows with B1, so it has no design band: Bandwidth is
+// 0 (thickness cannot be derived) and the sweep is recorded in Pulse.Sweep.
 func Bir4(c Common, gamma float64, bandwidth, lambda, kappa float64) (*Pulse, error) {
 	const name = "bir4"
 	if lambda == 0 {
@@ -99,7 +101,6 @@ func Bir4(c Common, gamma float64, bandwidth, lambda, kappa float64) (*Pulse, er
 		return nil, err
 	}
 	p.Flip = math.Abs(theta)
-	p.Bandwidth = bandwidth
-	p.TBW = bandwidth * T
+	p.Sweep = bandwidth
 	return p, p.setSlice(c)
 }

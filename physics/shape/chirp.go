@@ -43,6 +43,7 @@ func Chirp(c Common, gamma float64, bandwidth, ramp float64) (*Pulse, error) {
 		p.Role = RoleInvert
 	}
 	p.Bandwidth = bandwidth
+	p.Sweep = bandwidth
 	p.TBW = bandwidth * T
 	return p, p.setSlice(c)
 }

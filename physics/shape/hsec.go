@@ -68,6 +68,7 @@ func Hsec(c Common, gamma float64, order int, bandwidth, beta float64) (*Pulse, 
 		p.Role = RoleInvert
 	}
 	p.Bandwidth = bandwidth
+	p.Sweep = bandwidth
 	p.TBW = bandwidth * T
 	return p, p.setSlice(c)
 }

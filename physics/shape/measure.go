@@ -18,11 +18,15 @@ type MeasureOptions struct {
 	// centre is a point); 0: 401.
 	Points int
 	// Span (Hz) is the half-width of the simulated profile about the pulse's
-	// centre; 0: twice the design bandwidth, at least 4/T. It widens (up to 16×)
-	// until the profile falls below half of its on-band value on both sides.
+	// centre; 0: twice the design bandwidth, at least half the sweep and 4/T. It
+	// widens (by 4× steps, up to 64×) until the profile falls below half of its
+	// on-band value on both sides.
 	Span float64
 	// Workers is passed to the simulation; 0: GOMAXPROCS.
 	Workers int
+	// Offset (Hz) moves the centre about which the band is sought from the
+	// pulse's Center to Center + Offset (for data whose band is elsewhere).
+	Offset float64
 }
 
 // Profile is a simulated response against frequency offset.
@@ -110,7 +114,10 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	if opt.Points < 0 || opt.Points > 100001 {
 		return pr, fmt.Errorf("measure: points must be 3 to 100001, got %d", opt.Points)
 	}
-	m := &meter{ctx: ctx, p: p, gammaBar: math.Abs(p.Gamma) / (2 * math.Pi), workers: opt.Workers}
+	if math.IsNaN(opt.Offset) || math.IsInf(opt.Offset, 0) {
+		return pr, fmt.Errorf("measure: offset must be finite, got %g Hz", opt.Offset)
+	}
+	m := &meter{ctx: ctx, p: p, gammaBar: math.Abs(p.Gamma) / (2 * math.Pi), workers: opt.Workers, center: p.Center + opt.Offset}
 	m.w = p.Wave
 	m.w.Gradient = nil
 	m.role = p.Role
@@ -134,7 +141,7 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	pr.Bandwidth, pr.Edges, pr.Transition, pr.PassRipple, pr.StopRipple = nan, [2]float64{nan, nan}, nan, nan, nan
 	pr.Threshold, pr.ThresholdHz, pr.Thickness, pr.ShiftPerPPM = nan, nan, nan, nan
 
-	r, err := m.sim([]float64{p.Center}, nil)
+	r, err := m.sim([]float64{m.center}, nil)
 	if err != nil {
 		return pr, err
 	}
@@ -152,7 +159,7 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	}
 	span := opt.Span
 	if span == 0 {
-		span = math.Max(2*p.Bandwidth, 4/T)
+		span = math.Max(math.Max(2*p.Bandwidth, p.Sweep/2), 4/T)
 	}
 	if !(span > 0) || math.IsInf(span, 0) {
 		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
@@ -161,10 +168,10 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 		if err := m.profile(span, points); err != nil {
 			return pr, err
 		}
-		if m.crossesHalf() || widen == 4 {
+		if m.crossesHalf() || widen == 3 {
 			break
 		}
-		span *= 2
+		span *= 4
 	}
 	pr.Profile = Profile{Offset: m.off, Value: m.val}
 	if err := m.features(&pr); err != nil {
@@ -208,8 +215,9 @@ type meter struct {
 	role     Role
 	gammaBar float64
 	workers  int
+	center   float64 // Hz, where the band is sought
 	off, val []float64
-	center   int // index of the centre in off
+	mid      int // index of the centre in off
 }
 
 func (m *meter) sim(offsets, scales []float64) (*physics.Result, error) {
@@ -241,13 +249,13 @@ func (m *meter) at(f float64) (float64, error) {
 }
 
 func (m *meter) profile(span float64, points int) error {
-	c := m.p.Center
+	c := m.center
 	m.off = make([]float64, points)
 	for i := range m.off {
 		m.off[i] = c - span + 2*span*float64(i)/float64(points-1)
 	}
-	m.center = points / 2
-	m.off[m.center] = c
+	m.mid = points / 2
+	m.off[m.mid] = c
 	r, err := m.sim(m.off, nil)
 	if err != nil {
 		return err
@@ -259,13 +267,13 @@ func (m *meter) profile(span float64, points int) error {
 	return nil
 }
 
-func (m *meter) onBand() float64 { return m.val[m.center] }
+func (m *meter) onBand() float64 { return m.val[m.mid] }
 
 // crossing searches outward from the centre (dir ±1) for the first grid point
 // below level and refines the crossing by bisection. ok is false when the
 // profile stays at or above level to the end of the grid.
 func (m *meter) crossing(level float64, dir int) (f float64, ok bool, err error) {
-	i := m.center
+	i := m.mid
 	for {
 		j := i + dir
 		if j < 0 || j >= len(m.val) {
@@ -336,7 +344,7 @@ func (m *meter) features(pr *Properties) error {
 	if math.IsNaN(pr.Bandwidth) || math.IsNaN(pr.Transition) {
 		return nil
 	}
-	c := m.p.Center
+	c := m.center
 	pass, stop := math.NaN(), math.NaN()
 	for i, f := range m.off {
 		d := math.Abs(f - c)
@@ -396,7 +404,7 @@ func (m *meter) met(scales []float64) ([]bool, error) {
 }
 
 func (m *meter) thresholdOffsets() []float64 {
-	c, bw := m.p.Center, m.p.Bandwidth
+	c, bw := m.center, m.p.Bandwidth
 	if !(bw > 0) {
 		return []float64{c}
 	}

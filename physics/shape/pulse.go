@@ -71,6 +71,7 @@ type Pulse struct {
 	Bandwidth float64   // Hz, design bandwidth; 0 where none
 	TBW       float64   // time-bandwidth product; 0 where none
 	Adiabatic bool      // amplitude set by peak, flip by adiabatic passage
+	Sweep     float64   // Hz, frequency-sweep range of a frequency-modulated pulse; 0 if none
 	Freq      []float64 // Hz, instantaneous RF frequency relative to the carrier, per sample; nil if none
 	Gradient  float64   // T/m, constant slice-select gradient; 0: none
 	Center    float64   // Hz

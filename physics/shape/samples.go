@@ -31,7 +31,9 @@ type Samples struct {
 // FromSamples builds a pulse from samples. Common.Duration, when given (> 0),
 // must match the samples; Samples and Dwell of Common must not be given. The
 // amplitude is used as given unless Common.Flip (scale so that γ|∫B1 dt| equals
-// the flip) or Common.Peak (scale to that peak) is given, not both. Phase,
+// the flip, B1 taken in the frame that follows Freq when it is given) or
+// Common.Peak (scale to that peak) is given, not both; Pulse.Flip is that
+// nominal flip after scaling. Phase,
 // Center, Gradient or Thickness and Role apply as for any shape.
 func FromSamples(s Samples, c Common, gamma float64) (*Pulse, error) {
 	const name = "import"
@@ -127,9 +129,19 @@ func FromSamples(s Samples, c Common, gamma float64) (*Pulse, error) {
 			b1[j] = complex(a*co, a*sn)
 		}
 	}
+	// The nominal flip is γ|∫B1 dt| in the frame that follows the data's own
+	// frequency, if any: the frequency's phase is taken out of the area.
+	var follow []float64
+	if s.Freq != nil {
+		follow = integrateSampledPhase(s.Freq, dwell)
+	}
 	var area complex128
 	peak := 0.0
 	for j, b := range b1 {
+		if follow != nil {
+			sn, co := math.Sincos(-follow[j])
+			b *= complex(co, sn)
+		}
 		area += b * complex(dwell[j], 0)
 		peak = math.Max(peak, cabs(b))
 	}

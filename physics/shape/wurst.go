@@ -49,6 +49,7 @@ func Wurst(c Common, gamma float64, bandwidth float64, order float64) (*Pulse, e
 		p.Role = RoleInvert
 	}
 	p.Bandwidth = bandwidth
+	p.Sweep = bandwidth
 	p.TBW = bandwidth * T
 	return p, p.setSlice(c)
 }
