@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"sync"
 	"testing"
 
 	"nutate/physics"
@@ -194,7 +195,27 @@ func designCases() []designCase {
 	return cs
 }
 
+type builtPulse struct {
+	p    *shape.Pulse
+	info *Info
+}
+
+// built keeps designs shared by several tests (same case, same γ and duration).
+var built sync.Map // string → builtPulse
+
 func (c designCase) build(t *testing.T, g float64, T float64) (*shape.Pulse, *Info) {
+	t.Helper()
+	key := fmt.Sprintf("%s %v %g %g %g %g %g", c.prof.name, c.design, c.tbw, c.pass, c.stop, g, T)
+	if v, ok := built.Load(key); ok {
+		b := v.(builtPulse)
+		return b.p, b.info
+	}
+	p, info := c.design1(t, g, T)
+	built.Store(key, builtPulse{p, info})
+	return p, info
+}
+
+func (c designCase) design1(t *testing.T, g float64, T float64) (*shape.Pulse, *Info) {
 	t.Helper()
 	spec := NewSpec(c.prof.role)
 	spec.TBW, spec.PassRipple, spec.StopRipple, spec.Design = c.tbw, c.pass, c.stop, c.design
