@@ -1,6 +1,7 @@
 package kernel
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
@@ -9,6 +10,7 @@ import (
 	"runtime/debug"
 	"strings"
 	"sync"
+	"time"
 	"unicode/utf8"
 )
 
@@ -41,7 +43,7 @@ func newDispatcher(exec Executor, session string, lg *log.Logger, publish func(M
 
 // message builds a message of msgType answering parent.
 func (d *dispatcher) message(parent Message, msgType string, content any) Message {
-	body, err := json.Marshal(content)
+	body, err := marshal(content)
 	if err != nil {
 		// Contents are built here from plain maps; a failure is a bug, reported
 		// rather than sent half-formed.
@@ -54,6 +56,18 @@ func (d *dispatcher) message(parent Message, msgType string, content any) Messag
 		Metadata: json.RawMessage("{}"),
 		Content:  body,
 	}
+}
+
+// marshal encodes v as JSON without escaping <, > and & (the default escaping
+// would swell SVG and HTML outputs for nothing: messages are not embedded in HTML).
+func marshal(v any) ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimRight(buf.Bytes(), "\n"), nil
 }
 
 // pub publishes msgType with content on iopub, parented to req.
@@ -213,7 +227,11 @@ func (d *dispatcher) execute(r request) (abortQueued bool) {
 		d.pub(r.msg, "execute_input", map[string]any{"code": c.Code, "execution_count": count})
 	}
 	emit := func(o Output) { d.emit(r.msg, o) }
+	t0 := time.Now()
 	err := d.run(ctx, c.Code, emit)
+	if debugLog {
+		d.log.Printf("execute %s: %v", r.msg.Header.MsgID, time.Since(t0))
+	}
 	if err == nil && ctx.Err() != nil {
 		// Cancelled but the executor finished anyway: the cell is complete.
 		err = nil

@@ -20,6 +20,12 @@ const (
 	// MaxFrameSize is the largest ZMTP frame accepted. A frame header claiming more
 	// closes that connection before anything is allocated.
 	MaxFrameSize = 256 << 20
+	// MaxMessageSize bounds the sum of the frames of one multipart message, and
+	// MaxMessageFrames their number (zmq4 keeps every frame of a message in
+	// memory, so a stream of empty "more" frames would otherwise grow without
+	// end).
+	MaxMessageSize   = 256 << 20
+	MaxMessageFrames = 1 << 16
 	// handshakeTimeout bounds the time from accept to the peer's READY command.
 	handshakeTimeout = 5 * time.Second
 	// writeTimeout bounds one write to a peer; a peer that does not read for this
@@ -36,6 +42,10 @@ const (
 // ErrFrameTooLarge is returned by a guarded connection's Read when the peer
 // announces a frame larger than MaxFrameSize.
 var ErrFrameTooLarge = errors.New("kernel: zmtp frame larger than 256 MiB refused")
+
+// ErrMessageTooLarge is returned when one multipart message exceeds
+// MaxMessageSize bytes or MaxMessageFrames frames.
+var ErrMessageTooLarge = errors.New("kernel: zmtp message too large refused")
 
 // GuardedTransport is a zmq4 transport (TCP or Unix sockets) hardened for a
 // kernel that any local process may connect to:
@@ -235,6 +245,9 @@ type frameGuard struct {
 	sizeLen  int
 	body     uint64
 	commands int // command frames completed
+
+	msgFrames int    // frames of the current multipart message so far
+	msgBytes  uint64 // their bytes
 }
 
 func (g *frameGuard) feed(p []byte) error {
@@ -270,6 +283,13 @@ func (g *frameGuard) feed(p []byte) error {
 			if g.body > MaxFrameSize {
 				return fmt.Errorf("%w (header claims %d bytes)", ErrFrameTooLarge, g.body)
 			}
+			if g.flags&0x04 == 0 {
+				g.msgFrames++
+				g.msgBytes += g.body
+				if g.msgFrames > MaxMessageFrames || g.msgBytes > MaxMessageSize {
+					return fmt.Errorf("%w (%d frames, %d bytes so far)", ErrMessageTooLarge, g.msgFrames, g.msgBytes)
+				}
+			}
 			g.state = 2
 			if g.body == 0 {
 				g.endFrame()
@@ -292,6 +312,8 @@ func (g *frameGuard) feed(p []byte) error {
 func (g *frameGuard) endFrame() {
 	if g.flags&0x04 != 0 {
 		g.commands++
+	} else if g.flags&0x01 == 0 {
+		g.msgFrames, g.msgBytes = 0, 0 // the last frame of a message
 	}
 	g.state = 0
 }

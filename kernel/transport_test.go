@@ -68,6 +68,47 @@ func TestFrameGuard(t *testing.T) {
 	}
 }
 
+func TestFrameGuardMessageBounds(t *testing.T) {
+	empty := []byte{0x01, 0} // an empty frame with "more" set
+	last := []byte{0x00, 0}
+	t.Run("many frames, each message under the bound", func(t *testing.T) {
+		g := frameGuard{}
+		for m := 0; m < 3; m++ {
+			for i := 0; i < MaxMessageFrames-1; i++ {
+				if err := g.feed(empty); err != nil {
+					t.Fatalf("message %d frame %d: %v", m, i, err)
+				}
+			}
+			if err := g.feed(last); err != nil {
+				t.Fatalf("message %d last frame: %v", m, err)
+			}
+		}
+	})
+	t.Run("one message over the frame bound", func(t *testing.T) {
+		g := frameGuard{}
+		var err error
+		for i := 0; i <= MaxMessageFrames && err == nil; i++ {
+			err = g.feed(empty)
+		}
+		if !errors.Is(err, ErrMessageTooLarge) {
+			t.Fatalf("got %v, want ErrMessageTooLarge", err)
+		}
+	})
+	t.Run("one message over the byte bound", func(t *testing.T) {
+		g := frameGuard{}
+		hdr := []byte{0x03, 0, 0, 0, 0, 0, 0, 0, 0}
+		binary.BigEndian.PutUint64(hdr[1:], MaxFrameSize)
+		if err := g.feed(hdr); err != nil {
+			t.Fatal(err)
+		}
+		g.state, g.body = 0, 0 // pretend the body passed
+		g.endFrame()
+		if err := g.feed([]byte{0x00, 1}); !errors.Is(err, ErrMessageTooLarge) {
+			t.Fatalf("got %v, want ErrMessageTooLarge", err)
+		}
+	})
+}
+
 func TestFrameGuardAtBound(t *testing.T) {
 	g := frameGuard{}
 	hdr := []byte{0x02, 0, 0, 0, 0, 0, 0, 0, 0}
