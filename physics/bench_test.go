@@ -66,6 +66,7 @@ func BenchmarkSimulateHS(b *testing.B) {
 					}
 					opt := Options{Workers: workers}
 					b.ReportAllocs()
+					c0 := processCPU()
 					for b.Loop() {
 						if _, err := Simulate(context.Background(), w, 1, &iso, opt); err != nil {
 							b.Fatal(err)
@@ -73,6 +74,7 @@ func BenchmarkSimulateHS(b *testing.B) {
 					}
 					steps := float64(iso.Len()) * float64(w.Len())
 					b.ReportMetric(steps*float64(b.N)/b.Elapsed().Seconds(), "isochromat-steps/s")
+					b.ReportMetric(steps*float64(b.N)/(processCPU()-c0), "isochromat-steps/cpu-s")
 				})
 			}
 		}

@@ -8,9 +8,9 @@ type steps struct {
 	n int
 	// Rotation: h = dt/2; wxh, wyh = γB1x·h, γB1y·h; p = wxh² + wyh²; gh = γG·h.
 	h, wxh, wyh, p, gh []float64
-	// Relaxation: dt, γB1x, γB1y, γG, and the series plan (substeps, terms).
-	dt, wx, wy, g []float64
-	sub, terms    []int
+	// Relaxation: dt (per substep), γB1x, γB1y, γ|B1|, γG, and the substeps.
+	dt, wx, wy, w1, g []float64
+	sub               []int
 }
 
 func newSteps(w *Waveform, gamma float64) *steps {
@@ -53,13 +53,19 @@ const (
 // cosSinc returns cos φ and sin φ / φ for x = φ² ≥ 0.
 func cosSinc(x float64) (c, s float64) {
 	if x <= seriesMax {
-		c = 1 + x*(cos1+x*(cos2+x*(cos3+x*(cos4+x*cos5))))
-		s = 1 + x*(sinc1+x*(sinc2+x*(sinc3+x*(sinc4+x*sinc5))))
-		return c, s
+		return cosSincSeries(x)
 	}
 	phi := math.Sqrt(x)
 	sn, cs := math.Sincos(phi)
 	return cs, sn / phi
+}
+
+// cosSincSeries is cosSinc for x ≤ seriesMax, by Horner's rule with fused
+// multiply-adds.
+func cosSincSeries(x float64) (c, s float64) {
+	c = math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, cos5, cos4), cos3), cos2), cos1), 1)
+	s = math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, sinc5, sinc4), sinc3), sinc2), sinc1), 1)
+	return c, s
 }
 
 // rotateBlock composes the Cayley–Klein parameters of steps [j0, j1) into the
@@ -80,13 +86,36 @@ func rotateBlock(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi 
 	ar, ai, br, bi = ar[:n], ai[:n], br[:n], bi[:n]
 	for j := j0; j < j1; j++ {
 		h, gh, wxh, wyh, p := st.h[j], st.gh[j], st.wxh[j], st.wyh[j], st.p[j]
+		// The two loops differ only in ωz: the gradient term is left out of the
+		// first, the common case. αj = c + i·qi, βj = qr + i·qx.
+		if gh == 0 {
+			for i := range n {
+				zh := off[i] * h
+				x := math.FMA(scale2[i], p, zh*zh)
+				var c, s float64
+				if x <= seriesMax {
+					c, s = cosSincSeries(x)
+				} else {
+					c, s = cosSinc(x)
+				}
+				qi := zh * s
+				ks := scale[i] * s
+				qr := -wyh * ks
+				qx := wxh * ks
+				a0, a1, b0, b1 := ar[i], ai[i], br[i], bi[i]
+				ar[i] = math.FMA(c, a0, -math.FMA(qi, a1, math.FMA(qr, b0, qx*b1)))
+				ai[i] = math.FMA(c, a1, math.FMA(qi, a0, math.FMA(qx, b0, -qr*b1)))
+				br[i] = math.FMA(qr, a0, math.FMA(-qx, a1, math.FMA(c, b0, qi*b1)))
+				bi[i] = math.FMA(qr, a1, math.FMA(qx, a0, math.FMA(c, b1, -qi*b0)))
+			}
+			continue
+		}
 		for i := range n {
-			zh := off[i]*h + pos[i]*gh
-			x := scale2[i]*p + zh*zh
+			zh := math.FMA(off[i], h, pos[i]*gh)
+			x := math.FMA(scale2[i], p, zh*zh)
 			var c, s float64
 			if x <= seriesMax {
-				c = 1 + x*(cos1+x*(cos2+x*(cos3+x*(cos4+x*cos5))))
-				s = 1 + x*(sinc1+x*(sinc2+x*(sinc3+x*(sinc4+x*sinc5))))
+				c, s = cosSincSeries(x)
 			} else {
 				c, s = cosSinc(x)
 			}
@@ -94,12 +123,11 @@ func rotateBlock(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi 
 			ks := scale[i] * s
 			qr := -wyh * ks
 			qx := wxh * ks
-			// αj = c + i·qi, βj = qr + i·qx.
 			a0, a1, b0, b1 := ar[i], ai[i], br[i], bi[i]
-			ar[i] = c*a0 - qi*a1 - qr*b0 - qx*b1
-			ai[i] = c*a1 + qi*a0 - qr*b1 + qx*b0
-			br[i] = qr*a0 - qx*a1 + c*b0 + qi*b1
-			bi[i] = qr*a1 + qx*a0 + c*b1 - qi*b0
+			ar[i] = math.FMA(c, a0, -math.FMA(qi, a1, math.FMA(qr, b0, qx*b1)))
+			ai[i] = math.FMA(c, a1, math.FMA(qi, a0, math.FMA(qx, b0, -qr*b1)))
+			br[i] = math.FMA(qr, a0, math.FMA(-qx, a1, math.FMA(c, b0, qi*b1)))
+			bi[i] = math.FMA(qr, a1, math.FMA(qx, a0, math.FMA(c, b1, -qi*b0)))
 		}
 	}
 }

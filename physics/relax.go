@@ -18,7 +18,7 @@ import "math"
 // X³ = −q1X² − q2X − q3I, so every power is Xᵏ = e0·I + e1·X + e2·X² with the scalar
 // recurrence (e0, e1, e2) ← (−q3·e2, e0 − q2·e2, e1 − q1·e2), and
 // φ1(X) = d0·I + d1·X + d2·X² with d = Σ eₖ/(k+1)!. The scalar series of the
-// entire function is summed until the first omitted term is below 1e-18 for
+// entire function is summed until the first omitted term is below 1e-17 for
 // ‖X‖₂ ≤ ρ; steps whose bound exceeds relaxRho are cut into equal substeps, which is
 // exact because the generator is constant: e^{dt·A} = (e^{dt·A/n})ⁿ. The
 // coefficients are shared by the substeps of a step.
@@ -26,29 +26,40 @@ import "math"
 // relaxRho is the largest ‖dt·A‖₂ bound summed in one piece.
 const relaxRho = 0.5
 
-// maxTerms caps the series length; relaxTerms(relaxRho) is well below it.
+// maxTerms caps the series length; relaxRho needs far fewer terms.
 const maxTerms = 31 // 2ⁿ − 1, so that k&maxTerms needs no bounds check
 
-// relaxTerms is the number of φ1 series terms for a step with ‖dt·A‖₂ ≤ rho: the
-// smallest K with rho^(K+1)/(K+2)! ≤ 1e-18.
-func relaxTerms(rho float64) int {
-	t := 1.0 // rho^(k+1)/(k+2)! for k = 0: rho/2
-	for k := 0; k < maxTerms; k++ {
-		t *= rho / float64(k+2)
-		if t <= 1e-18 {
-			return k
-		}
+// seriesTol bounds the first omitted term of the φ1 series relative to its leading
+// term 1 (a tenth of the double-precision unit roundoff 1.1e-16).
+const seriesTol = 1e-17
+
+// rhoLimit[K] is the largest ρ for which K terms suffice: ρ^(K+1)/(K+2)! = seriesTol.
+var rhoLimit = func() (v [maxTerms + 1]float64) {
+	f := 1.0 // (K+2)!
+	for k := range v {
+		f *= float64(k + 2)
+		v[k] = math.Pow(seriesTol*f, 1/float64(k+1))
 	}
-	return maxTerms
+	return v
+}()
+
+// relaxTerms is the number of φ1 series terms for a step with ‖dt·A‖₂ ≤ rho.
+func relaxTerms(rho float64) int {
+	k := 0
+	for k < maxTerms && rho > rhoLimit[k] {
+		k++
+	}
+	return k
 }
 
-// planRelax sets, for every step, the substeps and series length from a bound on
+// planRelax sets, for every step, the substeps from a bound on
 // ‖dt·A‖₂ ≤ dt·(|ω|max + max(R1, R2)) over all spins: ‖Ω‖₂ = |ω| for the rotation
-// part and ‖diag(R2, R2, R1)‖₂ = max(R1, R2).
+// part and ‖diag(R2, R2, R1)‖₂ = max(R1, R2). The series length is chosen per block
+// of spins and step from the same bound over the block (relaxBlock).
 func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR float64) {
 	n := st.n
 	st.dt, st.wx, st.wy, st.g = make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
-	st.sub, st.terms = make([]int, n), make([]int, n)
+	st.w1, st.sub = make([]float64, n), make([]int, n)
 	for j, b1 := range w.B1 {
 		dt := w.Dwell[j]
 		st.wx[j] = gamma * real(b1)
@@ -57,8 +68,8 @@ func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR fl
 			st.g[j] = gamma * w.Gradient[j]
 		}
 		wz := maxOff + maxPos*math.Abs(st.g[j])
-		w1 := maxScale * math.Hypot(st.wx[j], st.wy[j])
-		rho := dt * (math.Hypot(w1, wz) + maxR)
+		st.w1[j] = math.Hypot(st.wx[j], st.wy[j])
+		rho := dt * (math.Hypot(maxScale*st.w1[j], wz) + maxR)
 		sub := 1
 		if rho > relaxRho {
 			sub = int(math.Ceil(rho / relaxRho))
@@ -66,7 +77,6 @@ func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR fl
 		}
 		st.dt[j] = dt / float64(sub)
 		st.sub[j] = sub
-		st.terms[j] = relaxTerms(rho)
 	}
 }
 
@@ -79,6 +89,49 @@ var invFact1 = func() (v [maxTerms + 1]float64) {
 	}
 	return v
 }()
+
+// seriesHorner sets v = Σₖ cₖ·Cᵏ·(1, 0, 0) for k = 0…terms, cₖ = 1/(k+1)!, by
+// Horner's rule v ← C·v + cₖ·(1, 0, 0) with C·(e0, e1, e2) = (−q3·e2, e0 − q2·e2,
+// e1 − q1·e2). It takes the negated coefficients nq = −q. Four spins are summed
+// together so that their dependency chains overlap; plain multiply and add keep
+// the twelve running values in registers.
+func seriesHorner(terms int, q1, q2, q3, v0, v1, v2 []float64) {
+	n := len(q1)
+	q2, q3, v0, v1, v2 = q2[:n], q3[:n], v0[:n], v1[:n], v2[:n]
+	cK := invFact1[terms&maxTerms]
+	i := 0
+	for ; i+4 <= n; i += 4 {
+		qa, qb, qc := q1[i:i+4:i+4], q2[i:i+4:i+4], q3[i:i+4:i+4]
+		a0, a1, a2 := cK, 0.0, 0.0
+		b0, b1, b2 := cK, 0.0, 0.0
+		c0, c1, c2 := cK, 0.0, 0.0
+		d0, d1, d2 := cK, 0.0, 0.0
+		for k := terms - 1; k >= 0; k-- {
+			ck := invFact1[k&maxTerms]
+			a0, a1, a2 = ck+qc[0]*a2, a0+qb[0]*a2, a1+qa[0]*a2
+			b0, b1, b2 = ck+qc[1]*b2, b0+qb[1]*b2, b1+qa[1]*b2
+			c0, c1, c2 = ck+qc[2]*c2, c0+qb[2]*c2, c1+qa[2]*c2
+			d0, d1, d2 = ck+qc[3]*d2, d0+qb[3]*d2, d1+qa[3]*d2
+		}
+		v0[i], v1[i], v2[i] = a0, a1, a2
+		v0[i+1], v1[i+1], v2[i+1] = b0, b1, b2
+		v0[i+2], v1[i+2], v2[i+2] = c0, c1, c2
+		v0[i+3], v1[i+3], v2[i+3] = d0, d1, d2
+	}
+	for ; i < n; i++ {
+		e0, e1, e2 := cK, 0.0, 0.0
+		for k := terms - 1; k >= 0; k-- {
+			ck := invFact1[k&maxTerms]
+			e0, e1, e2 = ck+q3[i]*e2, e0+q2[i]*e2, e1+q1[i]*e2
+		}
+		v0[i], v1[i], v2[i] = e0, e1, e2
+	}
+}
+
+// xMul returns X·(ux, uy, uz) for X = [[a, z, −y], [−z, a, x], [y, −x, c]].
+func xMul(a, c, x, y, z, ux, uy, uz float64) (float64, float64, float64) {
+	return a*ux + z*uy - y*uz, -z*ux + a*uy + x*uz, y*ux - x*uy + c*uz
+}
 
 // relaxScratch holds per-spin series state for relaxBlock.
 type relaxScratch struct {
@@ -96,11 +149,20 @@ func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []flo
 	mx, my, mz = mx[:n], my[:n], mz[:n]
 	q1, q2, q3 := sc.q1[:n], sc.q2[:n], sc.q3[:n]
 	v0, v1, v2 := sc.v0[:n], sc.v1[:n], sc.v2[:n]
+	maxOff, maxPos, maxScale, maxR := 0.0, 0.0, 0.0, 0.0
+	for i := range n {
+		maxOff = max(maxOff, math.Abs(off[i]))
+		maxPos = max(maxPos, math.Abs(pos[i]))
+		maxScale = max(maxScale, math.Abs(scale[i]))
+		maxR = max(maxR, r1[i], r2[i])
+	}
 	for j := j0; j < j1; j++ {
 		t := st.dt[j]
 		wxt, wyt, gt := st.wx[j]*t, st.wy[j]*t, st.g[j]*t
-		sub, terms := st.sub[j], st.terms[j]
-		cK := invFact1[terms&maxTerms]
+		sub := st.sub[j]
+		// ‖X‖₂ ≤ t·(|ω| + max(R1, R2)) over the block, as in planRelax.
+		w1, wz := maxScale*st.w1[j], maxOff+maxPos*math.Abs(st.g[j])
+		terms := relaxTerms(t * (math.Sqrt(w1*w1+wz*wz) + maxR))
 		for i := range n {
 			// X = t·A = [[a, z, −y], [−z, a, x], [y, −x, c]]; its characteristic
 			// polynomial has q1 = −tr X, q2 = the sum of the principal 2×2 minors,
@@ -109,21 +171,11 @@ func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []flo
 			z := off[i]*t + pos[i]*gt
 			a, c := -r2[i]*t, -r1[i]*t
 			xy2, z2 := x*x+y*y, z*z
-			q1[i] = -(a + a + c)
-			q2[i] = a*a + z2 + 2*a*c + xy2
-			q3[i] = -(a*a*c + a*xy2 + c*z2)
-			v0[i], v1[i], v2[i] = cK, 0, 0
+			q1[i] = a + a + c                 // −q1
+			q2[i] = -(a*a + z2 + 2*a*c + xy2) // −q2
+			q3[i] = a*a*c + a*xy2 + c*z2      // −q3
 		}
-		for k := terms - 1; k >= 0; k-- {
-			ck := invFact1[k&maxTerms]
-			for i := range n {
-				// v ← C·v + cₖ·(1, 0, 0), C·(e0, e1, e2) = (−q3·e2, e0 − q2·e2, e1 − q1·e2).
-				e0, e1, e2 := v0[i], v1[i], v2[i]
-				v0[i] = ck - q3[i]*e2
-				v1[i] = e0 - q2[i]*e2
-				v2[i] = e1 - q1[i]*e2
-			}
-		}
+		seriesHorner(terms, q1, q2, q3, v0, v1, v2)
 		for i := range n {
 			x, y := scale[i]*wxt, scale[i]*wyt
 			z := off[i]*t + pos[i]*gt
@@ -132,15 +184,10 @@ func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []flo
 			mxi, myi, mzi := mx[i], my[i], mz[i]
 			for range sub {
 				// w = X·M + t·b; M ← M + d0·w + d1·X·w + d2·X²·w.
-				wx := a*mxi + z*myi - y*mzi
-				wy := -z*mxi + a*myi + x*mzi
-				wz := y*mxi - x*myi + c*(mzi-1)
-				vx := a*wx + z*wy - y*wz
-				vy := -z*wx + a*wy + x*wz
-				vz := y*wx - x*wy + c*wz
-				ux := a*vx + z*vy - y*vz
-				uy := -z*vx + a*vy + x*vz
-				uz := y*vx - x*vy + c*vz
+				wx, wy, wz := xMul(a, c, x, y, z, mxi, myi, mzi)
+				wz -= c
+				vx, vy, vz := xMul(a, c, x, y, z, wx, wy, wz)
+				ux, uy, uz := xMul(a, c, x, y, z, vx, vy, vz)
 				mxi += d0*wx + d1*vx + d2*ux
 				myi += d0*wy + d1*vy + d2*uy
 				mzi += d0*wz + d1*vz + d2*uz
