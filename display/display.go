@@ -2,10 +2,37 @@
 // bundles (text/plain, text/html, image/svg+xml, application/json) for notebooks.
 // It knows nothing of the pulse language or of the Jupyter protocol. Output is
 // deterministic: the same input gives the same bytes.
+//
+// Entry points: Table.Bundle, Profile.Bundle, Map.Bundle and Waveform.Bundle
+// (each figure also has an SVG method for export), Num and NumColumn to format
+// numbers for tables, and Text for plain messages.
+//
+// Bundles. text/plain is always present. Tables come as aligned text (units in
+// the header) and as an HTML <table> with the same cells. Figures come as
+// image/svg+xml; their text/html holds the same SVG inline followed by the table,
+// because notebook front ends show only the richest MIME type of a bundle and rank
+// HTML above SVG. A figure's table is the caller's Summary, or the data when a
+// curve has at most 50 points, or each curve's extremes; the JSON carries every
+// value. application/json values are json.RawMessage (encoding/json embeds them
+// verbatim); numbers are the shortest text that reads back to the same float64,
+// NaN and ±Inf are null.
+//
+// Figures. gonum.org/v1/plot draws into its SVG backend. Text is SVG text in
+// Liberation Sans with Arial, Helvetica and sans-serif as fallbacks; no font data
+// is embedded, and each text carries its measured length so a different fallback
+// font still fits the layout. There are no ids, timestamps or network references.
+// Lines are thinned to what half-point columns can show, heat maps are embedded
+// PNG images (at most one pixel per cell, averaged down beyond 640 per side), so
+// a 601-point overlay is about 50 kB and a 161 × 101 map about 30 kB. Pulses are
+// told apart by colour-blind-safe colours and dash patterns; maps use this
+// package's own perceptually uniform colour scale (see palette.go).
+//
+// Units are those of the fields (stated beside each); a Waveform's time is in
+// seconds and is drawn in µs, ms or s as suits its length.
 package display
 
-// Bundle is one output: MIME type → content (string, or a JSON-marshalable value
-// for application/json).
+// Bundle is one output: MIME type → content (a string, or json.RawMessage for
+// application/json).
 type Bundle map[string]any
 
 // Text is a plain-text bundle.
@@ -33,6 +60,10 @@ type Axis struct {
 	Unit    string
 	Values  []float64
 	Reverse bool
+	// Log draws a profile's X axis on a logarithmic scale (T1, T2 or durations
+	// spanning decades); points at or below zero are then left out of the figure
+	// (not of the JSON). Maps ignore it.
+	Log bool
 }
 
 // Curve is one plotted line over the profile's X axis: a quantity of one pulse.
@@ -49,8 +80,13 @@ type Mark struct {
 	Label string
 }
 
-// Profile is one or more curves against one axis. Curves of different quantities
-// go on separate stacked panels sharing X; curves of one quantity overlay.
+// Profile is one or more curves against one axis (offset in Hz or ppm, B1,
+// position, T1/T2, a shape argument...). Curves of different quantities go on
+// separate stacked panels sharing X; curves of one quantity overlay, one colour
+// and dash pattern per pulse, with a legend when there are several pulses. Marks
+// are dashed vertical lines on every panel, labelled above the top one. Phase
+// curves (unit "deg") get ticks at multiples of 90° and are not joined across a
+// wrap.
 type Profile struct {
 	Title   string
 	X       Axis

@@ -113,7 +113,7 @@ func TestSVGIsXMLWithLabels(t *testing.T) {
 		want []string
 	}{
 		{"profile", sampleProfile().Bundle(), []string{"Slice profile", "offset (Hz)", "mxy", "phase (deg)", "p1", "gauss", "pass edge", "+FWHM/2"}},
-		{"map", sampleMap().Bundle(), []string{"Inversion efficiency", "offset (Hz)", "B1 scale", "mxy", "mxy = 0.5"}},
+		{"map", sampleMap().Bundle(), []string{"Inversion efficiency (hs1)", "offset (Hz)", "B1 scale", "mxy", "mxy = 0.5"}},
 		{"waveform", w.Bundle(wt), []string{"hs1 waveform", "time (ms)", "amplitude (µT)", "phase (deg)", "frequency (Hz)", "gradient (mT/m)"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {

@@ -76,7 +76,17 @@ func (m Map) zRange() (lo, hi float64) {
 		a, b := finiteRange(row[:nx])
 		lo, hi = math.Min(lo, a), math.Max(hi, b)
 	}
-	return padRange(lo, hi, 0)
+	lo, hi = padRange(lo, hi, 0)
+	// A range that nearly starts or ends on a tick is widened to it, so the bar
+	// is labelled at its ends (0…1, not 2e-5…1).
+	step, _ := niceStep(lo, hi, 5)
+	if f := math.Floor(lo/step) * step; lo-f < 0.03*(hi-lo) {
+		lo = f
+	}
+	if c := math.Ceil(hi/step) * step; c-hi < 0.03*(hi-lo) {
+		hi = c
+	}
+	return lo, hi
 }
 
 func (m Map) table() Table {
@@ -123,14 +133,23 @@ func (m Map) SVG() string {
 	const bodyH = 300
 
 	var legend []legendItem
+	var lines contourLines
+	if m.HasContour && nx > 0 && finite(m.Contour) {
+		lines = contour(m.X.Values[:nx], m.Y.Values[:ny], m.Z[:ny], m.Contour)
+	}
 	if m.HasContour {
-		legend = append(legend, legendItem{
-			name:  fmt.Sprintf("%s = %s", orDefault(m.Quantity, "z"), strings.TrimSpace(Num(m.Contour, 4)+" "+m.Unit)),
-			style: contourStyle, halo: true,
-		})
+		name := fmt.Sprintf("%s = %s", orDefault(m.Quantity, "z"), minus(strings.TrimSpace(Num(m.Contour, 4)+" "+m.Unit)))
+		if len(lines) == 0 {
+			name += " (not reached)"
+		}
+		legend = append(legend, legendItem{name: name, style: contourStyle, halo: true})
 	}
 	rows := legendRows(legend, figWidth-20)
-	title := wrapText(m.Title, boldStyle(titleSize), figWidth-24)
+	heading := m.Title
+	if m.Pulse != "" && !strings.Contains(heading, m.Pulse) {
+		heading = strings.TrimSpace(heading + " (" + m.Pulse + ")")
+	}
+	title := wrapText(heading, boldStyle(titleSize), figWidth-24)
 	var headH vg.Length = headPad
 	if len(title) > 0 {
 		headH += vg.Length(len(title))*rowHeight + 3
@@ -155,8 +174,8 @@ func (m Map) SVG() string {
 	if nx > 0 {
 		r := &raster{x: m.X.Values[:nx], y: m.Y.Values[:ny], z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
 		p.Add(r)
-		if m.HasContour && finite(m.Contour) {
-			p.Add(contourLines(contour(m.X.Values[:nx], m.Y.Values[:ny], m.Z[:ny], m.Contour)))
+		if len(lines) > 0 {
+			p.Add(lines)
 		}
 	}
 	p.Add(frame{})

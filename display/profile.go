@@ -9,6 +9,9 @@ import (
 // summarised and travel whole in the JSON.
 const maxListed = 50
 
+// maxDots is the longest curve whose points are marked with dots.
+const maxDots = 30
+
 // Bundle shows the profile as a figure (image/svg+xml; text/html holds the same
 // SVG inline followed by the table) and a table in text/plain and text/html: the
 // caller's Summary when it has rows or notes, otherwise the data itself when there
@@ -102,6 +105,10 @@ func (p Profile) SVG() string {
 		xlabel:  axisLabel(orDefault(p.X.Label, "x"), p.X.Unit),
 		reverse: p.X.Reverse,
 		marks:   p.Marks,
+		logX:    p.X.Log,
+	}
+	if len(p.X.Values) <= maxDots {
+		s.xpad = 0.025
 	}
 	for _, g := range p.groups() {
 		pn := panel{label: axisLabel(orDefault(g[0].Quantity, "y"), g[0].Unit), degrees: isDegrees(g[0].Unit)}
@@ -110,6 +117,7 @@ func (p Profile) SVG() string {
 			if pn.degrees {
 				l.jump = 180
 			}
+			l.dots = len(p.X.Values) <= maxDots
 			pn.lines = append(pn.lines, l)
 		}
 		s.panels = append(s.panels, pn)

@@ -248,3 +248,30 @@ func TestDegenerateInput(t *testing.T) {
 }
 
 func rgb(c [3]uint8) color.NRGBA { return color.NRGBA{R: c[0], G: c[1], B: c[2], A: 0xff} }
+
+// On a logarithmic axis the decades are equally spaced, and points at or below
+// zero are left out rather than failing.
+func TestLogAxis(t *testing.T) {
+	x := []float64{0, 1, 2, 5, 10, 20, 50, 100}
+	p := Profile{X: Axis{Label: "T2", Unit: "ms", Values: x, Log: true},
+		Curves: []Curve{{Quantity: "mz", Y: []float64{0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8}}}, Marks: []Mark{{X: -1, Label: "neg"}, {X: 10, Label: "ten"}}}
+	svg := p.SVG()
+	checkXML(t, svg)
+	pos := textX(t, svg)
+	a, b, c := pos["1"], pos["10"], pos["100"]
+	if a == 0 || b == 0 || c == 0 {
+		t.Fatalf("decade labels missing: %v", pos)
+	}
+	// Centred labels of different widths: compare centres (widths from the font).
+	w := func(s string) float64 { return float64(textStyle(tickSize).Width(s)) / 2 }
+	d1, d2 := (b+w("10"))-(a+w("1")), (c+w("100"))-(b+w("10"))
+	if math.Abs(d1-d2) > 0.01*d1 {
+		t.Errorf("decades 1–10 and 10–100 span %v and %v pt, want equal", d1, d2)
+	}
+	if _, ok := pos["neg"]; ok {
+		t.Errorf("a mark at x ≤ 0 is labelled on a log axis")
+	}
+	if p.X.Reverse = true; !strings.Contains(p.SVG(), ">ten<") {
+		t.Errorf("reversed log axis lost its mark")
+	}
+}

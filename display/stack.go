@@ -2,6 +2,7 @@ package display
 
 import (
 	"math"
+	"slices"
 	"sort"
 
 	"gonum.org/v1/plot"
@@ -30,6 +31,11 @@ type stack struct {
 	// fromZero starts the x axis at 0 when the data start just after it (sample
 	// midpoints of a waveform).
 	fromZero bool
+	// xpad widens the x range by this fraction on each side (dots or pulse edges
+	// would otherwise sit on the frame).
+	xpad float64
+	// logX draws x on a logarithmic scale.
+	logX bool
 }
 
 func panelHeightFor(n int) vg.Length {
@@ -46,6 +52,12 @@ func panelHeightFor(n int) vg.Length {
 
 // plots builds the gonum plots of the panels, all on one x range.
 func (s stack) plots() []*plot.Plot {
+	for i := range s.panels {
+		s.panels[i].lines = slices.Clone(s.panels[i].lines)
+		for k := range s.panels[i].lines {
+			s.panels[i].lines[k].logX = s.logX
+		}
+	}
 	xlo, xhi := math.Inf(1), math.Inf(-1)
 	for _, pn := range s.panels {
 		for _, l := range pn.lines {
@@ -56,7 +68,16 @@ func (s stack) plots() []*plot.Plot {
 	if s.fromZero && xlo > 0 && xlo < 0.05*(xhi-xlo) {
 		xlo = 0
 	}
-	xlo, xhi = padRange(xlo, xhi, 0)
+	if s.logX && !(xlo > 0 && xhi > xlo) {
+		s.logX = false // nothing a log axis can show: fall back to linear
+	}
+	switch {
+	case s.logX:
+		f := math.Pow(xhi/xlo, s.xpad)
+		xlo, xhi = xlo/f, xhi*f
+	default:
+		xlo, xhi = padRange(xlo, xhi, s.xpad)
+	}
 	ps := make([]*plot.Plot, len(s.panels))
 	for i, pn := range s.panels {
 		p := newPlot()
@@ -68,12 +89,24 @@ func (s stack) plots() []*plot.Plot {
 		if pn.zero && ylo <= yhi {
 			ylo, yhi = math.Min(ylo, 0), math.Max(yhi, 0)
 		}
+		if pn.degrees && ylo <= yhi && yhi-ylo < 90 {
+			// A nearly constant phase is shown on a quarter turn, not magnified
+			// to its rounding noise.
+			mid := (ylo + yhi) / 2
+			ylo, yhi = mid-45, mid+45
+		}
 		ylo, yhi = padRange(ylo, yhi, 0.06)
 		p.X.Min, p.X.Max = xlo, xhi
 		p.Y.Min, p.Y.Max = ylo, yhi
-		if s.reverse {
-			p.X.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
+		var scale plot.Normalizer = plot.LinearScale{}
+		if s.logX {
+			scale = plot.LogScale{}
+			p.X.Tick.Marker = logTicks{}
 		}
+		if s.reverse {
+			scale = plot.InvertedScale{Normalizer: scale}
+		}
+		p.X.Scale = scale
 		if pn.degrees {
 			p.Y.Tick.Marker = degreeTicks{}
 		} else if n := len(s.panels); n >= 3 {
@@ -102,7 +135,7 @@ func (m marks) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, _ := p.Transforms(&c)
 	var path vg.Path
 	for _, mk := range m {
-		if !finite(mk.X) || mk.X < p.X.Min || mk.X > p.X.Max {
+		if !finite(mk.X) || mk.X < p.X.Min || mk.X > p.X.Max || mk.X <= 0 && isLog(p.X.Scale) {
 			continue
 		}
 		x := trX(mk.X)
@@ -113,6 +146,14 @@ func (m marks) Plot(c draw.Canvas, p *plot.Plot) {
 		c.SetLineStyle(draw.LineStyle{Color: markColor, Width: 0.7, Dashes: []vg.Length{3, 2}})
 		c.Stroke(path)
 	}
+}
+
+func isLog(n plot.Normalizer) bool {
+	if inv, ok := n.(plot.InvertedScale); ok {
+		n = inv.Normalizer
+	}
+	_, ok := n.(plot.LogScale)
+	return ok
 }
 
 // placedMark is a mark label with its x position and row above the top panel.

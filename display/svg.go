@@ -158,6 +158,16 @@ type line struct {
 	// jump, when positive, breaks the line where consecutive values differ by more
 	// than it: a wrapped phase (jump 180°) is not drawn as a vertical stroke.
 	jump float64
+	// dots marks every point with a small disc (short series, so a reader sees
+	// where the samples are).
+	dots bool
+	// logX leaves out points with x ≤ 0, which a logarithmic axis cannot show.
+	logX bool
+}
+
+// ok reports whether point i can be drawn.
+func (l line) ok(i int) bool {
+	return finite(l.x[i]) && finite(l.y[i]) && (!l.logX || l.x[i] > 0)
 }
 
 func (l line) Plot(c draw.Canvas, p *plot.Plot) {
@@ -180,11 +190,11 @@ func (l line) Plot(c draw.Canvas, p *plot.Plot) {
 		run = run[:0]
 	}
 	for i := range min(len(l.x), len(l.y)) {
-		if !finite(l.x[i]) || !finite(l.y[i]) {
+		if !l.ok(i) {
 			flush()
 			continue
 		}
-		if l.jump > 0 && i > 0 && finite(l.y[i-1]) && math.Abs(l.y[i]-l.y[i-1]) > l.jump {
+		if l.jump > 0 && i > 0 && l.ok(i-1) && math.Abs(l.y[i]-l.y[i-1]) > l.jump {
 			flush()
 		}
 		run = append(run, vg.Point{X: trX(l.x[i]), Y: trY(l.y[i])})
@@ -195,11 +205,25 @@ func (l line) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 	c.SetLineStyle(l.style)
 	c.Stroke(path)
+	if l.dots {
+		g := draw.GlyphStyle{Color: l.style.Color, Radius: 1.8, Shape: draw.CircleGlyph{}}
+		for i := range min(len(l.x), len(l.y)) {
+			if l.ok(i) {
+				c.DrawGlyphNoClip(g, vg.Point{X: trX(l.x[i]), Y: trY(l.y[i])})
+			}
+		}
+	}
 }
 
 func (l line) DataRange() (xmin, xmax, ymin, ymax float64) {
-	xmin, xmax = finiteRange(l.x[:min(len(l.x), len(l.y))])
-	ymin, ymax = finiteRange(l.y[:min(len(l.x), len(l.y))])
+	xmin, ymin = math.Inf(1), math.Inf(1)
+	xmax, ymax = math.Inf(-1), math.Inf(-1)
+	for i := range min(len(l.x), len(l.y)) {
+		if l.ok(i) {
+			xmin, xmax = math.Min(xmin, l.x[i]), math.Max(xmax, l.x[i])
+			ymin, ymax = math.Min(ymin, l.y[i]), math.Max(ymax, l.y[i])
+		}
+	}
 	return
 }
 
@@ -447,6 +471,23 @@ func figureHTML(svg string, t Table) string {
 	return `<div class="nutate-figure">` + inlineSVG(svg) + "</div>" + t.HTML()
 }
 
+// niceStep is the tick step for about n labelled ticks over [lo, hi]: 1, 2, 2.5
+// or 5 times a power of ten; mant is that factor.
+func niceStep(lo, hi float64, n int) (step, mant float64) {
+	raw := (hi - lo) / float64(max(n, 2))
+	mag := math.Pow(10, math.Floor(math.Log10(raw)))
+	mant = 10
+	for _, m := range []float64{1, 2, 2.5, 5, 10} {
+		// A little slack lets a range just over a round one (cell edges of a
+		// 0…25 grid) keep the round step.
+		if m*mag >= raw*0.85 {
+			mant = m
+			break
+		}
+	}
+	return mant * mag, mant
+}
+
 // niceTicks labels about n ticks at steps of 1, 2, 2.5 or 5 times a power of ten,
 // all with the same number of decimals, with unlabelled minor ticks between.
 type niceTicks struct{ n int }
@@ -455,16 +496,7 @@ func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
 	if !(hi > lo) || !finite(lo) || !finite(hi) {
 		return nil
 	}
-	raw := (hi - lo) / float64(max(nt.n, 2))
-	mag := math.Pow(10, math.Floor(math.Log10(raw)))
-	var mant float64
-	for _, m := range []float64{1, 2, 2.5, 5, 10} {
-		if m*mag >= raw*(1-1e-9) {
-			mant = m
-			break
-		}
-	}
-	step := mant * mag
+	step, mant := niceStep(lo, hi, nt.n)
 	minors := 5
 	if mant == 2 {
 		minors = 4
@@ -494,6 +526,34 @@ func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
 			if m >= lo && m <= hi {
 				ts = append(ts, plot.Tick{Value: m})
 			}
+		}
+	}
+	return ts
+}
+
+// logTicks labels a logarithmic axis at 1, 2 and 5 times powers of ten when it
+// spans less than two decades, else at the powers of ten, with minor ticks at
+// the other integer multiples.
+type logTicks struct{}
+
+func (logTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(lo > 0) || !(hi > lo) || !finite(hi) {
+		return nil
+	}
+	few := math.Log10(hi/lo) < 2
+	var ts []plot.Tick
+	for e := math.Floor(math.Log10(lo)); e <= math.Ceil(math.Log10(hi)); e++ {
+		p := math.Pow(10, e)
+		for k := 1; k < 10; k++ {
+			v := float64(k) * p
+			if v < lo*(1-1e-9) || v > hi*(1+1e-9) {
+				continue
+			}
+			t := plot.Tick{Value: v}
+			if k == 1 || few && (k == 2 || k == 5) {
+				t.Label = Num(v, 3)
+			}
+			ts = append(ts, t)
 		}
 	}
 	return ts

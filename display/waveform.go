@@ -57,8 +57,8 @@ func (w Waveform) caption() string {
 	if len(qs) == 0 {
 		return "(no waveform samples)"
 	}
-	return fmt.Sprintf("(figure: %s against time, %d samples; all values in application/json)",
-		strings.Join(qs, ", "), len(w.Time))
+	return fmt.Sprintf("(figure: %s against time, %s; all values in application/json)",
+		strings.Join(qs, ", "), plural(len(w.Time), "sample"))
 }
 
 // timeScale picks the time unit for the axis from the largest |t|.
@@ -89,7 +89,7 @@ func scaled(v []float64, f float64) []float64 {
 func (w Waveform) SVG() string {
 	tf, tu := timeScale(w.Time)
 	tx := scaled(w.Time, tf)
-	s := stack{title: w.Title, xlabel: axisLabel("time", tu), fromZero: true}
+	s := stack{title: w.Title, xlabel: axisLabel("time", tu), fromZero: true, xpad: 0.015}
 	for _, ser := range w.series() {
 		v, unit := ser.values, ser.unit
 		if ser.quantity == "frequency" {
@@ -98,7 +98,8 @@ func (w Waveform) SVG() string {
 				v, unit = scaled(v, 1e-3), "kHz"
 			}
 		}
-		l := line{x: tx, y: v, style: seriesStyle(0)}
+		sx, sy := steps(tx, v, ser.quantity == "amplitude" || ser.quantity == "gradient")
+		l := line{x: sx, y: sy, style: seriesStyle(0)}
 		pn := panel{label: axisLabel(ser.quantity, unit), lines: []line{l},
 			zero: ser.quantity == "amplitude" || ser.quantity == "gradient"}
 		if ser.quantity == "phase" {
@@ -111,4 +112,48 @@ func (w Waveform) SVG() string {
 		s.panels = []panel{{label: "(no samples)"}}
 	}
 	return s.svg()
+}
+
+// steps turns samples at midpoints t into the piecewise-constant waveform the
+// hardware plays: each value holds from halfway after the previous sample to
+// halfway before the next (the first and last sample as long as their
+// neighbours' spacing; a lone sample from 0 to twice its midpoint). With
+// zeroEnds the line drops to 0 before and after (RF and gradients are off).
+func steps(t, y []float64, zeroEnds bool) (sx, sy []float64) {
+	n := min(len(t), len(y))
+	if n == 0 {
+		return nil, nil
+	}
+	b := make([]float64, n+1)
+	switch {
+	case n == 1 && t[0] > 0:
+		b[0], b[1] = 0, 2*t[0]
+	case n == 1:
+		b[0], b[1] = t[0], t[0]
+	default:
+		for i := 1; i < n; i++ {
+			b[i] = (t[i-1] + t[i]) / 2
+		}
+		b[0] = t[0] - (t[1]-t[0])/2
+		b[n] = t[n-1] + (t[n-1]-t[n-2])/2
+	}
+	sx = make([]float64, 0, 2*n+2)
+	sy = make([]float64, 0, 2*n+2)
+	if zeroEnds {
+		sx, sy = append(sx, b[0]), append(sy, 0)
+	}
+	for i := range n {
+		sx, sy = append(sx, b[i], b[i+1]), append(sy, y[i], y[i])
+	}
+	if zeroEnds {
+		sx, sy = append(sx, b[n]), append(sy, 0)
+	}
+	return sx, sy
+}
+
+func plural(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
 }
