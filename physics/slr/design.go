@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-
 	"sync"
 
 	"gonum.org/v1/gonum/dsp/fourier"
@@ -13,8 +12,8 @@ import (
 
 // cepstrum computes minimum-phase sequences from magnitude responses on a grid of
 // m points (m a power of two), by the real cepstrum: fold the cepstrum of log|H|
-// onto non-negative times and exponentiate (Oppenheim & Schafer, Discrete-Time
-// Signal Processing, ch. 12, "homomorphic" minimum-phase construction).
+// onto non-negative times and exponentiate (the homomorphic construction of
+// Oppenheim & Schafer, Discrete-Time Signal Processing; from memory).
 type cepstrum struct {
 	m    int
 	fft  *fourier.FFT
@@ -168,8 +167,8 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64) (h []float64, fp, fs flo
 		p, s := c-tw/2, c+tw/2
 		return []Band{{0, p, 1, 1}, {s, 0.5, 0, d1 / d2}}, p > 0 && s < 0.5
 	}
-	centre := func(design func([]Band) ([]float64, error), tol float64) (c float64, h []float64, err error) {
-		c = edge
+	centre := func(design func([]Band) ([]float64, error), c, tol float64) (float64, []float64, error) {
+		var h []float64
 		prevC, prevF := math.NaN(), math.NaN()
 		for range 6 {
 			b, ok := bands(c)
@@ -208,22 +207,22 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64) (h []float64, fp, fs flo
 		ext = e
 		return hh, err
 	}
-	c, _, err := centre(coarse, 2e-3)
+	c, _, err := centre(coarse, edge, 2e-3)
 	if err == nil {
-		var b []Band
-		b, _ = bands(c)
+		// One full-grid design; re-centre on the full grid only if it moved.
+		b, _ := bands(c)
 		h, err = fine(b)
 		if err == nil {
 			f := crossing(h, level, 0, math.Min(0.5, c+1.5*tw))
 			if !(math.Abs(f-edge) <= 5e-3*edge) {
-				c, h, err = centre(fine, 2e-3)
+				c, h, err = centre(fine, c, 2e-3)
 			}
 		}
 	}
 	method = "remez"
 	if errors.Is(err, ErrNoConvergence) {
 		method = "least squares"
-		c, h, err = centre(func(b []Band) ([]float64, error) { return LeastSquares(taps, b) }, 2e-3)
+		c, h, err = centre(func(b []Band) ([]float64, error) { return LeastSquares(taps, b) }, edge, 2e-3)
 	}
 	if err != nil {
 		return nil, 0, 0, "", err
@@ -235,7 +234,7 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64) (h []float64, fp, fs flo
 // Minimum phase follows the published construction: a linear-phase filter of
 // 2n−1 taps with ripples 2δ1 and δ2²/2 is raised to be non-negative and its
 // minimum-phase spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler,
-// Electron. Lett. 6:329, 1970); maximum phase is its time reversal.
+// Electron. Lett. 6:329, 1970, from memory); maximum phase is its time reversal.
 // It returns the band edges used (cycles/sample) and the method.
 func betaFilter(n int, tbw, d1, d2 float64, design Design, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
 	edge := tbw / (2 * float64(n))

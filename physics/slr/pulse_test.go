@@ -104,6 +104,16 @@ func TestPhaseAndCenter(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	// Phase 0 puts B1 along +x (package physics): the net on-resonance
+	// rotation axis is +x and the magnetization tips towards +y.
+	var sum complex128
+	for _, b := range base.Wave.B1 {
+		sum += b
+	}
+	within(t, "phase of ΣB1 (rad)", cmplx.Phase(sum), 0, 1e-6)
+	if r := simulate(t, base, []float64{0}); !(r.My[0] > (1-2*DefaultRipple)*math.Sin(deg(30))) {
+		t.Errorf("on resonance My = %.6f, want sin 30° within twice the default ripple", r.My[0])
+	}
 	offs := offsets(-3000, 3000, 61)
 	shifted := make([]float64, len(offs))
 	for i, f := range offs {
