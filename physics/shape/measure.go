@@ -15,7 +15,8 @@ type MeasureOptions struct {
 	// Field (T) is B0 for the chemical-shift displacement; 0: not computed.
 	Field float64
 	// Points is the number of offsets of the simulated profile (made odd so the
-	// centre is a point); 0: 401.
+	// centre is a point); 0: 401, or fewer (down to 101) so that points × samples
+	// stays within 800 000.
 	Points int
 	// Span (Hz) is the half-width of the simulated profile about the pulse's
 	// centre; 0: twice the design bandwidth, at least half the sweep and 4/T. It
@@ -58,8 +59,9 @@ type Properties struct {
 	// largest value.
 	OnBand float64
 	// Bandwidth (Hz) is the distance between the offsets, nearest the centre on
-	// either side, where the simulated profile crosses OnBand/2 (refined by
-	// bisection on single-isochromat simulations); Edges are those offsets.
+	// either side, where the simulated profile crosses OnBand/2 (refined between
+	// grid points by regula falsi on single-isochromat simulations, to within
+	// 1e-10 of the level); Edges are those offsets.
 	Bandwidth float64
 	Edges     [2]float64
 	// Transition (Hz) is the mean over both edges of the distance between the
@@ -71,13 +73,14 @@ type Properties struct {
 	PassRipple, StopRipple float64
 	// Threshold (T) is the adiabatic threshold, for adiabatic pulses only: the
 	// lowest peak B1 at which the role's target is met at every offset within a
-	// quarter of the design bandwidth of the centre (21 offsets; only the centre
-	// without a design bandwidth): the lowest B1 of a geometric scan, from 1/64 to
-	// 16 times the pulse's own peak, at which the target is met and also met at
-	// the next scan step. Targets: invert Mz ≤ −0.9; excite |Mxy| ≥ 0.9; refocus
-	// |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; none |Mz − cos θ| ≤ 0.1 with θ the nominal
-	// flip. The scan uses steps of 2^(1/4) from 1/64 of the peak; the last step
-	// is refined by bisection to 1e-4 relative. ThresholdHz is γ̄·Threshold.
+	// quarter of the design bandwidth of the centre (11 evenly spaced offsets;
+	// only the centre without a design bandwidth). Targets: invert Mz ≤ −0.9;
+	// excite |Mxy| ≥ 0.9; refocus |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; none
+	// |Mz − cos θ| ≤ 0.1 with θ the nominal flip. Search: the B1 is scanned in
+	// octaves from 1/64 to 32 times the pulse's own peak; the lowest scan B1 that
+	// meets the target, with the next one also meeting it (a guard against an
+	// isolated hit), is refined by bisection against the one below to 1e-4
+	// relative. ThresholdHz is γ̄·Threshold.
 	Threshold, ThresholdHz float64
 	// Thickness (m) is Bandwidth/(γ̄|G|) for a pulse with a constant gradient.
 	Thickness float64
@@ -91,8 +94,9 @@ type Properties struct {
 
 // Threshold targets, see Properties.Threshold.
 const (
-	thresholdTarget = 0.9
-	thresholdScans  = 45 // 2^(-6) to 2^(5) in steps of 2^(1/4)
+	thresholdTarget  = 0.9
+	thresholdScans   = 12 // 2^(-6) to 2^(5) in steps of 2
+	thresholdOffsets = 11
 )
 
 // Measure computes a pulse's properties, simulating its profile with
@@ -149,7 +153,9 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 
 	points := opt.Points
 	if points == 0 {
-		points = 401
+		// 401, fewer for long waveforms to bound the cost: at most
+		// 800 000 isochromat-steps, at least 101 points.
+		points = min(401, max(101, 800_000/p.Wave.Len()))
 	}
 	if points < 3 {
 		points = 3
@@ -284,20 +290,43 @@ func (m *meter) crossing(level float64, dir int) (f float64, ok bool, err error)
 		}
 		i = j
 	}
-	a, b := m.off[i], m.off[i+dir] // v(a) ≥ level > v(b)
-	for k := 0; k < 40 && math.Abs(b-a) > 1e-9*math.Max(1, math.Abs(a)); k++ {
-		mid := (a + b) / 2
-		v, err := m.at(mid)
+	// Regula falsi with the Illinois modification (Dowell & Jarratt, BIT 11:168,
+	// 1971) on single-isochromat simulations, keeping the bracket
+	// v(a) ≥ level > v(b); stops when the bracket is below 1e-9 of the grid
+	// step or the value is within 1e-10 of the level.
+	a, b := m.off[i], m.off[i+dir]
+	fa, fb := m.val[i]-level, m.val[i+dir]-level
+	tol := 1e-9 * math.Abs(b-a)
+	x := (a + b) / 2
+	side := 0
+	for k := 0; k < 60 && math.Abs(b-a) > tol; k++ {
+		x = b - fb*(b-a)/(fb-fa)
+		if !(x > math.Min(a, b) && x < math.Max(a, b)) {
+			x = (a + b) / 2
+		}
+		v, err := m.at(x)
 		if err != nil {
 			return 0, false, err
 		}
-		if v >= level {
-			a = mid
+		fx := v - level
+		if math.Abs(fx) <= 1e-10 {
+			return x, true, nil
+		}
+		if fx >= 0 {
+			a, fa = x, fx
+			if side == -1 {
+				fb /= 2
+			}
+			side = -1
 		} else {
-			b = mid
+			b, fb = x, fx
+			if side == 1 {
+				fa /= 2
+			}
+			side = 1
 		}
 	}
-	return (a + b) / 2, true, nil
+	return x, true, nil
 }
 
 // hasBand reports whether the profile has a band about its centre: an on-band
@@ -408,7 +437,7 @@ func (m *meter) thresholdOffsets() []float64 {
 	if !(bw > 0) {
 		return []float64{c}
 	}
-	const k = 21
+	const k = thresholdOffsets
 	offs := make([]float64, k)
 	for i := range offs {
 		offs[i] = c + bw/4*(2*float64(i)/(k-1)-1)
@@ -423,7 +452,7 @@ func (m *meter) threshold() (float64, error) {
 	peak := m.p.Peak()
 	scales := make([]float64, thresholdScans)
 	for i := range scales {
-		scales[i] = math.Exp2(-6 + float64(i)/4)
+		scales[i] = math.Exp2(-6 + float64(i))
 	}
 	ok, err := m.met(scales)
 	if err != nil {
