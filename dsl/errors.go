@@ -119,7 +119,7 @@ func suggest(word string, candidates []string) string {
 			best, bestD = c, d
 		}
 	}
-	limit := 1 + utf8.RuneCountInString(word)/3
+	limit := (utf8.RuneCountInString(word) + 1) / 3
 	if best == "" || bestD > limit || bestD == 0 && best == word {
 		return ""
 	}

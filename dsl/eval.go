@@ -171,8 +171,8 @@ func (ev *evaluator) checkRedefine(id Ident, pulse bool) error {
 	if _, ok := lookupShape(id.Name); ok || id.Name == "train" {
 		return errAt(id.P, "%s is a shape and cannot be redefined", quoteText(id.Name))
 	}
-	if _, ok := lookupUnit(id.Name); ok {
-		return errAt(id.P, "%s is a unit and cannot name a %s", quoteText(id.Name), map[bool]string{true: "pulse", false: "quantity"}[pulse])
+	if _, ok := lookupUnit(id.Name); ok && !pulse {
+		return errAt(id.P, "%s is a unit and cannot name a quantity (`2 %s` would read as a unit)", quoteText(id.Name), id.Name)
 	}
 	return nil
 }

@@ -269,7 +269,7 @@ func wordHelp(w string) (string, bool) {
 		parts = append(parts, "`report ... as markdown` or `as latex`")
 	case "window", "hann", "hamming", "none":
 		if w != "window" {
-			parts = append(parts, w+" (sinc window)\n  Hann α = 0.5, Hamming α = 0.46 in w = α + (1 − α)cos(2πt/T) (common practice)")
+			parts = append(parts, w+" (sinc window)\n  none: 1; Hann: 0.5 + 0.5·cos(2πt/T); Hamming: 0.54 + 0.46·cos(2πt/T), t from the pulse's middle (common practice)")
 		}
 	case "excite", "invert", "refocus", "saturate":
 		parts = append(parts, w+" (role)\n  default quantity: "+strings.Join(defaultQuantitiesOf(w), ", "))

@@ -104,7 +104,11 @@ func (p *parser) ident(what string) Ident {
 func (p *parser) newName(what string) Ident {
 	id := p.ident(what)
 	if isReserved(id.Name) {
-		p.fail(id.P, "%s is a keyword and cannot name a %s", quoteText(id.Name), strings.TrimPrefix(strings.TrimPrefix(what, "a "), "the "))
+		noun := "quantity"
+		if strings.Contains(what, "pulse") {
+			noun = "pulse"
+		}
+		p.fail(id.P, "%s is a keyword and cannot name a %s", quoteText(id.Name), noun)
 	}
 	return id
 }

@@ -8,6 +8,7 @@ import (
 
 	"nutate/physics"
 	"nutate/physics/shape"
+	"nutate/physics/slr"
 )
 
 // argKind says how an argument's value is read.
@@ -70,7 +71,7 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "zeros", Help: "time-bandwidth product (= number of zero crossings)"},
 			{Name: "lobes", Kind: argCount, Group: "zeros", Help: "number of lobes, main lobe included (tbw = lobes + 1, common practice)"},
-			{Name: "window", Kind: argWord, Words: shape.WindowNames(), Default: "none", Help: "taper: Hann (α = 0.5) or Hamming (α = 0.46)"},
+			{Name: "window", Kind: argWord, Words: shape.WindowNames(), Default: "none", Help: "taper: Hann 0.5 + 0.5·cos(2πt/T) or Hamming 0.54 + 0.46·cos(2πt/T)"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
 			w, _ := shape.ParseWindow(b.word("window", "none"))
@@ -104,7 +105,7 @@ var shapes = []*shapeSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "4", Help: "time-bandwidth product"},
 			{Name: "pass", Dim: dimNumber, Default: "1%", Help: "pass-band ripple of the profile (fraction or %)"},
 			{Name: "stop", Dim: dimNumber, Default: "1%", Help: "stop-band ripple of the profile (fraction or %)"},
-			{Name: "design", Kind: argWord, Words: []string{"linear", "minimum", "maximum"}, Default: "linear", Help: "phase of the underlying filter"},
+			{Name: "design", Kind: argWord, Words: slr.DesignNames(), Default: "linear", Help: "phase of the underlying filter"},
 		},
 		Build: buildSLR,
 	},
@@ -151,6 +152,7 @@ var shapes = []*shapeSpec{
 		Method: "BIR-4 (Garwood & Ke, J. Magn. Reson. 94:511, 1991)",
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
+			{Name: "flip", Dim: dimAngle, Required: true, Help: "rotation angle, set by the phase jumps (the amplitude is set by peak)"},
 			{Name: "lambda", Dim: dimNumber, Default: "10", Help: "tanh amplitude modulation constant λ"},
 			{Name: "kappa", Dim: dimAngle, Default: "atan(20) = 87.14 deg", Help: "tan frequency modulation constant κ"},
 		},
@@ -179,7 +181,20 @@ func shapeNames() []string {
 }
 
 // allArgs lists the shape's own arguments then the common ones.
-func (s *shapeSpec) allArgs() []argSpec { return append(append([]argSpec{}, s.Args...), commonArgs...) }
+// A shape's own argument of a common name (bir4's flip) replaces the common one.
+func (s *shapeSpec) allArgs() []argSpec {
+	out := append([]argSpec{}, s.Args...)
+	for _, a := range commonArgs {
+		own := false
+		for _, b := range s.Args {
+			own = own || b.Name == a.Name
+		}
+		if !own {
+			out = append(out, a)
+		}
+	}
+	return out
+}
 
 func (s *shapeSpec) arg(name string) (argSpec, bool) {
 	for _, a := range s.allArgs() {
@@ -521,6 +536,12 @@ func pulseSummary(d *pulseDef) string {
 	}
 	if p.Role != shape.RoleNone {
 		parts = append(parts, "role "+p.Role.String())
+	}
+	if p.Gradient != 0 {
+		parts = append(parts, "gradient "+Quantity{p.Gradient, dimGradient}.format("mT/m"))
+		if p.Bandwidth != 0 {
+			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm"))
+		}
 	}
 	return strings.Join(parts, ", ")
 }

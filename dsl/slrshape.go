@@ -4,9 +4,29 @@ import (
 	"errors"
 
 	"nutate/physics/shape"
+	"nutate/physics/slr"
 )
 
-// buildSLR adapts the slr shape row to package slr.
+// buildSLR adapts the slr shape row to package slr: the role is required, the
+// other values default in slr.NewSpec.
 func buildSLR(b *builder) (*shape.Pulse, error) {
-	return nil, errors.New("slr: the Shinnar–Le Roux designer is not available in this build")
+	c := b.common()
+	if c.Role == shape.RoleNone {
+		return nil, errors.New("slr needs role (excite, invert, refocus or saturate)")
+	}
+	spec := slr.NewSpec(c.Role)
+	if v, ok := b.vals["tbw"]; ok {
+		spec.TBW = v
+	}
+	if v, ok := b.vals["pass"]; ok {
+		spec.PassRipple = v
+	}
+	if v, ok := b.vals["stop"]; ok {
+		spec.StopRipple = v
+	}
+	if w, ok := b.words["design"]; ok {
+		d, _ := slr.ParseDesign(w)
+		spec.Design = d
+	}
+	return slr.Pulse(spec, c, b.gamma)
 }
