@@ -349,10 +349,12 @@ func TestTorrey(t *testing.T) {
 		t.Run(fmt.Sprintf("steady/ν1=%g/T1=%g/T2=%g", tc.nu1, tc.t1, tc.t2), func(t *testing.T) {
 			w1, r1, r2 := 2*math.Pi*tc.nu1, 1/tc.t1, 1/tc.t2
 			dur := 60 * max(tc.t1, tc.t2, 1/w1)
-			w := rect(w1, dur, 400)
-			r := sim(t, w, 1, &Isochromats{T1: []float64{tc.t1}, T2: []float64{tc.t2}}, Options{})
 			den := r1*r2 + w1*w1
-			checkVec(t, "steady state", [3]float64{r.Mx[0], r.My[0], r.Mz[0]}, [3]float64{0, w1 * r1 / den, r1 * r2 / den}, 1e-9)
+			// One long sample (combined by squaring) and many.
+			for _, n := range []int{1, 400} {
+				r := sim(t, rect(w1, dur, n), 1, &Isochromats{T1: []float64{tc.t1}, T2: []float64{tc.t2}}, Options{})
+				checkVec(t, fmt.Sprintf("steady state, %d samples", n), [3]float64{r.Mx[0], r.My[0], r.Mz[0]}, [3]float64{0, w1 * r1 / den, r1 * r2 / den}, 1e-9)
+			}
 		})
 	}
 }

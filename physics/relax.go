@@ -19,12 +19,17 @@ import "math"
 // recurrence (e0, e1, e2) ← (−q3·e2, e0 − q2·e2, e1 − q1·e2), and
 // φ1(X) = d0·I + d1·X + d2·X² with d = Σ eₖ/(k+1)!. The scalar series of the
 // entire function is summed until the first omitted term is below 1e-17 for
-// ‖X‖₂ ≤ ρ; steps whose bound exceeds relaxRho are cut into equal substeps, which is
-// exact because the generator is constant: e^{dt·A} = (e^{dt·A/n})ⁿ. The
-// coefficients are shared by the substeps of a step.
+// ‖X‖₂ ≤ ρ; steps whose bound exceeds relaxRho are cut into n = 2ˢ equal substeps,
+// which is exact because the generator is constant: e^{dt·A} = (e^{dt·A/n})ⁿ. The
+// coefficients are shared by the substeps; up to maxRepeat substeps are applied one
+// after the other, more are combined by squaring the affine map of one substep s
+// times, so that a step costs O(log ρ) however long it is.
 
 // relaxRho is the largest ‖dt·A‖₂ bound summed in one piece.
 const relaxRho = 0.5
+
+// maxRepeat is the largest number of substeps applied one after the other.
+const maxRepeat = 4
 
 // maxTerms caps the series length; relaxRho needs far fewer terms.
 const maxTerms = 31 // 2ⁿ − 1, so that k&maxTerms needs no bounds check
@@ -72,8 +77,11 @@ func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR fl
 		rho := dt * (math.Hypot(maxScale*st.w1[j], wz) + maxR)
 		sub := 1
 		if rho > relaxRho {
-			sub = int(math.Ceil(rho / relaxRho))
-			rho /= float64(sub)
+			sq := int(math.Ceil(math.Log2(rho / relaxRho)))
+			for math.Ldexp(relaxRho, sq) < rho {
+				sq++
+			}
+			sub = 1 << min(sq, 62)
 		}
 		st.dt[j] = dt / float64(sub)
 		st.sub[j] = sub
@@ -133,6 +141,49 @@ func xMul(a, c, x, y, z, ux, uy, uz float64) (float64, float64, float64) {
 	return a*ux + z*uy - y*uz, -z*ux + a*uy + x*uz, y*ux - x*uy + c*uz
 }
 
+// relaxSquare applies sub = 2ˢ substeps of the affine map M ← E·M + f with
+// E = e^X = I + X·φ1(X) and f = φ1(X)·t·b, t·b = (0, 0, −c), by squaring:
+// (E, f)∘(E, f) = (E², E·f + f). With φ1(X) = d0·I + d1·X + d2·X² and
+// X³ = −q1X² − q2X − q3I this is E = I + d0·X + d1·X² + d2·X³.
+func relaxSquare(sub int, x, y, z, a, c, d0, d1, d2, mx, my, mz float64) (float64, float64, float64) {
+	var xm, x2, e [3][3]float64
+	xm = [3][3]float64{{a, z, -y}, {-z, a, x}, {y, -x, c}}
+	x2 = mat3Mul(&xm, &xm)
+	x3 := mat3Mul(&x2, &xm)
+	for r := range 3 {
+		for k := range 3 {
+			e[r][k] = d0*xm[r][k] + d1*x2[r][k] + d2*x3[r][k]
+		}
+		e[r][r]++
+	}
+	// f = (d0·I + d1·X + d2·X²)·(0, 0, −c): the third columns.
+	f := [3]float64{
+		-c * (d1*xm[0][2] + d2*x2[0][2]),
+		-c * (d1*xm[1][2] + d2*x2[1][2]),
+		-c * (d0 + d1*xm[2][2] + d2*x2[2][2]),
+	}
+	for n := sub; n > 1; n >>= 1 {
+		var g [3]float64
+		for r := range 3 {
+			g[r] = e[r][0]*f[0] + e[r][1]*f[1] + e[r][2]*f[2] + f[r]
+		}
+		f = g
+		e = mat3Mul(&e, &e)
+	}
+	return e[0][0]*mx + e[0][1]*my + e[0][2]*mz + f[0],
+		e[1][0]*mx + e[1][1]*my + e[1][2]*mz + f[1],
+		e[2][0]*mx + e[2][1]*my + e[2][2]*mz + f[2]
+}
+
+func mat3Mul(p, q *[3][3]float64) (out [3][3]float64) {
+	for r := range 3 {
+		for k := range 3 {
+			out[r][k] = p[r][0]*q[0][k] + p[r][1]*q[1][k] + p[r][2]*q[2][k]
+		}
+	}
+	return out
+}
+
 // relaxScratch holds per-spin series state for relaxBlock.
 type relaxScratch struct {
 	q1, q2, q3, v0, v1, v2 [blockSpins]float64
@@ -182,6 +233,11 @@ func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []flo
 			a, c := -r2[i]*t, -r1[i]*t
 			d0, d1, d2 := v0[i], v1[i], v2[i]
 			mxi, myi, mzi := mx[i], my[i], mz[i]
+			if sub > maxRepeat {
+				mxi, myi, mzi = relaxSquare(sub, x, y, z, a, c, d0, d1, d2, mxi, myi, mzi)
+				mx[i], my[i], mz[i] = mxi, myi, mzi
+				continue
+			}
 			for range sub {
 				// w = X·M + t·b; M ← M + d0·w + d1·X·w + d2·X²·w.
 				wx, wy, wz := xMul(a, c, x, y, z, mxi, myi, mzi)
