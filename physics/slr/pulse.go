@@ -7,12 +7,13 @@ import (
 	"nutate/physics/shape"
 )
 
-// Defaults of a Spec made by NewSpec.
+// Defaults of a Spec made by NewSpec, and the design's size limit.
 const (
 	DefaultTBW     = 4
 	DefaultRipple  = 0.01 // profile ripple, pass and stop, as a fraction
 	DefaultSamples = 256
-	// MaxSamples bounds the design: the exchange and the transforms cost O(N²).
+	// MaxSamples bounds the design: the exchange and the transforms cost O(N²),
+	// so that a design of a few thousand samples takes seconds.
 	MaxSamples = 4096
 )
 
@@ -39,7 +40,9 @@ type Info struct {
 	StopEdge   float64 // Hz from the band centre: start of the filter's stopband
 	Method     string  // "remez" or "least squares", and the phase construction
 	BetaScaled bool    // β was scaled down to keep |β| < 1
-	A, B       []complex128
+	// A and B are the designed polynomials in z⁻¹ (see the package doc); the
+	// forward transform of the RF returns them to about 1e-8.
+	A, B []complex128
 }
 
 func roleFlip(r shape.Role) float64 {
@@ -55,9 +58,14 @@ func roleFlip(r shape.Role) float64 {
 // Pulse designs an SLR pulse for spec with the Common arguments c (duration,
 // samples or dwell, flip for excitation, phase, center, gradient or thickness) for
 // a nucleus of gyromagnetic ratio gamma (rad·s⁻¹·T⁻¹). Inversion and refocusing
-// pulses are 180°, saturation 90°; excitation takes c.Flip in (0, 180°). The
-// bandwidth is TBW/duration between the 50 % points of |β|. Errors say which
-// value cannot be met and the closest that can.
+// pulses are 180°, saturation 90°; excitation takes c.Flip in (0, 180°); c.Peak
+// cannot be given, as the design sets the amplitude. The bandwidth is
+// TBW/duration between the 50 % points of |β|. Errors say which value cannot be
+// met and the closest that can.
+//
+// The profile ripples hold within the published relations; where the passband
+// ripple of |β| has a trough at zero offset, the on-resonance flip of a 180°
+// design is below 180° by up to what the passband ripple allows.
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
 	p, _, err := design(spec, c, gamma)
 	return p, err

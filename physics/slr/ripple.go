@@ -82,6 +82,7 @@ const (
 
 var designNames = [...]string{"linear", "minimum", "maximum"}
 
+// String returns the design's name as ParseDesign reads it.
 func (d Design) String() string {
 	if d < 0 || int(d) >= len(designNames) {
 		return fmt.Sprintf("Design(%d)", int(d))
