@@ -5,13 +5,21 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"errors"
+	"net"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
 	"time"
+
+	"github.com/go-zeromq/zmq4"
+	"github.com/go-zeromq/zmq4/security/null"
+
+	"nutate/kernel"
 )
 
 // End-to-end tests: build the binary, install its kernelspec into a temporary
@@ -193,6 +201,233 @@ func BenchmarkE2EKernel(b *testing.B) {
 				v, _ := strconv.ParseFloat(f[2], 64)
 				b.ReportMetric(v, f[3]+"/"+f[1])
 			}
+		}
+	}
+}
+
+// Process-level tests of the kernel command with a Go client: signals and the
+// death of the parent process. They need no Python.
+
+// buildKernel builds the binary once per test.
+func buildKernel(t *testing.T) string {
+	t.Helper()
+	if testing.Short() {
+		t.Skip("process tests skipped in -short mode")
+	}
+	bin := filepath.Join(t.TempDir(), "nutate")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	return bin
+}
+
+// freePorts returns n TCP ports free at the time of the call.
+func freePorts(t *testing.T, n int) []int {
+	t.Helper()
+	var ports []int
+	var ls []net.Listener
+	for range n {
+		l, err := net.Listen("tcp", "127.0.0.1:0")
+		if err != nil {
+			t.Fatal(err)
+		}
+		ls = append(ls, l)
+		ports = append(ports, l.Addr().(*net.TCPAddr).Port)
+	}
+	for _, l := range ls {
+		l.Close()
+	}
+	return ports
+}
+
+type procKernel struct {
+	t      *testing.T
+	cmd    *exec.Cmd
+	info   kernel.ConnectionInfo
+	signer *kernel.Signer
+	exited chan error
+}
+
+// startKernel runs `nutate kernel` with a fresh connection file and env.
+func startKernel(t *testing.T, bin string, env ...string) *procKernel {
+	t.Helper()
+	p := freePorts(t, 5)
+	info := kernel.ConnectionInfo{Transport: "tcp", IP: "127.0.0.1", ShellPort: p[0], IOPubPort: p[1], StdinPort: p[2],
+		ControlPort: p[3], HBPort: p[4], Key: "process-test-key", SignatureScheme: "hmac-sha256"}
+	cf := filepath.Join(t.TempDir(), "kernel.json")
+	b, _ := json.Marshal(info)
+	if err := os.WriteFile(cf, b, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	cmd := exec.Command(bin, "kernel", "--connection-file", cf)
+	cmd.Env = append(os.Environ(), env...)
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	signer, _ := kernel.NewSigner(info.Key, info.SignatureScheme)
+	k := &procKernel{t: t, cmd: cmd, info: info, signer: signer, exited: make(chan error, 1)}
+	go func() { k.exited <- cmd.Wait() }()
+	t.Cleanup(func() {
+		cmd.Process.Kill()
+		<-k.exited
+	})
+	return k
+}
+
+// dial connects to port once the kernel listens (it may still be starting).
+func (k *procKernel) dial(port int, typ zmq4.SocketType) *zmq4.Conn {
+	k.t.Helper()
+	deadline := time.Now().Add(20 * time.Second)
+	for {
+		c, err := net.Dial("tcp", "127.0.0.1:"+strconv.Itoa(port))
+		if err == nil {
+			zc, err := zmq4.Open(c, null.Security(), typ, zmq4.SocketIdentity("go-test"), false, nil)
+			if err != nil {
+				k.t.Fatal(err)
+			}
+			k.t.Cleanup(func() { zc.Close() })
+			return zc
+		}
+		if time.Now().After(deadline) {
+			k.t.Fatalf("kernel never listened on %d: %v", port, err)
+		}
+		select {
+		case err := <-k.exited:
+			k.t.Fatalf("kernel exited while starting: %v", err)
+		case <-time.After(5 * time.Millisecond): // connection retry interval, as a ZMQ client's
+		}
+	}
+}
+
+func (k *procKernel) send(c *zmq4.Conn, msgType, id string, content any) {
+	k.t.Helper()
+	body, _ := json.Marshal(content)
+	frames, err := k.signer.Encode(kernel.Message{
+		Header:  kernel.Header{MsgID: id, Session: "go", Username: "t", Date: time.Now().UTC().Format(time.RFC3339Nano), MsgType: msgType, Version: "5.3"},
+		Content: body,
+	})
+	if err != nil {
+		k.t.Fatal(err)
+	}
+	if err := c.SendMsg(zmq4.NewMsgFrom(frames...)); err != nil {
+		k.t.Fatal(err)
+	}
+}
+
+func (k *procKernel) recv(c *zmq4.Conn) (kernel.Message, map[string]any, string) {
+	k.t.Helper()
+	for {
+		msg, err := c.RecvMsg()
+		if err != nil {
+			k.t.Fatalf("recv: %v", err)
+		}
+		if msg.Type == zmq4.CmdMsg {
+			continue
+		}
+		m, err := k.signer.Decode(msg.Frames)
+		if err != nil {
+			k.t.Fatalf("decode: %v", err)
+		}
+		var content map[string]any
+		json.Unmarshal(m.Content, &content)
+		var parent kernel.Header
+		json.Unmarshal(m.Parent, &parent)
+		return m, content, parent.MsgID
+	}
+}
+
+// waitExit waits for the kernel to exit by itself and checks its status.
+func (k *procKernel) waitExit(within time.Duration) {
+	k.t.Helper()
+	select {
+	case err := <-k.exited:
+		k.exited <- err // for the cleanup
+		if err != nil {
+			k.t.Fatalf("kernel exit: %v, want status 0", err)
+		}
+	case <-time.After(within):
+		k.t.Fatalf("kernel still running after %v", within)
+	}
+}
+
+func TestKernelExitsWhenParentDies(t *testing.T) {
+	bin := buildKernel(t)
+	parent := exec.Command("true")
+	if err := parent.Run(); err != nil {
+		t.Skipf("cannot run a short-lived parent: %v", err)
+	}
+	k := startKernel(t, bin, "JPY_PARENT_PID="+strconv.Itoa(parent.Process.Pid))
+	// The kernel polls its parent every second; allow a generous bound.
+	k.waitExit(20 * time.Second)
+}
+
+func TestKernelSignals(t *testing.T) {
+	bin := buildKernel(t)
+	k := startKernel(t, bin, "JPY_PARENT_PID="+strconv.Itoa(os.Getpid()))
+	iopub := k.dial(k.info.IOPubPort, zmq4.Sub)
+	iopub.SendMsg(zmq4.NewMsg([]byte{1}))
+	shell := k.dial(k.info.ShellPort, zmq4.Dealer)
+
+	// SIGINT while idle: nothing to interrupt, the kernel keeps serving
+	// (an uncaught SIGINT would end a Go program with status 2).
+	k.send(shell, "kernel_info_request", "k1", map[string]any{})
+	k.recv(shell)
+	if err := k.cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	k.send(shell, "kernel_info_request", "k2", map[string]any{})
+	if m, _, parent := k.recv(shell); m.Header.MsgType != "kernel_info_reply" || parent != "k2" {
+		t.Fatalf("after SIGINT: got %s to %s", m.Header.MsgType, parent)
+	}
+
+	// SIGINT during a long cell interrupts the cell; the session survives.
+	k.send(shell, "execute_request", "p", map[string]any{"code": "pulse p = sinc(duration = 4 ms, tbw = 8, flip = 90 deg, samples = 4000)"})
+	if _, c, _ := k.recv(shell); c["status"] != "ok" {
+		t.Skipf("the language cannot define the long cell's pulse yet: %v", c["evalue"])
+	}
+	k.send(shell, "execute_request", "long", map[string]any{"code": "sweep p over offset -20 kHz to 20 kHz points 1000, b1 0.5 to 1.5 points 1000"})
+	for {
+		m, _, parent := k.recv(iopub)
+		if parent == "long" && m.Header.MsgType == "execute_input" {
+			break
+		}
+	}
+	if err := k.cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	if _, c, parent := k.recv(shell); parent != "long" || c["status"] != "error" || c["ename"] != "Interrupted" {
+		t.Fatalf("SIGINT during a cell: got %v to %s, want an Interrupted error", c, parent)
+	}
+	k.send(shell, "execute_request", "after", map[string]any{"code": "describe p"})
+	if _, c, _ := k.recv(shell); c["status"] != "ok" {
+		t.Fatalf("after SIGINT: got %v", c)
+	}
+
+	// SIGTERM: a clean exit.
+	if err := k.cmd.Process.Signal(syscall.SIGTERM); err != nil {
+		t.Fatal(err)
+	}
+	k.waitExit(10 * time.Second)
+}
+
+func TestKernelCommandErrors(t *testing.T) {
+	bin := buildKernel(t)
+	tests := []struct {
+		args []string
+		code int
+	}{
+		{[]string{"kernel"}, 2},
+		{[]string{"kernel", "--connection-file", filepath.Join(t.TempDir(), "missing.json")}, 1},
+		{[]string{"kernel", "--bogus"}, 2},
+		{[]string{"install", "--user", "--sys-prefix"}, 2},
+	}
+	for _, tc := range tests {
+		ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+		err := exec.CommandContext(ctx, bin, tc.args...).Run()
+		cancel()
+		var ee *exec.ExitError
+		if !errors.As(err, &ee) || ee.ExitCode() != tc.code {
+			t.Errorf("nutate %v: got %v, want exit status %d", tc.args, err, tc.code)
 		}
 	}
 }

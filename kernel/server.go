@@ -225,13 +225,13 @@ const iopubWait = 500 * time.Millisecond
 
 // serve runs the requests of one channel in order until shutdown.
 //
-// The first request waits (at most iopubWait) until an iopub subscriber has
+// The first shell request waits (at most iopubWait) until an iopub subscriber has
 // joined: a client connects all its sockets at once, and busy/idle published
 // before its subscription exists are lost, which costs a client waiting for
 // readiness another round of kernel_info.
 func (s *Server) serve(q chan request, done chan struct{}, control bool) {
 	defer close(done)
-	first := s.iopub != nil
+	first := s.iopub != nil && !control
 	for {
 		select {
 		case r := <-q:

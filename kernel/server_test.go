@@ -7,6 +7,7 @@ import (
 	"io"
 	"log"
 	"net"
+	"os"
 	"strconv"
 	"testing"
 	"time"
@@ -328,3 +329,76 @@ func equal(a, b []string) bool {
 }
 
 var _ = bytes.Equal
+
+func TestServerShutdownOnShell(t *testing.T) {
+	s, _ := testServer(t)
+	c := newClient(t)
+	shell := dial(t, s.Info().ShellPort, zmq4.Dealer)
+	c.send(shell, "shutdown_request", "bye", map[string]any{"restart": false})
+	if r := c.recv(shell); r.Header.MsgType != "shutdown_reply" || field(r, "status") != "ok" {
+		t.Fatalf("got %s %v", r.Header.MsgType, content(r))
+	}
+	<-s.Done()
+}
+
+func TestServerIPC(t *testing.T) {
+	base := t.TempDir() + "/kernel-ipc"
+	s, err := Start(ConnectionInfo{Transport: "ipc", IP: base, ShellPort: 1, IOPubPort: 2, StdinPort: 3, ControlPort: 4, HBPort: 5,
+		Key: testKey}, &fakeExec{}, log.New(io.Discard, "", 0))
+	if err != nil {
+		t.Fatal(err)
+	}
+	conn, err := net.Dial("unix", base+"-1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	zc, err := zmq4.Open(conn, null.Security(), zmq4.Dealer, zmq4.SocketIdentity("t"), false, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := newClient(t)
+	c.send(zc, "kernel_info_request", "ki", map[string]any{})
+	if r := c.recv(zc); r.Header.MsgType != "kernel_info_reply" {
+		t.Fatalf("got %s", r.Header.MsgType)
+	}
+	zc.Close()
+	s.Shutdown()
+	<-s.Done()
+	if _, err := net.Dial("unix", base+"-1"); err == nil {
+		t.Fatal("ipc socket still accepting after shutdown")
+	}
+}
+
+func TestReadConnectionFile(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name, body string) string {
+		p := dir + "/" + name
+		if err := os.WriteFile(p, []byte(body), 0o600); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	tests := []struct {
+		name, body string
+		ok         bool
+	}{
+		{"good.json", `{"transport":"tcp","ip":"127.0.0.1","shell_port":1,"iopub_port":2,"stdin_port":3,"control_port":4,"hb_port":5,"key":"k","signature_scheme":"hmac-sha256"}`, true},
+		{"defaults.json", `{"shell_port":1}`, true},
+		{"bad.json", `{"shell_port":`, false},
+		{"udp.json", `{"transport":"udp"}`, false},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			ci, err := ReadConnectionFile(write(tc.name, tc.body))
+			if (err == nil) != tc.ok {
+				t.Fatalf("got error %v, want ok=%v", err, tc.ok)
+			}
+			if tc.ok && (ci.Transport != "tcp" || ci.IP != "127.0.0.1") {
+				t.Fatalf("defaults: got %+v", ci)
+			}
+		})
+	}
+	if _, err := ReadConnectionFile(dir + "/missing.json"); err == nil {
+		t.Fatal("missing file: got nil error")
+	}
+}
