@@ -372,7 +372,20 @@ func (p *parser) help(kw token) Stmt {
 // ARG  := NAME "=" EXPR | EXPR ["at" EXPR]
 func (p *parser) call(fun Ident) *Call {
 	c := &Call{Fun: fun}
-	p.expect(tLParen, "`(`")
+	open := p.expect(tLParen, "`(`")
+	defer func() {
+		// A fault past the line of an unclosed `(` is reported at the `(`.
+		if r := recover(); r != nil {
+			if _, ok := r.(bailout); ok && len(p.errs.errs) > 0 {
+				last := p.errs.errs[len(p.errs.errs)-1]
+				if t := p.tok(); (t.Kind == tEOF || last.Pos.Line > open.Pos.Line) && !p.closedLater(open) {
+					p.errs.errs = p.errs.errs[:len(p.errs.errs)-1]
+					p.errs.add(open.Pos, "`(` is never closed: expected `)`")
+				}
+			}
+			panic(r)
+		}
+	}()
 	for p.tok().Kind != tRParen {
 		a := &Arg{}
 		if p.tok().Kind == tIdent && p.peek(1).Kind == tAssign {
@@ -506,4 +519,24 @@ func (p *parser) unit(required bool) *UnitRef {
 	}
 	p.i++
 	return &UnitRef{P: t.Pos, Name: t.Text}
+}
+
+// closedLater reports whether the `(` at open has a matching `)` in the cell.
+func (p *parser) closedLater(open token) bool {
+	depth := 0
+	for _, t := range p.toks {
+		if t.Pos.Offset < open.Pos.Offset {
+			continue
+		}
+		switch t.Kind {
+		case tLParen:
+			depth++
+		case tRParen:
+			depth--
+			if depth == 0 {
+				return true
+			}
+		}
+	}
+	return false
 }

@@ -93,6 +93,14 @@ func TestFlipAndPeakCheckValues(t *testing.T) {
 	if want := 0.25 / (42.577478518e6 * 2e-3 * 0.22570583); !closeRel(q.Peak(), want, 1e-4) {
 		t.Errorf("sinc peak = %g T, want %g T (CHECKS.md, Bernstein et al. 2004)", q.Peak(), want)
 	}
+	// CHECKS.md: Hamming sinc TBW 4, 90° in 2 ms → 11.6975 µT (498.05 Hz)
+	// (Bernstein, King & Zhou 2004; A = 0.25097821).
+	if err := s.Exec(context.Background(), "pulse m = sinc(duration = 2 ms, tbw = 4, window = hamming, flip = 90 deg, samples = 2000)", Sink{}); err != nil {
+		t.Fatal(err)
+	}
+	if got := s.st.names["m"].pulse.Pulse.Peak(); !closeRel(got, 11.6975e-6, 1e-4) {
+		t.Errorf("hamming sinc peak = %g T, want 11.6975 µT (CHECKS.md)", got)
+	}
 	// CHECKS.md: energy of a hard 90° in 1 ms (5.87165 µT) is 34.4763 µT²·ms.
 	if err := s.Exec(context.Background(), "pulse h = rect(duration = 1 ms, flip = 90 deg)", Sink{}); err != nil {
 		t.Fatal(err)
