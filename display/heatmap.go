@@ -33,13 +33,8 @@ const maxPixels = 640
 func (m Map) Bundle() Bundle {
 	svg := m.SVG()
 	t := m.table()
-	plain := t.Plain()
-	if m.Title != "" && t.Title == "" {
-		plain = m.Title + "\n" + plain
-	}
-	plain += "\n" + m.caption()
 	return Bundle{
-		"text/plain":       strings.TrimLeft(plain, "\n"),
+		"text/plain":       figurePlain(m.Title, t, m.caption()),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
 		"application/json": m.json(),

@@ -27,13 +27,8 @@ const maxDots = 30
 func (p Profile) Bundle() Bundle {
 	svg := p.SVG()
 	t := p.table()
-	plain := t.Plain()
-	if p.Title != "" && t.Title == "" {
-		plain = p.Title + "\n" + plain
-	}
-	plain += "\n" + p.caption()
 	return Bundle{
-		"text/plain":       strings.TrimLeft(plain, "\n"),
+		"text/plain":       figurePlain(p.Title, t, p.caption()),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
 		"application/json": p.json(),

@@ -4,6 +4,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
@@ -113,6 +114,11 @@ func (s stack) plots() []*plot.Plot {
 			p.Y.Tick.Marker = niceTicks{n: 4}
 		}
 		p.Y.Label.Text = pn.label
+		// A label longer than its panel is wrapped onto more lines.
+		if avail := 0.95*panelHeightFor(len(s.panels)) - 6; textStyle(labelSize).Width(pn.label) > avail {
+			p.Y.Label.Text = strings.Join(wrapText(pn.label, textStyle(labelSize), avail), "\n")
+		}
+
 		if i == len(s.panels)-1 {
 			p.X.Label.Text = s.xlabel
 		} else {

@@ -15,13 +15,8 @@ import (
 // "series": [{"quantity", "unit", "values"}], "properties": table}.
 func (w Waveform) Bundle(t Table) Bundle {
 	svg := w.SVG()
-	plain := t.Plain()
-	if w.Title != "" && t.Title == "" {
-		plain = w.Title + "\n" + plain
-	}
-	plain += "\n" + w.caption()
 	return Bundle{
-		"text/plain":       strings.TrimLeft(plain, "\n"),
+		"text/plain":       figurePlain(w.Title, t, w.caption()),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
 		"application/json": w.json(t),
