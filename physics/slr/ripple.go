@@ -44,10 +44,12 @@ const nearRightAngle = math.Pi / 180
 //	saturation            δ1 = δe1/2,     δ2 = √δe2
 //
 // flip (rad) selects between the excitation relations: within 1° of 90° the 90°
-// relation, otherwise the small-tip one. Above 90° the small-tip δ1 is further
-// scaled by cos²(θ/2)/|cos θ| where that is below 1: the first-order sensitivity
-// of |Mxy| = 2|β|·√(1 − |β|²) to a relative change of |β| is |cos θ|/cos²(θ/2)
-// times sin θ (derived here). The profiles the ripples refer to are
+// relation, otherwise the small-tip one. Above 90° (no published row) the
+// small-tip relations are corrected to first order (derived here from
+// |Mxy| = 2|β|·√(1 − |β|²) with |β| = sin(θ/2)·(1 + ε)): a relative change ε of
+// the passband changes |Mxy|/sin θ by ε·|cos θ|/cos²(θ/2), so δ1 is scaled by
+// cos²(θ/2)/|cos θ| where that is below 1; the stopband |Mxy|/sin θ ≈
+// δ2/cos(θ/2), so δ2 = δe2·cos(θ/2), which at 90° is the published δe2/√2. The profiles the ripples refer to are
 // |Mxy|/sin θ (excitation), Mz (inversion, saturation) and |β|², the crushed
 // echo amplitude (refocusing).
 func Ripples(role shape.Role, flip, pass, stop float64) (d1, d2 float64) {
@@ -62,8 +64,9 @@ func Ripples(role shape.Role, flip, pass, stop float64) (d1, d2 float64) {
 	if math.Abs(flip-math.Pi/2) <= nearRightAngle {
 		return math.Sqrt(pass / 2), stop / math.Sqrt2
 	}
-	if c := math.Cos(flip / 2); c*c < math.Abs(math.Cos(flip)) {
-		return pass * c * c / math.Abs(math.Cos(flip)), stop
+	if flip > math.Pi/2 {
+		c := math.Cos(flip / 2)
+		return pass * math.Min(1, c*c/math.Abs(math.Cos(flip))), stop * c
 	}
 	return pass, stop
 }

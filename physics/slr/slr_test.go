@@ -53,6 +53,9 @@ func TestRipples(t *testing.T) {
 		{"spin echo", shape.RoleRefocus, math.Pi, 0.01, 0.02, 0.01 / 4, math.Sqrt(0.02)},
 		{"saturation", shape.RoleSaturate, math.Pi / 2, 0.01, 0.02, 0.01 / 2, math.Sqrt(0.02)},
 		{"inversion 0.1%", shape.RoleInvert, math.Pi, 0.001, 0.005, 0.001 / 8, math.Sqrt(0.005 / 2)},
+		// Above 90°: first-order correction derived in Ripples' comment.
+		{"excitation 135°", shape.RoleExcite, deg(135), 0.01, 0.02,
+			0.01 * math.Pow(math.Cos(deg(67.5)), 2) / math.Abs(math.Cos(deg(135))), 0.02 * math.Cos(deg(67.5))},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -187,7 +190,12 @@ func designCases() []designCase {
 		}
 	}
 	// Other specifications, so the checks do not hold only for the defaults.
+	// Excitation above 90° uses the small-tip relation with the first-order
+	// correction of Ripples (derived there, checked here by simulation).
+	over := profileSpec{"excite 135°", shape.RoleExcite, deg(135), 1, 0,
+		func(mx, my, mz float64, _ complex128) float64 { return math.Hypot(mx, my) / math.Sin(deg(135)) }, absDev}
 	cs = append(cs,
+		designCase{over, Linear, 8, 0.01, 0.01},
 		designCase{roleProfiles[2], Linear, 4, 0.02, 0.005},
 		designCase{roleProfiles[3], Minimum, 6, 0.005, 0.01},
 		designCase{roleProfiles[0], Linear, 12, 0.005, 0.005},
