@@ -55,7 +55,10 @@ func Bir4(c Common, gamma float64, bandwidth, lambda, kappa float64) (*Pulse, er
 	}
 	// Four equal segments need a sample count divisible by 4 so that the phase
 	// jumps fall on sample boundaries.
-	def := sweepSamples(bandwidth, c.Duration)
+	def, err := c.sweepSamples(bandwidth)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
 	def += (4 - def%4) % 4
 	n, dt, err := c.adiabaticTimes(def, true)
 	if err != nil {

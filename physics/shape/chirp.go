@@ -19,7 +19,11 @@ func Chirp(c Common, gamma float64, bandwidth, ramp float64) (*Pulse, error) {
 	if !(ramp >= 0 && ramp <= 0.5) {
 		return nil, fmt.Errorf("%s: ramp must be a fraction from 0 to 0.5, got %g", name, ramp)
 	}
-	n, dt, err := c.adiabaticTimes(sweepSamples(bandwidth, c.Duration), false)
+	def, err := c.sweepSamples(bandwidth)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	n, dt, err := c.adiabaticTimes(def, false)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}

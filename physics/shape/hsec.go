@@ -46,7 +46,11 @@ func Hsec(c Common, gamma float64, order int, bandwidth, beta float64) (*Pulse, 
 	if err := checkBandwidth(name, bandwidth); err != nil {
 		return nil, err
 	}
-	n, dt, err := c.adiabaticTimes(sweepSamples(bandwidth, c.Duration), false)
+	def, err := c.sweepSamples(bandwidth)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	n, dt, err := c.adiabaticTimes(def, false)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}

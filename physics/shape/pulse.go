@@ -1,10 +1,34 @@
-// Package shape builds RF pulse waveforms (hard, sinc, Gaussian, adiabatic,
-// composite, imported) and computes their properties. Units are those of package
-// physics: seconds, tesla, hertz, radians, metres, T/m.
+// Package shape builds RF pulse waveforms and computes their properties. Units
+// are those of package physics: seconds, tesla, hertz, radians, metres, T/m;
+// γ in rad·s⁻¹·T⁻¹ (signed).
 //
-// Each shape is one file with a constructor that takes the shape's own parameters
-// and the Common ones, and returns a *Pulse whose amplitude is solved exactly for
-// the requested nominal flip or set by the requested peak.
+// Each shape is one file with a constructor that takes the shape's own
+// parameters, the Common arguments every shape shares (duration, samples or
+// dwell, phase, center, flip or peak, gradient or thickness, role) and γ, and
+// returns a *Pulse:
+//
+//   - amplitude-modulated shapes (Rect, Sinc, SincLobes, Gauss) take exactly one
+//     of flip (the amplitude is solved exactly for the nominal on-resonance flip
+//     γ∫B1 dt of the sampled waveform) or peak;
+//   - frequency-swept, adiabatic shapes (Hsec, Chirp, Wurst, Bir4) take peak
+//     only (Bir4 also takes flip, its rotation angle); the sweep is integrated
+//     into the phase of B1 and recorded per sample in Pulse.Freq;
+//   - Train plays pulses back to back, each at its own phase, with gaps;
+//   - FromSamples builds a pulse from sampled data (amplitude, phase,
+//     frequency, gradient).
+//
+// Measure simulates a pulse (physics.Simulate) and reports its Properties: peak,
+// flip, energy and B1rms, the role's profile with its bandwidth, transition
+// width and ripples, the adiabatic threshold, slice thickness and chemical-shift
+// displacement. Energy and B1rms are relative, waveform-only estimates, never a
+// substitute for the scanner's SAR supervision, IEC 60601-2-33, local
+// regulations or the site's MR safety officer.
+//
+// Sign of frequencies: as in package physics, the transverse magnetization of a
+// spin at offset Δf turns as exp(−i·2πΔf·t) in the frame of the carrier, so an RF
+// field at frequency f relative to the carrier (Common.Center, Pulse.Freq) has
+// phase −2π∫f dt, and a pulse centred at f acts on spins at offset f.
+// Sample times are sample midpoints; user errors are returned, never panics.
 package shape
 
 import (
@@ -29,7 +53,12 @@ const (
 
 var roleNames = [...]string{"", "excite", "invert", "refocus", "saturate"}
 
-func (r Role) String() string { return roleNames[r] }
+func (r Role) String() string {
+	if r < 0 || int(r) >= len(roleNames) {
+		return fmt.Sprintf("Role(%d)", int(r))
+	}
+	return roleNames[r]
+}
 
 // ParseRole reads a role name.
 func ParseRole(s string) (Role, bool) {

@@ -18,7 +18,12 @@ const (
 
 var windowNames = [...]string{"none", "hann", "hamming"}
 
-func (w Window) String() string { return windowNames[w] }
+func (w Window) String() string {
+	if w < 0 || int(w) >= len(windowNames) {
+		return fmt.Sprintf("Window(%d)", int(w))
+	}
+	return windowNames[w]
+}
 
 // ParseWindow reads a window name.
 func ParseWindow(s string) (Window, bool) {
@@ -40,6 +45,9 @@ func WindowNames() []string { return windowNames[:] }
 func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 	if !(tbw > 0) || math.IsInf(tbw, 0) {
 		return nil, fmt.Errorf("sinc: tbw must be positive, got %g", tbw)
+	}
+	if win < WindowNone || win > WindowHamming {
+		return nil, fmt.Errorf("sinc: window %d is not one of %v", int(win), windowNames)
 	}
 	n, dt, err := c.times(257)
 	if err != nil {

@@ -28,7 +28,11 @@ func Wurst(c Common, gamma float64, bandwidth float64, order float64) (*Pulse, e
 	if err := checkBandwidth(name, bandwidth); err != nil {
 		return nil, err
 	}
-	n, dt, err := c.adiabaticTimes(sweepSamples(bandwidth, c.Duration), false)
+	def, err := c.sweepSamples(bandwidth)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	n, dt, err := c.adiabaticTimes(def, false)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}
