@@ -15,6 +15,7 @@ cases = [
     ("odd61_bandpass", 61, [0, 0.1, 0.15, 0.3, 0.35, 0.5], [0, 1, 0], [5, 1, 5]),
     ("slr_inv64", 64, [0, 0.046875, 0.078125, 0.5], [1, 0], [1, 0.02]),
     ("slr_lin127", 127, [0, 0.02, 0.035, 0.5], [1, 0], [1, 0.5]),
+    ("slr_proto511", 511, [0, 0.0121, 0.0175, 0.5], [1, 0], [1, 0.5]),
 ]
 out = {"generator": "testdata/slr/gen_remez.py", "scipy": scipy.__version__, "remez": [], "firls": []}
 for name, taps, edges, gains, weights in cases:
