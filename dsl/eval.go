@@ -111,6 +111,12 @@ func (ev *evaluator) exec(s Stmt) error {
 	case *PrintStmt:
 		var parts []string
 		for _, x := range s.Xs {
+			if id, ok := x.(*Ident); ok {
+				if b, ok := ev.st.names[id.Name]; ok && b.pulse != nil {
+					parts = append(parts, pulseSummary(b.pulse))
+					continue
+				}
+			}
 			v, err := ev.evalExpr(x)
 			if err != nil {
 				return err

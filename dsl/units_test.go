@@ -136,3 +136,19 @@ func TestDimensionErrors(t *testing.T) {
 		})
 	}
 }
+
+func TestB1rmsCheckValue(t *testing.T) {
+	// CHECKS.md: a hard 90° in 1 ms (5.87165 µT) once per 10 ms has B1rms 1.85678 µT.
+	s := NewSession(t.TempDir())
+	if err := s.Exec(context.Background(), "pulse h = rect(duration = 1 ms, flip = 90 deg)", Sink{}); err != nil {
+		t.Fatal(err)
+	}
+	ev := &evaluator{ctx: context.Background(), sess: s, st: s.st}
+	pr, err := ev.measure(s.st.names["h"].pulse, 10e-3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !closeRel(pr.B1rms, 1.85678e-6, 1e-5) {
+		t.Errorf("B1rms = %g T, want 1.85678 µT (CHECKS.md)", pr.B1rms)
+	}
+}
