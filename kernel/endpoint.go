@@ -49,7 +49,7 @@ type endpoint struct {
 // Queue limits per peer.
 const (
 	defaultQueueLen   = 1024
-	defaultQueueBytes = 64 << 20
+	defaultQueueBytes = 32 << 20
 	defaultGrace      = 100 * time.Millisecond
 )
 

@@ -1,5 +1,3 @@
-// Package kernel speaks the Jupyter messaging protocol (version 5.3) over ZeroMQ
-// and runs cells through an Executor. It knows nothing of the pulse language.
 package kernel
 
 import "context"

@@ -153,8 +153,11 @@ func (d *dispatcher) kernelInfo(r request) {
 		"file_extension": li.FileExtension,
 		"pygments_lexer": li.PygmentsLexer,
 	}
-	if li.CodemirrorMode != "" {
-		lang["codemirror_mode"] = li.CodemirrorMode
+	// Without a CodeMirror mode of its own the language is edited as its
+	// mimetype, which front ends show as plain text.
+	lang["codemirror_mode"] = li.CodemirrorMode
+	if li.CodemirrorMode == "" {
+		lang["codemirror_mode"] = li.Mimetype
 	}
 	d.answer(r, "kernel_info_reply", map[string]any{
 		"status":                 "ok",

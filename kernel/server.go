@@ -101,6 +101,7 @@ func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- str
 	if err != nil {
 		return nil, err
 	}
+	RegisterTransports()
 	if info.Transport == "" {
 		info.Transport = "tcp"
 	}

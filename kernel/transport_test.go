@@ -1,9 +1,13 @@
 package kernel
 
 import (
+	"context"
 	"encoding/binary"
 	"errors"
+	"net"
 	"testing"
+
+	"github.com/go-zeromq/zmq4"
 )
 
 // zmtpFrame builds one ZMTP 3 frame: flags, 1- or 8-byte size, body
@@ -115,5 +119,56 @@ func TestFrameGuardAtBound(t *testing.T) {
 	binary.BigEndian.PutUint64(hdr[1:], MaxFrameSize)
 	if err := g.feed(hdr); err != nil {
 		t.Fatalf("frame of exactly MaxFrameSize: got %v, want accepted", err)
+	}
+}
+
+// TestGuardedTransportWithZmq4Sockets shows the registered transport fixing
+// zmq4's own sockets: zmq4's accept loop runs each handshake in turn, so
+// without the guard one idle TCP connection would keep the REQ client below
+// from ever being accepted.
+func TestGuardedTransportWithZmq4Sockets(t *testing.T) {
+	RegisterTransports()
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	rep := zmq4.NewRep(ctx)
+	defer rep.Close()
+	if err := rep.Listen("guarded-tcp://127.0.0.1:0"); err != nil {
+		t.Fatal(err)
+	}
+	addr := rep.Addr().String()
+	idle, err := net.Dial("tcp", addr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer idle.Close()
+	// A frame header claiming 1 TiB right after the greeting: refused, and the
+	// socket keeps serving.
+	huge, err := net.Dial("tcp", addr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer huge.Close()
+	greet := make([]byte, 64)
+	greet[0], greet[9], greet[10] = 0xff, 0x7f, 3
+	copy(greet[12:], "NULL")
+	huge.Write(append(greet, 0x06, 0, 0, 1, 0, 0, 0, 0, 0))
+
+	req := zmq4.NewReq(ctx)
+	defer req.Close()
+	if err := req.Dial("tcp://" + addr); err != nil {
+		t.Fatal(err)
+	}
+	go func() {
+		msg, err := rep.Recv()
+		if err == nil {
+			rep.Send(msg)
+		}
+	}()
+	if err := req.Send(zmq4.NewMsgString("ping")); err != nil {
+		t.Fatal(err)
+	}
+	msg, err := req.Recv()
+	if err != nil || string(msg.Frames[0]) != "ping" {
+		t.Fatalf("echo through the guarded transport: got %q, %v", msg.Frames, err)
 	}
 }

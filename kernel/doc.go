@@ -1,0 +1,48 @@
+// Package kernel speaks the Jupyter messaging protocol (version 5.3) over ZeroMQ
+// and runs cells through an Executor. It knows nothing of the pulse language:
+// main wires the language to the Executor interface, and tests use an
+// in-memory fake.
+//
+// Entry points: Run serves the sockets named by a connection file until a
+// shutdown (the `nutate kernel` command); Start binds and serves a
+// ConnectionInfo and returns a Server (tests, embedding).
+//
+// Behaviour, by channel:
+//   - shell: every request is bracketed by status busy and idle on iopub with
+//     the request's header as parent. execute_request publishes execute_input,
+//     then the cell's outputs (stream, display_data, update_display_data with
+//     transient.display_id), then error if it failed, and replies on shell
+//     (ok, error with ename/evalue/traceback, or aborted for cells queued behind
+//     a failure with stop_on_error). execution_count rises when silent is false
+//     and store_history is true. complete, inspect, is_complete, history and
+//     comm_info are answered; comm_open is closed politely; unknown types are
+//     logged. The first shell request waits (at most 500 ms) for an iopub
+//     subscriber so a starting client does not miss its busy/idle.
+//   - control, on its own goroutine: interrupt_request cancels the running
+//     cell's context (the cell still replies and goes idle; names survive),
+//     shutdown_request (also accepted on shell) replies, lets the cell stop,
+//     flushes pending messages and exits well inside 5 s, echoing restart;
+//     kernel_info_request.
+//   - heartbeat echoes; stdin accepts connections (the kernel never asks for
+//     input).
+//   - Run also treats SIGINT as an interrupt, SIGTERM as a shutdown, and shuts
+//     down when the process named by JPY_PARENT_PID dies.
+//
+// Messages are signed with HMAC (hmac-sha256 unless the connection file says
+// otherwise) over header, parent header, metadata and content, compared in
+// constant time; messages with bad, missing or replayed signatures and
+// malformed messages are dropped without stopping. An empty key means
+// unsigned.
+//
+// Transport: each socket is an endpoint built on zmq4's connection API
+// (zmq4.Open, SendMsg, RecvMsg) over GuardedTransport. Every peer has its own
+// reader, bounded send queue and writer, so a subscriber that stops reading
+// loses messages (after a 100 ms grace) without slowing anyone else. The
+// guarded transport accepts on its own goroutine and hands a connection over
+// only once its 10-byte ZMTP signature has arrived, bounds the handshake with
+// a deadline, refuses frames over 256 MiB (and messages over 256 MiB or 65536
+// frames) before anything is allocated, and bounds every write.
+//
+// NUTATE_KERNEL_DEBUG=1 logs every request, peer and execution time to
+// standard error.
+package kernel
