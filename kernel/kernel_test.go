@@ -326,7 +326,7 @@ func TestRequestReplies(t *testing.T) {
 		{"kernel_info_request", nil, "kernel_info_reply", map[string]any{
 			"status": "ok", "protocol_version": "5.3", "implementation": "nutate", "banner": "fake banner",
 			"language_info": map[string]any{"name": "fake", "version": "1", "mimetype": "text/x-fake",
-				"file_extension": ".fk", "pygments_lexer": "text"},
+				"file_extension": ".fk", "pygments_lexer": "text", "codemirror_mode": "text/x-fake"},
 			"help_links": []any{map[string]any{"text": "docs", "url": "https://example.org"}},
 		}},
 		// Cursor positions count unicode code points (protocol 5.2+): "µs pu" has
