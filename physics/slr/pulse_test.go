@@ -269,3 +269,42 @@ func TestErrors(t *testing.T) {
 		})
 	}
 }
+
+// Minimum-phase pulses end with their energy (shortest delay to the echo),
+// maximum-phase pulses start with it, linear-phase pulses are symmetric
+// (common practice).
+func TestDesignEnergyPosition(t *testing.T) {
+	g := proton(t)
+	for _, d := range []Design{Linear, Minimum, Maximum} {
+		t.Run(d.String(), func(t *testing.T) {
+			spec := NewSpec(shape.RoleExcite)
+			spec.TBW, spec.Design = 8, d
+			c := shape.NewCommon()
+			c.Duration, c.Flip = 4e-3, deg(90)
+			p, err := Pulse(spec, c, g)
+			if err != nil {
+				t.Fatal(err)
+			}
+			// Energy centroid as a fraction of the duration.
+			num, den := 0.0, 0.0
+			for j, b := range p.Wave.B1 {
+				e := real(b)*real(b) + imag(b)*imag(b)
+				num += e * (float64(j) + 0.5)
+				den += e
+			}
+			at := num / den / float64(p.Wave.Len())
+			switch d {
+			case Linear:
+				within(t, "energy centroid", at, 0.5, 1e-3)
+			case Minimum:
+				if !(at > 0.6) {
+					t.Errorf("energy centroid at %.3f of the pulse, want after 0.6", at)
+				}
+			case Maximum:
+				if !(at < 0.4) {
+					t.Errorf("energy centroid at %.3f of the pulse, want before 0.4", at)
+				}
+			}
+		})
+	}
+}
