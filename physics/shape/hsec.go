@@ -24,10 +24,10 @@ const (
 //	f(τ)  = −(bandwidth/2)·G(τ)/G(∞),  G(τ) = ∫₀^τ sech²(β·|s|ⁿ) ds
 //
 // so that the frequency sweep follows the square of the amplitude (Tannús &
-// Garwood, J. Magn. Reson. A 120:133, 1996). For n = 1, G(τ)/G(∞) = tanh(βτ): in
-// time, ω1 = ω1max·sech(βs·t) with βs = 2β/T s⁻¹ and sweep −μβs·tanh(βs·t), the
-// form of Silver, Joseph & Hoult (Phys. Rev. A 31:2753, 1985), whose bandwidth is
-// μβs/π. The bandwidth is thus the sweep range of the untruncated pulse. The
+// Garwood, J. Magn. Reson. A 120:133, 1996; from memory). For n = 1,
+// G(τ)/G(∞) = tanh(βτ): in time, ω1 = ω1max·sech(βs·t) with βs = 2β/T s⁻¹ and
+// sweep −μβs·tanh(βs·t), the form of Silver, Joseph & Hoult (Phys. Rev. A
+// 31:2753, 1985), whose bandwidth is μβs/π. The bandwidth is thus the sweep range of the untruncated pulse. The
 // frequency is integrated into the phase of B1 and recorded in Pulse.Freq.
 func Hsec(c Common, gamma float64, order int, bandwidth, beta float64) (*Pulse, error) {
 	const name = "hsec"

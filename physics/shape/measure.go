@@ -42,7 +42,7 @@ type Properties struct {
 	Duration float64 // s
 	Peak     float64 // T, largest |B1|
 	PeakHz   float64 // Hz, γ̄·Peak
-	Flip     float64 // rad, nominal on-resonance flip by design (γ∫B1 dt); NaN for adiabatic pulses and trains
+	Flip     float64 // rad, Pulse.Flip: nominal on-resonance flip γ∫B1 dt; BIR-4's rotation angle; NaN for adiabatic sweeps and trains
 	// Rotation (rad) is the simulated rotation angle at the pulse's centre
 	// frequency, 2·asin|β| (Pauly et al., IEEE TMI 10:53, 1991).
 	Rotation float64
