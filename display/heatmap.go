@@ -127,10 +127,12 @@ func (m Map) SVG() string {
 	zlo, zhi := m.zRange()
 	const bodyH = 300
 
+	xs, xnote := drawable(m.X.Values[:nx])
+	ys, ynote := drawable(m.Y.Values[:ny])
 	var legend []legendItem
 	var lines contourLines
 	if m.HasContour && nx > 0 && finite(m.Contour) {
-		lines = contour(m.X.Values[:nx], m.Y.Values[:ny], m.Z[:ny], m.Contour)
+		lines = contour(xs, ys, m.Z[:ny], m.Contour)
 	}
 	if m.HasContour {
 		name := fmt.Sprintf("%s = %s", orDefault(m.Quantity, "z"), minus(strings.TrimSpace(Num(m.Contour, 4)+" "+m.Unit)))
@@ -158,8 +160,8 @@ func (m Map) SVG() string {
 	full.Fill(full.Rectangle.Path())
 
 	p := newPlot()
-	p.X.Label.Text = axisLabel(orDefault(m.X.Label, "x"), m.X.Unit)
-	p.Y.Label.Text = axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit)
+	p.X.Label.Text = axisLabel(orDefault(m.X.Label, "x"), m.X.Unit) + xnote
+	p.Y.Label.Text = axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit) + ynote
 	if m.X.Reverse {
 		p.X.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
 	}
@@ -167,7 +169,7 @@ func (m Map) SVG() string {
 		p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
 	}
 	if nx > 0 {
-		r := &raster{x: m.X.Values[:nx], y: m.Y.Values[:ny], z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
+		r := &raster{x: xs, y: ys, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
 		p.Add(r)
 		if len(lines) > 0 {
 			p.Add(lines)
@@ -302,6 +304,27 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 	}
 	rect := vg.Rectangle{Min: vg.Point{X: min(x0, x1), Y: min(y0, y1)}, Max: vg.Point{X: max(x0, x1), Y: max(y0, y1)}}
 	c.DrawImage(rect, img)
+}
+
+// drawable returns the axis values to draw a map with: the values themselves when
+// they are finite and strictly monotonic, else the indices 0, 1, … with a note for
+// the axis label (cells cannot be placed by values out of order).
+func drawable(v []float64) ([]float64, string) {
+	ok := true
+	for i, x := range v {
+		if !finite(x) || i >= 2 && (x-v[i-1])*(v[1]-v[0]) <= 0 || i == 1 && x == v[0] {
+			ok = false
+			break
+		}
+	}
+	if ok {
+		return v, ""
+	}
+	idx := make([]float64, len(v))
+	for i := range idx {
+		idx[i] = float64(i)
+	}
+	return idx, " by index (values not monotonic)"
 }
 
 // cellEdges turns cell centres into cell edges: midpoints between neighbours and

@@ -211,6 +211,8 @@ func TestReverseAxis(t *testing.T) {
 	}
 }
 
+var badNumber = regexp.MustCompile(`[a-zA-Z]="[^"]*(NaN|Inf)[^"]*"|d="[^"]*(NaN|Inf)`)
+
 // Degenerate input never panics and still gives well-formed output.
 func TestDegenerateInput(t *testing.T) {
 	nan, inf := math.NaN(), math.Inf(1)
@@ -227,17 +229,24 @@ func TestDegenerateInput(t *testing.T) {
 		"empty map":            Map{}.Bundle,
 		"ragged map": Map{X: Axis{Values: x}, Y: Axis{Values: x[:3]},
 			Z: [][]float64{{1, 2}, {3}}, HasContour: true, Contour: 2}.Bundle,
-		"one cell map":   Map{X: Axis{Values: []float64{1}}, Y: Axis{Values: []float64{2}}, Z: [][]float64{{5}}, HasContour: true}.Bundle,
-		"all NaN map":    Map{X: Axis{Values: x[:2]}, Y: Axis{Values: x[:2]}, Z: [][]float64{{nan, nan}, {nan, nan}}, HasContour: true}.Bundle,
-		"descending map": Map{X: Axis{Values: []float64{3, 2, 0}}, Y: Axis{Values: []float64{5, 1}, Reverse: true}, Z: [][]float64{{1, 2, 3}, {4, 5, 6}}, ZMin: 9, ZMax: 1}.Bundle,
-		"empty waveform": func() Bundle { return Waveform{}.Bundle(Table{}) },
-		"no time":        func() Bundle { return Waveform{Amplitude: []float64{1, 2}}.Bundle(Table{}) },
-		"one sample":     func() Bundle { return Waveform{Time: []float64{1e-6}, Phase: []float64{90}}.Bundle(Table{}) },
+		"one cell map":                   Map{X: Axis{Values: []float64{1}}, Y: Axis{Values: []float64{2}}, Z: [][]float64{{5}}, HasContour: true}.Bundle,
+		"all NaN map":                    Map{X: Axis{Values: x[:2]}, Y: Axis{Values: x[:2]}, Z: [][]float64{{nan, nan}, {nan, nan}}, HasContour: true}.Bundle,
+		"descending map":                 Map{X: Axis{Values: []float64{3, 2, 0}}, Y: Axis{Values: []float64{5, 1}, Reverse: true}, Z: [][]float64{{1, 2, 3}, {4, 5, 6}}, ZMin: 9, ZMax: 1}.Bundle,
+		"NaN map axes":                   Map{X: Axis{Values: []float64{0, nan, 2}}, Y: Axis{Values: []float64{inf, 1}}, Z: [][]float64{{1, 2, 3}, {4, inf, 6}}, HasContour: true, Contour: 3}.Bundle,
+		"log map axis":                   Map{X: Axis{Values: []float64{-1, 0, 1}, Log: true}, Y: Axis{Values: []float64{1, 2}}, Z: [][]float64{{1, 2, 3}, {4, 5, 6}}}.Bundle,
+		"log profile without positive x": Profile{X: Axis{Values: []float64{-2, -1, 0}, Log: true}, Curves: []Curve{{Y: []float64{1, 2, 3}}}}.Bundle,
+		"empty waveform":                 func() Bundle { return Waveform{}.Bundle(Table{}) },
+		"no time":                        func() Bundle { return Waveform{Amplitude: []float64{1, 2}}.Bundle(Table{}) },
+		"one sample":                     func() Bundle { return Waveform{Time: []float64{1e-6}, Phase: []float64{90}}.Bundle(Table{}) },
 	}
 	for name, f := range cases {
 		t.Run(name, func(t *testing.T) {
 			b := f()
-			checkXML(t, render(t, b))
+			svg := render(t, b)
+			checkXML(t, svg)
+			if m := badNumber.FindString(svg); m != "" {
+				t.Errorf("svg has a non-finite coordinate: %s", m)
+			}
 			if s, _ := b["text/plain"].(string); strings.TrimSpace(s) == "" {
 				t.Errorf("empty text/plain")
 			}
