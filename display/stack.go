@@ -162,42 +162,80 @@ func isLog(n plot.Normalizer) bool {
 	return ok
 }
 
-// placedMark is a mark label with its x position and row above the top panel.
+// placedMark is a mark label: its left edge, row above the top panel and text.
 type placedMark struct {
-	x   vg.Length
-	row int
-	txt string
+	left vg.Length
+	row  int
+	txt  string
 }
 
-// placeMarks spreads mark labels over as few rows as keep them from overlapping:
-// left to right, each label takes the first row where it clears its neighbour.
+// placeMarks lays mark labels out above the top panel, left to right. A label is
+// centred on its line when it fits; when the next mark is too close for both to
+// be centred, the label goes to the left of its line and the next one to the
+// right of its own, so a pair of close marks (a band edge and a half-width) still
+// reads at a glance; only when no place is free on a row does a label move up a
+// row.
 func placeMarks(ms []Mark, trX func(float64) vg.Length, lo, hi float64, x0, x1 vg.Length) ([]placedMark, int) {
 	ts := textStyle(markSize)
-	var out []placedMark
+	type mk struct {
+		x   vg.Length
+		w   vg.Length
+		txt string
+	}
+	var in []mk
 	for _, m := range ms {
 		if m.Label == "" || !finite(m.X) || m.X < lo || m.X > hi {
 			continue
 		}
-		out = append(out, placedMark{x: trX(m.X), txt: m.Label})
+		in = append(in, mk{x: trX(m.X), w: ts.Width(m.Label), txt: m.Label})
 	}
-	sort.SliceStable(out, func(i, j int) bool { return out[i].x < out[j].x })
-	var rowEnd []vg.Length
-	for i := range out {
-		w := ts.Width(out[i].txt)
-		left := out[i].x - w/2
-		// Keep labels inside the figure.
-		left = max(min(left, x1-w), x0)
-		row := 0
-		for row < len(rowEnd) && left < rowEnd[row]+4 {
-			row++
+	sort.SliceStable(in, func(i, j int) bool { return in[i].x < in[j].x })
+	const gap, side = 4, 2
+	var rows [][][2]vg.Length // occupied spans per row
+	free := func(r int, a, b vg.Length) bool {
+		if a < x0 || b > x1 {
+			return false
 		}
-		if row == len(rowEnd) {
-			rowEnd = append(rowEnd, 0)
+		if r >= len(rows) {
+			return true
 		}
-		rowEnd[row] = left + w
-		out[i].row = row
+		for _, sp := range rows[r] {
+			if a < sp[1]+gap && b > sp[0]-gap {
+				return false
+			}
+		}
+		return true
 	}
-	return out, len(rowEnd)
+	var out []placedMark
+	for i, m := range in {
+		centre := max(min(m.x-m.w/2, x1-m.w), x0)
+		right, left := m.x+side, m.x-side-m.w
+		cands := []vg.Length{centre, right, left}
+		if i+1 < len(in) && in[i+1].x-m.x < (m.w+in[i+1].w)/2+gap {
+			cands = []vg.Length{left, centre, right}
+		}
+		for r := 0; ; r++ {
+			placed := false
+			for _, a := range cands {
+				if free(r, a, a+m.w) {
+					for len(rows) <= r {
+						rows = append(rows, nil)
+					}
+					rows[r] = append(rows[r], [2]vg.Length{a, a + m.w})
+					out = append(out, placedMark{left: a, row: r, txt: m.txt})
+					placed = true
+					break
+				}
+			}
+			if placed {
+				break
+			}
+			if r > len(in) { // wider than the figure: left out
+				break
+			}
+		}
+	}
+	return out, len(rows)
 }
 
 // svg renders the stack.
@@ -253,11 +291,9 @@ func (s stack) svg() string {
 		top := ps[0].DataCanvas(cs[0][0]).Max.Y
 		ms := textStyle(markSize)
 		ms.Color = markColor
-		ms.XAlign, ms.YAlign = draw.XCenter, draw.YBottom
+		ms.XAlign, ms.YAlign = draw.XLeft, draw.YBottom
 		for _, pm := range placed {
-			w := ms.Width(pm.txt)
-			cx := max(min(pm.x, figWidth-2-w/2), 2+w/2)
-			full.FillText(ms, vg.Point{X: cx, Y: top + 2 + vg.Length(pm.row)*markRow}, pm.txt)
+			full.FillText(ms, vg.Point{X: pm.left, Y: top + 2 + vg.Length(pm.row)*markRow}, pm.txt)
 		}
 	}
 	return finishSVG(c)
