@@ -23,7 +23,8 @@
 // font still fits the layout. There are no ids, timestamps or network references.
 // Lines are thinned to what half-point columns can show, heat maps are embedded
 // PNG images (at most one pixel per cell, averaged down beyond 640 per side), so
-// a 601-point overlay is about 50 kB and a 161 × 101 map about 30 kB. Pulses are
+// a 601-point two-pulse overlay of two quantities is about 50 kB and a 161 × 101
+// map about 33 kB, and sizes stay bounded as points or cells grow. Pulses are
 // told apart by colour-blind-safe colours and dash patterns; maps use this
 // package's own perceptually uniform colour scale (see palette.go).
 //

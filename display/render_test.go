@@ -284,3 +284,41 @@ func TestLogAxis(t *testing.T) {
 		t.Errorf("reversed log axis lost its mark")
 	}
 }
+
+func TestPlaceMarks(t *testing.T) {
+	tr := func(x float64) vg.Length { return vg.Length(x) } // 1 pt per unit
+	ts := textStyle(markSize)
+	t.Run("close pair side by side", func(t *testing.T) {
+		ms := []Mark{{X: 200, Label: "edge"}, {X: 204, Label: "half width"}}
+		got, rows := placeMarks(ms, tr, 0, 400, 0, 400)
+		if rows != 1 || len(got) != 2 {
+			t.Fatalf("got %d labels on %d rows, want 2 on 1", len(got), rows)
+		}
+		if e := got[0].left + ts.Width("edge"); e > 200 {
+			t.Errorf("first label ends at %v, want left of its line at 200", e)
+		}
+		if got[1].left < 204 {
+			t.Errorf("second label starts at %v, want right of its line at 204", got[1].left)
+		}
+	})
+	t.Run("never overlapping", func(t *testing.T) {
+		var ms []Mark
+		for i := range 12 {
+			ms = append(ms, Mark{X: 150 + 9*float64(i), Label: "mark " + strconv.Itoa(i)})
+		}
+		got, rows := placeMarks(ms, tr, 0, 400, 0, 400)
+		if len(got) != len(ms) || rows < 2 {
+			t.Fatalf("got %d labels on %d rows, want %d on several", len(got), rows, len(ms))
+		}
+		for i, a := range got {
+			if a.left < 0 || a.left+ts.Width(a.txt) > 400 {
+				t.Errorf("%q at %v runs outside the figure", a.txt, a.left)
+			}
+			for _, b := range got[i+1:] {
+				if a.row == b.row && a.left < b.left+ts.Width(b.txt) && b.left < a.left+ts.Width(a.txt) {
+					t.Errorf("%q and %q overlap on row %d", a.txt, b.txt, a.row)
+				}
+			}
+		}
+	})
+}
