@@ -29,7 +29,8 @@ import (
 // "FAIL why" and exit non-zero on failure.
 //
 // Without the Python packages the tests skip, unless CI=true, where they fail.
-// `go test -short` skips them (they take about half a minute).
+// `go test -short` skips them (they take about a minute). All run under
+// TestBinary, which builds the binary once.
 
 const python = "/usr/bin/python3"
 
@@ -39,11 +40,8 @@ type e2eEnv struct {
 	env                          []string
 }
 
-func setupE2E(t testing.TB) *e2eEnv {
+func setupE2E(t testing.TB, bin string) *e2eEnv {
 	t.Helper()
-	if testing.Short() {
-		t.Skip("end-to-end tests skipped in -short mode")
-	}
 	if out, err := exec.Command(python, "-c", "import jupyter_client, zmq, nbclient, nbformat").CombinedOutput(); err != nil {
 		if os.Getenv("CI") == "true" {
 			t.Fatalf("CI=true and the Jupyter Python clients are missing (%v): %s", err, out)
@@ -51,10 +49,7 @@ func setupE2E(t testing.TB) *e2eEnv {
 		t.Skipf("Jupyter Python clients not available (%v); install python3-jupyter-client python3-zmq python3-nbclient jupyter-nbconvert", err)
 	}
 	dir := t.TempDir()
-	e := &e2eEnv{bin: filepath.Join(dir, "nutate"), runtimeDir: filepath.Join(dir, "runtime")}
-	if out, err := exec.Command("go", "build", "-o", e.bin, ".").CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
-	}
+	e := &e2eEnv{bin: bin, runtimeDir: filepath.Join(dir, "runtime")}
 	prefix := filepath.Join(dir, "prefix")
 	out, err := exec.Command(e.bin, "install", "--prefix", prefix).CombinedOutput()
 	if err != nil {
@@ -116,8 +111,18 @@ func (e *e2eEnv) script(t *testing.T, name string, timeout time.Duration) map[st
 	return figures
 }
 
-func TestE2EJupyterClient(t *testing.T) {
-	e := setupE2E(t)
+// TestBinary builds the binary once and runs every test that needs it.
+func TestBinary(t *testing.T) {
+	bin := buildKernel(t)
+	t.Run("install", func(t *testing.T) { testInstallCommand(t, bin) })
+	t.Run("command_errors", func(t *testing.T) { testKernelCommandErrors(t, bin) })
+	t.Run("parent_death", func(t *testing.T) { testKernelExitsWhenParentDies(t, bin) })
+	t.Run("signals", func(t *testing.T) { testKernelSignals(t, bin) })
+	t.Run("jupyter", func(t *testing.T) { testJupyterClients(t, bin) })
+}
+
+func testJupyterClients(t *testing.T, bin string) {
+	e := setupE2E(t, bin)
 	t.Run("client", func(t *testing.T) { e.script(t, "client.py", 3*time.Minute) })
 	t.Run("adversarial", func(t *testing.T) { e.script(t, "adversarial.py", 5*time.Minute) })
 	t.Run("nbclient", func(t *testing.T) { e.script(t, "notebook.py", 3*time.Minute) })
@@ -184,7 +189,7 @@ func TestE2EJupyterClient(t *testing.T) {
 // drawing a 601-point profile, idle RSS and CPU. Run with
 // `go test -run '^$' -bench E2EKernel -benchtime 1x .`
 func BenchmarkE2EKernel(b *testing.B) {
-	e := setupE2E(b)
+	e := setupE2E(b, buildKernel(b))
 	for i := 0; i < b.N; i++ {
 		ctx, cancel := context.WithTimeout(context.Background(), 5*time.Minute)
 		cmd := exec.CommandContext(ctx, python, "bench.py")
@@ -208,11 +213,11 @@ func BenchmarkE2EKernel(b *testing.B) {
 // Process-level tests of the kernel command with a Go client: signals and the
 // death of the parent process. They need no Python.
 
-// buildKernel builds the binary once per test.
-func buildKernel(t *testing.T) string {
+// buildKernel builds the binary into a temporary directory.
+func buildKernel(t testing.TB) string {
 	t.Helper()
 	if testing.Short() {
-		t.Skip("process tests skipped in -short mode")
+		t.Skip("tests of the built binary skipped in -short mode")
 	}
 	bin := filepath.Join(t.TempDir(), "nutate")
 	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
@@ -350,8 +355,7 @@ func (k *procKernel) waitExit(within time.Duration) {
 	}
 }
 
-func TestKernelExitsWhenParentDies(t *testing.T) {
-	bin := buildKernel(t)
+func testKernelExitsWhenParentDies(t *testing.T, bin string) {
 	parent := exec.Command("true")
 	if err := parent.Run(); err != nil {
 		t.Skipf("cannot run a short-lived parent: %v", err)
@@ -361,8 +365,7 @@ func TestKernelExitsWhenParentDies(t *testing.T) {
 	k.waitExit(20 * time.Second)
 }
 
-func TestKernelSignals(t *testing.T) {
-	bin := buildKernel(t)
+func testKernelSignals(t *testing.T, bin string) {
 	k := startKernel(t, bin, "JPY_PARENT_PID="+strconv.Itoa(os.Getpid()))
 	iopub := k.dial(k.info.IOPubPort, zmq4.Sub)
 	iopub.SendMsg(zmq4.NewMsg([]byte{1}))
@@ -410,8 +413,7 @@ func TestKernelSignals(t *testing.T) {
 	k.waitExit(10 * time.Second)
 }
 
-func TestKernelCommandErrors(t *testing.T) {
-	bin := buildKernel(t)
+func testKernelCommandErrors(t *testing.T, bin string) {
 	tests := []struct {
 		args []string
 		code int
@@ -429,5 +431,76 @@ func TestKernelCommandErrors(t *testing.T) {
 		if !errors.As(err, &ee) || ee.ExitCode() != tc.code {
 			t.Errorf("nutate %v: got %v, want exit status %d", tc.args, err, tc.code)
 		}
+	}
+}
+
+func testInstallCommand(t *testing.T, bin string) {
+	dir := t.TempDir()
+	// Run through a symlink: the kernelspec must name the resolved binary.
+	link := filepath.Join(dir, "nutate-link")
+	if err := os.Symlink(bin, link); err != nil {
+		t.Skipf("symlinks unavailable: %v", err)
+	}
+	resolved, err := filepath.EvalSymlinks(bin)
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(env []string, args ...string) string {
+		t.Helper()
+		cmd := exec.Command(link, args...)
+		cmd.Env = append(os.Environ(), env...)
+		out, err := cmd.CombinedOutput()
+		if err != nil {
+			t.Fatalf("nutate %v: %v\n%s", args, err, out)
+		}
+		return string(out)
+	}
+	prefix := filepath.Join(dir, "prefix")
+	spec := filepath.Join(prefix, "share", "jupyter", "kernels", "nutate")
+	first := run(nil, "install", "--prefix", prefix)
+	if !strings.Contains(first, spec) {
+		t.Fatalf("install output %q does not name %s", first, spec)
+	}
+	kj, _ := os.ReadFile(filepath.Join(spec, "kernel.json"))
+	if second := run(nil, "install", "--prefix", prefix); second != first {
+		t.Fatalf("second install: got %q, want %q", second, first)
+	}
+	if kj2, _ := os.ReadFile(filepath.Join(spec, "kernel.json")); string(kj2) != string(kj) {
+		t.Fatalf("second install changed kernel.json")
+	}
+	var ks struct {
+		Argv          []string `json:"argv"`
+		InterruptMode string   `json:"interrupt_mode"`
+	}
+	if err := json.Unmarshal(kj, &ks); err != nil {
+		t.Fatal(err)
+	}
+	if len(ks.Argv) != 4 || ks.Argv[0] != resolved || ks.Argv[1] != "kernel" || ks.Argv[3] != "{connection_file}" || ks.InterruptMode != "message" {
+		t.Fatalf("kernel.json: got %+v, want argv[0] %s", ks, resolved)
+	}
+	for _, logo := range []string{"logo-32x32.png", "logo-64x64.png"} {
+		if _, err := os.Stat(filepath.Join(spec, logo)); err != nil {
+			t.Fatalf("%s: %v", logo, err)
+		}
+	}
+	if out := run(nil, "install", "--prefix", prefix, "--uninstall"); !strings.Contains(out, "removed") {
+		t.Fatalf("uninstall: got %q", out)
+	}
+	if _, err := os.Stat(spec); !os.IsNotExist(err) {
+		t.Fatalf("spec still present after uninstall: %v", err)
+	}
+	if out := run(nil, "install", "--prefix", prefix, "--uninstall"); !strings.Contains(out, "nothing to remove") {
+		t.Fatalf("second uninstall: got %q", out)
+	}
+	// The default (--user) honours JUPYTER_DATA_DIR; --sys-prefix honours VIRTUAL_ENV.
+	data := filepath.Join(dir, "data")
+	run([]string{"JUPYTER_DATA_DIR=" + data}, "install")
+	if _, err := os.Stat(filepath.Join(data, "kernels", "nutate", "kernel.json")); err != nil {
+		t.Fatalf("install (--user default): %v", err)
+	}
+	venv := filepath.Join(dir, "venv")
+	run([]string{"VIRTUAL_ENV=" + venv}, "install", "--sys-prefix")
+	if _, err := os.Stat(filepath.Join(venv, "share", "jupyter", "kernels", "nutate", "kernel.json")); err != nil {
+		t.Fatalf("install --sys-prefix: %v", err)
 	}
 }
