@@ -4,6 +4,7 @@ import (
 	"image/color"
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -321,4 +322,28 @@ func TestPlaceMarks(t *testing.T) {
 			}
 		}
 	})
+}
+
+func TestSteps(t *testing.T) {
+	tm := []float64{0.5, 1.5, 2.5}
+	y := []float64{1, 2, 3}
+	for _, tc := range []struct {
+		name         string
+		zero, hold   bool
+		wantX, wantY []float64
+	}{
+		{"held with zero ends", true, true, []float64{0, 0, 1, 1, 2, 2, 3, 3}, []float64{0, 1, 1, 2, 2, 3, 3, 0}},
+		{"held", false, true, []float64{0, 1, 1, 2, 2, 3}, []float64{1, 1, 2, 2, 3, 3}},
+		{"midpoints with zero ends", true, false, []float64{0, 0.5, 1.5, 2.5, 3}, []float64{0, 1, 2, 3, 0}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			x, v := steps(tm, y, tc.zero, tc.hold)
+			if !slices.Equal(x, tc.wantX) || !slices.Equal(v, tc.wantY) {
+				t.Errorf("got %v %v, want %v %v", x, v, tc.wantX, tc.wantY)
+			}
+		})
+	}
+	if x, v := steps([]float64{1e-4}, []float64{7}, true, true); !slices.Equal(x, []float64{0, 0, 2e-4, 2e-4}) || !slices.Equal(v, []float64{0, 7, 7, 0}) {
+		t.Errorf("lone sample: got %v %v, want it held from 0 to twice its midpoint", x, v)
+	}
 }

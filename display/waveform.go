@@ -93,7 +93,7 @@ func (w Waveform) SVG() string {
 				v, unit = scaled(v, 1e-3), "kHz"
 			}
 		}
-		sx, sy := steps(tx, v, ser.quantity == "amplitude" || ser.quantity == "gradient")
+		sx, sy := steps(tx, v, ser.quantity == "amplitude" || ser.quantity == "gradient", len(tx) <= maxHeld)
 		l := line{x: sx, y: sy, style: seriesStyle(0)}
 		pn := panel{label: axisLabel(ser.quantity, unit), lines: []line{l},
 			zero: ser.quantity == "amplitude" || ser.quantity == "gradient"}
@@ -109,12 +109,18 @@ func (w Waveform) SVG() string {
 	return s.svg()
 }
 
+// maxHeld is the most samples drawn as held steps; beyond it a sample is under a
+// point wide and a line through the midpoints shows the same without the
+// staircase.
+const maxHeld = 200
+
 // steps turns samples at midpoints t into the piecewise-constant waveform the
-// hardware plays: each value holds from halfway after the previous sample to
-// halfway before the next (the first and last sample as long as their
-// neighbours' spacing; a lone sample from 0 to twice its midpoint). With
-// zeroEnds the line drops to 0 before and after (RF and gradients are off).
-func steps(t, y []float64, zeroEnds bool) (sx, sy []float64) {
+// hardware plays when hold is set: each value holds from halfway after the
+// previous sample to halfway before the next (the first and last sample as long
+// as their neighbours' spacing; a lone sample from 0 to twice its midpoint).
+// Without hold the line runs through the midpoints. With zeroEnds the line drops
+// to 0 at the pulse's start and end (RF and gradients are off outside).
+func steps(t, y []float64, zeroEnds, hold bool) (sx, sy []float64) {
 	n := min(len(t), len(y))
 	if n == 0 {
 		return nil, nil
@@ -138,7 +144,11 @@ func steps(t, y []float64, zeroEnds bool) (sx, sy []float64) {
 		sx, sy = append(sx, b[0]), append(sy, 0)
 	}
 	for i := range n {
-		sx, sy = append(sx, b[i], b[i+1]), append(sy, y[i], y[i])
+		if hold {
+			sx, sy = append(sx, b[i], b[i+1]), append(sy, y[i], y[i])
+		} else {
+			sx, sy = append(sx, t[i]), append(sy, y[i])
+		}
 	}
 	if zeroEnds {
 		sx, sy = append(sx, b[n]), append(sy, 0)
