@@ -174,7 +174,7 @@ func (ev *evaluator) let(s *LetStmt) error {
 
 // checkRedefine refuses names that would hide a shape or a statement keyword.
 func (ev *evaluator) checkRedefine(id Ident, pulse bool) error {
-	if _, ok := lookupShape(id.Name); ok || id.Name == "train" {
+	if _, ok := lookupShape(id.Name); ok {
 		return errAt(id.P, "%s is a shape and cannot be redefined", quoteText(id.Name))
 	}
 	if _, ok := lookupUnit(id.Name); ok && !pulse {

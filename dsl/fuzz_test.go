@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 )
 
 // FuzzExec runs arbitrary cells through scanner, parser and evaluator: no panic
@@ -33,11 +34,11 @@ func FuzzExec(f *testing.F) {
 		if len(src) > 2000 {
 			return
 		}
-		ctx, cancel := context.WithCancel(context.Background())
+		// Keep each case fast: a deadline, and a stop at the first progress report.
+		ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
 		defer cancel()
 		dir := t.TempDir()
 		s := NewSession(dir)
-		// Keep each case fast: stop any statement that reports progress.
 		sink := Sink{Progress: func(string, int, int) { cancel() }}
 		err := s.Exec(ctx, src, sink)
 		if err == nil {
@@ -58,13 +59,15 @@ func FuzzExec(f *testing.F) {
 				t.Fatalf("error line %q, want %q", e.Line, lineOf(src, e.Pos.Offset))
 			}
 		}
-		if errors.Is(err, context.Canceled) {
+		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
 			return
 		}
 		// The state is what the statements before the failing one made.
 		ref := NewSession(t.TempDir())
 		if ce.Stmt > 0 {
-			if err := ref.Exec(context.Background(), src[:ce.Stmt], Sink{Progress: func(string, int, int) {}}); err != nil {
+			rctx, rcancel := context.WithTimeout(context.Background(), 2*time.Second)
+			defer rcancel()
+			if err := ref.Exec(rctx, src[:ce.Stmt], Sink{Progress: func(string, int, int) { rcancel() }}); err != nil {
 				return // the prefix alone may differ (e.g. a file the full cell wrote)
 			}
 		}

@@ -13,7 +13,7 @@ var statementHelp = []struct{ Name, Syntax, Help string }{
 	{"nucleus", "nucleus NUCLEUS", "set the working nucleus (default 1H): its signed γ scales amplitudes and sets the sense of rotation. Known: " + physics.NucleusNames()},
 	{"field", "field EXPR", "set the main field B0 (e.g. `field 7 T`); needed for ppm"},
 	{"let", "let NAME = EXPR", "name a quantity, e.g. `let te = 20 ms`; `nutate run --set NAME=VALUE` replaces the value"},
-	{"pulse", "pulse NAME = SHAPE(ARG = EXPR, ...)\npulse NAME = OTHER(ARG = EXPR, ...)", "define a pulse from a shape, or as a copy of pulse OTHER with some arguments changed; a redefined pulse replaces the old one"},
+	{"pulse", "pulse NAME = SHAPE(ARG = EXPR, ...)\npulse NAME = OTHER(ARG = EXPR, ...)", "define a pulse from a shape, or as a copy of pulse OTHER with some arguments changed (rebuilt for the current nucleus and field); a redefined pulse replaces the old one"},
 	{"describe", "describe NAME[, NAME...] [with tr = EXPR]", "plot each pulse's waveform (amplitude, phase, frequency, gradient) and list its properties: duration, samples, peak in µT and Hz, flip, bandwidth, TBW, transition, ripple, energy, slice"},
 	{"sweep", "sweep NAME[, NAME...] over AXIS[, AXIS] [show QUANTITY, ...] [with SETTING = EXPR, ...]\nAXIS: KIND FROM to TO (points N | step S)", "simulate the pulses over one axis (curves; several pulses overlay) or two (a map of one quantity, the first axis horizontal). Axes: offset, b1, position, t1, t2, or any argument of the pulse's shape (the pulse is rebuilt at each point)"},
 	{"print", "print EXPR[, EXPR...]", "show values; `EXPR in UNIT` converts (`1 kHz in uT` through the nucleus, `12 ppm in Hz` through the nucleus and field)"},
@@ -76,7 +76,6 @@ func Help(topic string) (string, error) {
 		for _, s := range shapes {
 			fmt.Fprintf(&b, "  %-6s %s\n", s.Name, s.Help)
 		}
-		fmt.Fprintf(&b, "  %-6s %s\n", "train", "pulses played back to back: train(P1, P2 at 90 deg, ..., gap = EXPR)")
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "arguments":
 		var b strings.Builder
@@ -192,14 +191,6 @@ func wordHelp(w string) (string, bool) {
 			parts = append(parts, fmt.Sprintf("%s (statement)\n  %s\n  %s", w, strings.ReplaceAll(s.Syntax, "\n", "\n  "), s.Help))
 		}
 	}
-	if w == "train" {
-		var b strings.Builder
-		b.WriteString("train (shape)\n  train(P1, P2 at PHASE, ..., gap = EXPR)\n  pulses played back to back; each element is a pulse name or a shape call, optionally followed by `at PHASE`\n  arguments:\n")
-		for _, a := range trainArgs {
-			b.WriteString("    " + argLine(a) + "\n")
-		}
-		parts = append(parts, strings.TrimRight(b.String(), "\n"))
-	}
 	if s, ok := lookupShape(w); ok {
 		parts = append(parts, shapeHelp(s))
 	}
@@ -218,11 +209,6 @@ func wordHelp(w string) (string, bool) {
 	for _, a := range commonArgs {
 		if a.Name == w {
 			parts = append(parts, "argument of every shape\n  "+argLine(a))
-		}
-	}
-	for _, a := range trainArgs {
-		if a.Name == w && w == "gap" {
-			parts = append(parts, "argument of train\n  "+argLine(a))
 		}
 	}
 	if argText != "" {
@@ -314,6 +300,13 @@ func baseUnit(d Dim) string {
 
 func shapeHelp(s *shapeSpec) string {
 	var b strings.Builder
+	if s.Composite {
+		fmt.Fprintf(&b, "%s (shape)\n  pulse NAME = %s(P1, P2 at PHASE, ..., gap = EXPR)\n  %s\n  method: %s\n  arguments:\n", s.Name, s.Name, s.Help, s.Method)
+		for _, a := range s.Args {
+			b.WriteString("    " + argLine(a) + "\n")
+		}
+		return strings.TrimRight(b.String(), "\n")
+	}
 	fmt.Fprintf(&b, "%s (shape)\n  pulse NAME = %s(", s.Name, s.Name)
 	var req []string
 	for _, a := range s.allArgs() {
@@ -342,7 +335,7 @@ func argNamesOf(list []argSpec) []string {
 // helpWords lists every word with help, for suggestions and completion.
 func helpWords() []string {
 	set := map[string]bool{}
-	for _, w := range []string{"statements", "shapes", "arguments", "quantities", "settings", "axes", "units", "nuclei", "conventions", "files", "errors", "train"} {
+	for _, w := range []string{"statements", "shapes", "arguments", "quantities", "settings", "axes", "units", "nuclei", "conventions", "files", "errors"} {
 		set[w] = true
 	}
 	for _, s := range statementHelp {

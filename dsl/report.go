@@ -2,6 +2,7 @@ package dsl
 
 import (
 	"fmt"
+	"html"
 	"math"
 	"strings"
 
@@ -80,8 +81,10 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		md := markdownTable(t)
 		ev.emit(display.Bundle{"text/markdown": md, "text/plain": md})
 	default:
+		// The LaTeX source is meant to be copied into a manuscript: it travels
+		// as text (a notebook's math renderer cannot typeset a tabular).
 		tex := latexTable(t)
-		ev.emit(display.Bundle{"text/latex": tex, "text/plain": tex})
+		ev.emit(display.Bundle{"text/plain": tex, "text/html": "<pre>" + html.EscapeString(tex) + "</pre>"})
 	}
 	return nil
 }

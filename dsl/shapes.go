@@ -40,6 +40,9 @@ type shapeSpec struct {
 	Method string // the source of the method
 	Args   []argSpec
 	Build  func(b *builder) (*shape.Pulse, error)
+	// Composite rows (train) take elements as well as Args, and none of the
+	// common arguments; they are built by the evaluator's train.
+	Composite bool
 }
 
 // commonArgs are taken by every shape (LANGUAGE.md "Shapes").
@@ -160,6 +163,13 @@ var shapes = []*shapeSpec{
 			return shape.Bir4(b.common(), b.gamma, b.num("bandwidth", 0), b.num("lambda", 0), b.num("kappa", 0))
 		},
 	},
+	{
+		Name:      "train",
+		Help:      "pulses played back to back: train(P1, P2 at 90 deg, ..., gap = EXPR); each element is a pulse name or a shape call",
+		Method:    "concatenation of the elements' samples, each rotated by its phase",
+		Args:      trainArgs,
+		Composite: true,
+	},
 }
 
 // lookupShape finds a shape row.
@@ -177,13 +187,16 @@ func shapeNames() []string {
 	for _, s := range shapes {
 		out = append(out, s.Name)
 	}
-	return append(out, "train")
+	return out
 }
 
 // allArgs lists the shape's own arguments then the common ones.
 // A shape's own argument of a common name (bir4's flip) replaces the common one.
 func (s *shapeSpec) allArgs() []argSpec {
 	out := append([]argSpec{}, s.Args...)
+	if s.Composite {
+		return out
+	}
 	for _, a := range commonArgs {
 		own := false
 		for _, b := range s.Args {
