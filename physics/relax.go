@@ -100,7 +100,7 @@ var invFact1 = func() (v [maxTerms + 1]float64) {
 
 // seriesHorner sets v = Σₖ cₖ·Cᵏ·(1, 0, 0) for k = 0…terms, cₖ = 1/(k+1)!, by
 // Horner's rule v ← C·v + cₖ·(1, 0, 0) with C·(e0, e1, e2) = (−q3·e2, e0 − q2·e2,
-// e1 − q1·e2). It takes the negated coefficients nq = −q. Four spins are summed
+// e1 − q1·e2). It takes the negated coefficients nq = −q. Three spins are summed
 // together so that their dependency chains overlap; plain multiply and add keep
 // the twelve running values in registers.
 func seriesHorner(terms int, q1, q2, q3, v0, v1, v2 []float64) {
@@ -108,23 +108,20 @@ func seriesHorner(terms int, q1, q2, q3, v0, v1, v2 []float64) {
 	q2, q3, v0, v1, v2 = q2[:n], q3[:n], v0[:n], v1[:n], v2[:n]
 	cK := invFact1[terms&maxTerms]
 	i := 0
-	for ; i+4 <= n; i += 4 {
-		qa, qb, qc := q1[i:i+4:i+4], q2[i:i+4:i+4], q3[i:i+4:i+4]
+	for ; i+3 <= n; i += 3 {
+		qa, qb, qc := q1[i:i+3:i+3], q2[i:i+3:i+3], q3[i:i+3:i+3]
 		a0, a1, a2 := cK, 0.0, 0.0
 		b0, b1, b2 := cK, 0.0, 0.0
 		c0, c1, c2 := cK, 0.0, 0.0
-		d0, d1, d2 := cK, 0.0, 0.0
 		for k := terms - 1; k >= 0; k-- {
 			ck := invFact1[k&maxTerms]
 			a0, a1, a2 = ck+qc[0]*a2, a0+qb[0]*a2, a1+qa[0]*a2
 			b0, b1, b2 = ck+qc[1]*b2, b0+qb[1]*b2, b1+qa[1]*b2
 			c0, c1, c2 = ck+qc[2]*c2, c0+qb[2]*c2, c1+qa[2]*c2
-			d0, d1, d2 = ck+qc[3]*d2, d0+qb[3]*d2, d1+qa[3]*d2
 		}
 		v0[i], v1[i], v2[i] = a0, a1, a2
 		v0[i+1], v1[i+1], v2[i+1] = b0, b1, b2
 		v0[i+2], v1[i+2], v2[i+2] = c0, c1, c2
-		v0[i+3], v1[i+3], v2[i+3] = d0, d1, d2
 	}
 	for ; i < n; i++ {
 		e0, e1, e2 := cK, 0.0, 0.0
