@@ -66,10 +66,14 @@ type Signer struct {
 	newHash func() hash.Hash
 
 	mu   sync.Mutex
-	seen map[string]struct{}
-	ring []string // the seen signatures in arrival order, to forget the oldest
+	seen map[macKey]struct{}
+	ring []macKey // the seen signatures in arrival order, to forget the oldest
 	next int
 }
+
+// macKey holds the first 32 bytes of a MAC: plenty to tell messages apart,
+// and a fixed size keeps the replay memory small (about 3 MB when full).
+type macKey [32]byte
 
 // replayMemory is how many recent signatures are remembered to refuse replays.
 const replayMemory = 1 << 16
@@ -77,7 +81,7 @@ const replayMemory = 1 << 16
 // NewSigner returns a Signer for key and scheme ("hmac-sha256" is what Jupyter
 // uses; "" means hmac-sha256).
 func NewSigner(key, scheme string) (*Signer, error) {
-	s := &Signer{key: []byte(key), seen: make(map[string]struct{})}
+	s := &Signer{key: []byte(key), seen: make(map[macKey]struct{})}
 	switch scheme {
 	case "", "hmac-sha256":
 		s.newHash = sha256.New
@@ -140,7 +144,9 @@ func (s *Signer) Decode(frames [][]byte) (Message, error) {
 		if !hmac.Equal(got, s.mac(header, parent, meta, content)) {
 			return m, ErrSignature
 		}
-		if !s.remember(string(got)) {
+		var k macKey
+		copy(k[:], got)
+		if !s.remember(k) {
 			return m, ErrReplay
 		}
 	}
@@ -160,7 +166,7 @@ func (s *Signer) Decode(frames [][]byte) (Message, error) {
 }
 
 // remember records sig and reports whether it was new.
-func (s *Signer) remember(sig string) bool {
+func (s *Signer) remember(sig macKey) bool {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	if _, dup := s.seen[sig]; dup {

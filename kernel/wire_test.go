@@ -114,17 +114,22 @@ func TestReplayRefused(t *testing.T) {
 
 func TestReplayMemoryIsBounded(t *testing.T) {
 	s, _ := NewSigner("k", "")
+	key := func(i int) macKey {
+		var k macKey
+		copy(k[:], strconv.Itoa(i))
+		return k
+	}
 	for i := 0; i < replayMemory+10; i++ {
-		s.remember(strconv.Itoa(i))
+		s.remember(key(i))
 	}
 	if len(s.seen) != replayMemory {
 		t.Fatalf("remembered: got %d, want %d", len(s.seen), replayMemory)
 	}
 	// The oldest were forgotten, the newest are refused.
-	if !s.remember(strconv.Itoa(0)) {
+	if !s.remember(key(0)) {
 		t.Fatalf("oldest signature still remembered")
 	}
-	if s.remember(strconv.Itoa(replayMemory + 9)) {
+	if s.remember(key(replayMemory + 9)) {
 		t.Fatalf("newest signature forgotten")
 	}
 }
