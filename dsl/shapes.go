@@ -74,6 +74,7 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "zeros", Help: "time-bandwidth product (= number of zero crossings)"},
 			{Name: "lobes", Kind: argCount, Group: "zeros", Help: "number of lobes, main lobe included (tbw = lobes + 1, common practice)"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "zeros", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
 			{Name: "window", Kind: argWord, Words: shape.WindowNames(), Default: "none", Help: "taper: Hann 0.5 + 0.5·cos(2πt/T) or Hamming 0.54 + 0.46·cos(2πt/T)"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
@@ -81,7 +82,7 @@ var shapes = []*shapeSpec{
 			if l, ok := b.vals["lobes"]; ok {
 				return shape.SincLobes(b.common(), b.gamma, int(l), w)
 			}
-			return shape.Sinc(b.common(), b.gamma, b.num("tbw", 4), w)
+			return shape.Sinc(b.common(), b.gamma, b.tbw(4), w)
 		},
 	},
 	{
@@ -91,9 +92,10 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "cutoff 1.1 % (T = 6σ)", Group: "width", Help: "time-bandwidth product (small-tip FWHM × duration)"},
 			{Name: "cutoff", Dim: dimNumber, Group: "width", Help: "relative amplitude at the ends, 0 to 1 (fraction or %)"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
-			tbw, cut := b.num("tbw", 0), b.num("cutoff", 0)
+			tbw, cut := b.tbw(0), b.num("cutoff", 0)
 			if tbw == 0 && cut == 0 {
 				cut = math.Exp(-4.5) // T = 6σ (common practice)
 			}
@@ -105,7 +107,8 @@ var shapes = []*shapeSpec{
 		Help:   "Shinnar–Le Roux design for a role, with pass and stop ripples",
 		Method: "Shinnar–Le Roux (Pauly et al., IEEE TMI 10:53, 1991); filter length from D∞ (Herrmann, Rabiner & Chan 1973)",
 		Args: []argSpec{
-			{Name: "tbw", Dim: dimNumber, Default: "4", Help: "time-bandwidth product"},
+			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "width", Help: "time-bandwidth product"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
 			{Name: "pass", Dim: dimNumber, Default: "1%", Help: "pass-band ripple of the profile (fraction or %)"},
 			{Name: "stop", Dim: dimNumber, Default: "1%", Help: "stop-band ripple of the profile (fraction or %)"},
 			{Name: "design", Kind: argWord, Words: slr.DesignNames(), Default: "linear", Help: "phase of the underlying filter"},
@@ -259,6 +262,14 @@ func (b *builder) num(name string, def float64) float64 {
 		return v
 	}
 	return def
+}
+
+// tbw is the time-bandwidth product given as tbw, or as bandwidth × duration.
+func (b *builder) tbw(def float64) float64 {
+	if bw, ok := b.vals["bandwidth"]; ok {
+		return bw * b.num("duration", math.NaN())
+	}
+	return b.num("tbw", def)
 }
 
 func (b *builder) word(name, def string) string {

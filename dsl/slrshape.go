@@ -15,8 +15,11 @@ func buildSLR(b *builder) (*shape.Pulse, error) {
 		return nil, errors.New("slr needs role (excite, invert, refocus or saturate)")
 	}
 	spec := slr.NewSpec(c.Role)
-	if v, ok := b.vals["tbw"]; ok {
-		spec.TBW = v
+	if _, ok := b.vals["tbw"]; ok {
+		spec.TBW = b.tbw(4)
+	}
+	if _, ok := b.vals["bandwidth"]; ok {
+		spec.TBW = b.tbw(4)
 	}
 	if v, ok := b.vals["pass"]; ok {
 		spec.PassRipple = v

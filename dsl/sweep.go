@@ -98,6 +98,9 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 			ok = from.Q.D == dimLength
 		case "t1", "t2":
 			ok = from.Q.D == dimTime
+			if ok && !(from.Q.V > 0 && to.Q.V > 0) {
+				return nil, errAt(ax.From.Position(), "%s axis must stay above 0 s, got %s to %s", a.kind, from, to)
+			}
 		}
 		if !ok {
 			want := map[string]string{"offset": "a frequency (Hz or ppm)", "b1": "a factor, a percent or a peak B1 (T units or Hz)", "position": "a length", "t1": "a time", "t2": "a time"}[a.kind]
