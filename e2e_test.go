@@ -118,6 +118,7 @@ func TestBinary(t *testing.T) {
 	t.Run("command_errors", func(t *testing.T) { testKernelCommandErrors(t, bin) })
 	t.Run("parent_death", func(t *testing.T) { testKernelExitsWhenParentDies(t, bin) })
 	t.Run("signals", func(t *testing.T) { testKernelSignals(t, bin) })
+	t.Run("shutdown_during_cell", func(t *testing.T) { testShutdownDuringCell(t, bin) })
 	t.Run("jupyter", func(t *testing.T) { testJupyterClients(t, bin) })
 }
 
@@ -388,13 +389,7 @@ func testKernelSignals(t *testing.T, bin string) {
 	if _, c, _ := k.recv(shell); c["status"] != "ok" {
 		t.Skipf("the language cannot define the long cell's pulse yet: %v", c["evalue"])
 	}
-	k.send(shell, "execute_request", "long", map[string]any{"code": "sweep p over offset -20 kHz to 20 kHz points 1000, b1 0.5 to 1.5 points 1000"})
-	for {
-		m, _, parent := k.recv(iopub)
-		if parent == "long" && m.Header.MsgType == "execute_input" {
-			break
-		}
-	}
+	k.longCell(shell, iopub, "long")
 	if err := k.cmd.Process.Signal(os.Interrupt); err != nil {
 		t.Fatal(err)
 	}
@@ -406,11 +401,48 @@ func testKernelSignals(t *testing.T, bin string) {
 		t.Fatalf("after SIGINT: got %v", c)
 	}
 
-	// SIGTERM: a clean exit.
+	// SIGTERM during a long cell: the cell is cancelled and the kernel exits
+	// cleanly well inside the 5 s a client waits before killing it.
+	k.longCell(shell, iopub, "long2")
 	if err := k.cmd.Process.Signal(syscall.SIGTERM); err != nil {
 		t.Fatal(err)
 	}
-	k.waitExit(10 * time.Second)
+	k.waitExit(5 * time.Second)
+}
+
+// longCell starts a cell that runs for many seconds and waits until it runs.
+func (k *procKernel) longCell(shell, iopub *zmq4.Conn, id string) {
+	k.t.Helper()
+	k.send(shell, "execute_request", id, map[string]any{"code": "sweep p over offset -20 kHz to 20 kHz points 1000, b1 0.5 to 1.5 points 1000"})
+	for {
+		m, _, parent := k.recv(iopub)
+		if parent == id && m.Header.MsgType == "execute_input" {
+			return
+		}
+	}
+}
+
+func testShutdownDuringCell(t *testing.T, bin string) {
+	k := startKernel(t, bin, "JPY_PARENT_PID="+strconv.Itoa(os.Getpid()))
+	iopub := k.dial(k.info.IOPubPort, zmq4.Sub)
+	iopub.SendMsg(zmq4.NewMsg([]byte{1}))
+	shell := k.dial(k.info.ShellPort, zmq4.Dealer)
+	control := k.dial(k.info.ControlPort, zmq4.Dealer)
+	k.send(shell, "execute_request", "p", map[string]any{"code": "pulse p = sinc(duration = 4 ms, tbw = 8, flip = 90 deg, samples = 4000)"})
+	if _, c, _ := k.recv(shell); c["status"] != "ok" {
+		t.Skipf("the language cannot define the long cell's pulse yet: %v", c["evalue"])
+	}
+	k.longCell(shell, iopub, "long")
+	start := time.Now()
+	k.send(control, "shutdown_request", "bye", map[string]any{"restart": true})
+	if m, c, _ := k.recv(control); m.Header.MsgType != "shutdown_reply" || c["restart"] != true {
+		t.Fatalf("shutdown during a cell: got %s %v", m.Header.MsgType, c)
+	}
+	if _, c, parent := k.recv(shell); parent != "long" || c["ename"] != "Interrupted" {
+		t.Fatalf("the running cell: got %v to %s, want an Interrupted error reply", c, parent)
+	}
+	k.waitExit(5 * time.Second)
+	t.Logf("shutdown during a cell: exited %v after the request", time.Since(start).Round(time.Millisecond))
 }
 
 func testKernelCommandErrors(t *testing.T, bin string) {
