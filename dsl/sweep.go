@@ -17,8 +17,9 @@ const (
 	maxAxisPoints  = 100_000
 	maxMapCells    = 1_000_000
 	maxSweepBuilds = 10_000
-	progressSteps  = 1e7  // sweeps longer than this report progress
-	measureCost    = 2000 // isochromat-steps per sample for measured properties (estimate)
+	maxKeptSamples = 4_000_000 // samples of rebuilt pulses kept between planning and running
+	progressSteps  = 1e7       // sweeps longer than this report progress
+	measureCost    = 2000      // isochromat-steps per sample for measured properties (estimate)
 )
 
 // spinAxes are the axes that vary the spins rather than the pulse.
@@ -338,11 +339,13 @@ func axisPos(axes []*sweepAxis, names ...string) Pos {
 
 // sweepRun is one built pulse and the cells of the sweep it fills.
 type sweepRun struct {
-	def   *pulseDef
-	pi    int          // index of the pulse
-	p     *shape.Pulse // built for this point of the shape axes
-	fixed map[int]int  // axis index → point index fixed by this build
-	spins int          // isochromats simulated
+	def     *pulseDef
+	pi      int               // index of the pulse
+	p       *shape.Pulse      // built for this point of the shape axes; nil: rebuild when run
+	args    map[string]argVal // the arguments of a rebuilt pulse
+	fixed   map[int]int       // axis index → point index fixed by this build
+	spins   int               // isochromats simulated
+	callPos Pos               // where build errors point
 }
 
 // planSweep builds every pulse the sweep needs (one per point of the shape axes)
@@ -378,7 +381,7 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 		return nil, 0, errAt(axes[shapeIdx[0]].pos, "sweep rebuilds the pulse %d times, over the limit of %d", builds*len(defs), maxSweepBuilds)
 	}
 	var runs []*sweepRun
-	total := 0.0
+	total, kept := 0.0, 0
 	for pi, d := range defs {
 		for b := 0; b < builds; b++ {
 			if err := ev.checkCtx(); err != nil {
@@ -395,7 +398,9 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 					r.fixed[ai] = idx
 					changes[axes[ai].kind] = argVal{Pos: axes[ai].pos, Val: axes[ai].value(idx)}
 				}
-				p, err := ev.build(d.Spec, mergeArgs(d.Spec, d.Args, changes), axes[shapeIdx[0]].pos)
+				r.args = mergeArgs(d.Spec, d.Args, changes)
+				r.callPos = axes[shapeIdx[0]].pos
+				p, err := ev.build(d.Spec, r.args, r.callPos)
 				if err != nil {
 					var pe *posError
 					msg := err.Error()
@@ -419,6 +424,12 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 			}
 			if total > physics.DefaultMaxSteps {
 				return nil, 0, errAt(axes[0].pos, "sweep needs more than %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+			}
+			if r.args != nil {
+				// Keep rebuilt pulses while they are small; rebuild the rest when run.
+				if kept += r.p.Wave.Len(); kept > maxKeptSamples {
+					r.p = nil
+				}
 			}
 			runs = append(runs, r)
 		}
@@ -499,6 +510,14 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 
 // runOne fills the cells of one build.
 func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, n1 int, curves []*curveData, prog *progress) error {
+	if r.p == nil {
+		p, err := ev.build(r.def.Spec, r.args, r.callPos)
+		if err != nil {
+			return err
+		}
+		r.p = p
+		defer func() { r.p = nil }()
+	}
 	p := r.p
 	gb := gammaBarOf(p)
 	var spinAx []int
