@@ -62,6 +62,8 @@ func TestConversionsCheckValues(t *testing.T) {
 		{"arithmetic", "", "(1 ms + 500 us) * 2 in us", 3e-3, 1e-12, "definition"},
 		{"product", "", "1 kHz * 1 ms", 1, 1e-12, "definition"},
 		{"gradient from field over length", "", "10 mT / 1 m in mT/m", 10e-3, 1e-12, "definition"},
+		{"bare unit", "", "10 mT / m", 10e-3, 1e-12, "definition"},
+		{"reciprocal", "", "1 / ms in kHz", 1e3, 1e-12, "definition"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -51,6 +51,10 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 	case *Ident:
 		b, ok := ev.st.names[x.Name]
 		if !ok {
+			// A bare unit is one of it (`10 mT / m`); names never shadow units.
+			if u, isUnit := lookupUnit(x.Name); isUnit {
+				return Value{Q: Quantity{u.Factor, u.Dim}, Unit: u.Name}, nil
+			}
 			return Value{}, errAt(x.P, "unknown name %s%s", quoteText(x.Name), suggest(x.Name, ev.st.nameList()))
 		}
 		if b.pulse != nil {
