@@ -172,3 +172,18 @@ func TestGuardedTransportWithZmq4Sockets(t *testing.T) {
 		t.Fatalf("echo through the guarded transport: got %q, %v", msg.Frames, err)
 	}
 }
+
+// FuzzFrameGuard feeds arbitrary streams: the guard never panics, and it only
+// ever refuses a stream for an oversized frame or message.
+func FuzzFrameGuard(f *testing.F) {
+	greeting := make([]byte, zmtpGreeting)
+	greeting[0], greeting[9] = 0xff, 0x7f
+	f.Add(append(greeting, zmtpFrame(0x04, []byte("\x05READY"))...))
+	f.Add(append(greeting, 0x02, 0, 0, 1, 0, 0, 0, 0, 0))
+	f.Fuzz(func(t *testing.T, b []byte) {
+		g := frameGuard{greeting: zmtpGreeting}
+		if err := g.feed(b); err != nil && !errors.Is(err, ErrFrameTooLarge) && !errors.Is(err, ErrMessageTooLarge) {
+			t.Fatalf("unexpected error %v", err)
+		}
+	})
+}
