@@ -4,7 +4,9 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"sync"
 	"testing"
+	"time"
 )
 
 // hsWaveform is the hyperbolic secant pulse of Silver, Joseph & Hoult (Phys. Rev. A
@@ -87,4 +89,34 @@ func fill(n int, v float64) []float64 {
 		s[i] = v
 	}
 	return s
+}
+
+// BenchmarkCancelLatency measures the time from cancel() to Simulate's return on
+// the reference workload, with and without relaxation, cancelling from the first
+// progress report; the contract is 50 ms. Reported as the worst seen.
+func BenchmarkCancelLatency(b *testing.B) {
+	w := hsWaveform(10e-3, 2048, 4000, 5.3, 800)
+	for _, relax := range []bool{false, true} {
+		b.Run(fmt.Sprintf("relax=%v", relax), func(b *testing.B) {
+			iso := Grid(linspace(-6000, 6000, 256), linspace(0.5, 1.5, 256), nil, nil, nil)
+			if relax {
+				iso.T1 = fill(iso.Len(), 1)
+				iso.T2 = fill(iso.Len(), 0.1)
+			}
+			worst := time.Duration(0)
+			for b.Loop() {
+				ctx, cancel := context.WithCancel(context.Background())
+				var once sync.Once
+				var at time.Time
+				opt := Options{Progress: func(done, total int) {
+					once.Do(func() { at = time.Now(); cancel() })
+				}}
+				if _, err := Simulate(ctx, w, 1, &iso, opt); err == nil {
+					b.Fatal("not cancelled")
+				}
+				worst = max(worst, time.Since(at))
+			}
+			b.ReportMetric(float64(worst.Microseconds())/1000, "ms-worst-latency")
+		})
+	}
 }

@@ -190,39 +190,48 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 	nblocks := (n + blockSpins - 1) / blockSpins
 	workers = min(workers, nblocks)
 
-	var stop atomic.Bool
-	defer context.AfterFunc(ctx, func() { stop.Store(true) })()
-	var next, done atomic.Int64
+	// The workers poll ctx.Done() themselves: a goroutine started on cancellation
+	// would wait for a busy worker to be preempted (milliseconds or more).
+	done := ctx.Done()
+	var next, finished atomic.Int64
 	var wg sync.WaitGroup
 	for range workers {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			var b block
-			for !stop.Load() {
+			for !cancelled(done) {
 				k := int(next.Add(1)) - 1
 				if k >= nblocks {
 					return
 				}
 				lo := k * blockSpins
 				hi := min(n, lo+blockSpins)
-				if !b.run(st, iso, lo, hi, start, &stop) {
+				if !b.run(st, iso, lo, hi, start, done) {
 					return
 				}
 				b.store(res, lo, hi, relax)
 				if opt.Progress != nil {
-					opt.Progress(int(done.Add(int64(hi-lo))), n)
+					opt.Progress(int(finished.Add(int64(hi-lo))), n)
 				}
 			}
 		}()
 	}
 	wg.Wait()
-	if stop.Load() {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
 	return res, nil
+}
+
+// cancelled polls a context's Done channel without blocking.
+func cancelled(done <-chan struct{}) bool {
+	select {
+	case <-done:
+		return true
+	default:
+		return false
+	}
 }
 
 // rate converts a relaxation time to a rate; 0 and +Inf mean no relaxation.
@@ -243,7 +252,7 @@ type block struct {
 }
 
 // run propagates spins [lo, hi) through every step; it returns false when stopped.
-func (b *block) run(st *steps, iso *Isochromats, lo, hi int, start [3]float64, stop *atomic.Bool) bool {
+func (b *block) run(st *steps, iso *Isochromats, lo, hi int, start [3]float64, done <-chan struct{}) bool {
 	m := hi - lo
 	blockRelax := false
 	for i := range m {
@@ -259,7 +268,7 @@ func (b *block) run(st *steps, iso *Isochromats, lo, hi int, start [3]float64, s
 		b.mx[i], b.my[i], b.mz[i] = start[0], start[1], start[2]
 	}
 	for j0 := 0; j0 < st.n; j0 += stepChunk {
-		if stop.Load() {
+		if cancelled(done) {
 			return false
 		}
 		j1 := min(st.n, j0+stepChunk)
