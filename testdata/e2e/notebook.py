@@ -2,12 +2,11 @@
 and check every code cell ran without error and the sweep drew an SVG."""
 
 import os
-import sys
 
 import nbformat
 from nbclient import NotebookClient
 
-from e2elib import check, figure, ok
+from e2elib import check, ok
 
 here = os.path.dirname(os.path.abspath(__file__))
 nb = nbformat.read(os.path.join(here, "small.ipynb"), as_version=4)
