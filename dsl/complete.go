@@ -41,7 +41,7 @@ func (s *Session) Complete(code string, cursor int) ([]string, int, int) {
 	}
 	prefix := string(rs[start:min(max(cursor, start), len(rs))])
 	before := string(rs[:start])
-	cands := s.candidates(before, prefix)
+	cands := completer{s.state()}.candidates(before, prefix)
 	var out []string
 	seen := map[string]bool{}
 	for _, c := range cands {
@@ -67,7 +67,7 @@ func stmtTokens(before string) []token {
 	return toks
 }
 
-func (s *Session) candidates(before, prefix string) []string {
+func (c completer) candidates(before, prefix string) []string {
 	toks := stmtTokens(before)
 	// The word being completed may be glued to a number: `250u`.
 	if len(toks) > 0 && toks[len(toks)-1].Kind == tNumber && toks[len(toks)-1].End == len(before) && prefix != "" {
@@ -116,17 +116,17 @@ func (s *Session) candidates(before, prefix string) []string {
 	if open > 0 && toks[open-1].Kind == tIdent {
 		fn := toks[open-1].Text
 		if last.Kind == tLParen || last.Kind == tComma {
-			return s.callArgNames(fn)
+			return c.callArgNames(fn)
 		}
 		if last.Kind == tAssign && len(toks) >= 2 && toks[len(toks)-2].Kind == tIdent {
-			if words := s.argWords(fn, toks[len(toks)-2].Text); words != nil {
+			if words := c.argWords(fn, toks[len(toks)-2].Text); words != nil {
 				return words
 			}
 		}
-		return s.valueNames()
+		return c.valueNames()
 	}
 	if first == "pulse" && last.Kind == tAssign && len(toks) == 3 {
-		return append(shapeNames(), s.st.pulseNames()...)
+		return append(shapeNames(), c.st.pulseNames()...)
 	}
 	if first == "report" && last.Kind == tIdent && last.Text == "as" {
 		return []string{"markdown", "latex"}
@@ -142,7 +142,7 @@ func (s *Session) candidates(before, prefix string) []string {
 	if clause != "" && afterSep {
 		switch clause {
 		case "over":
-			return s.axisNames(toks)
+			return c.axisNames(toks)
 		case "show":
 			return quantityNames()
 		case "with":
@@ -159,7 +159,7 @@ func (s *Session) candidates(before, prefix string) []string {
 		return []string{"z", "-z", "x", "y"}
 	}
 	if contains([]string{"describe", "sweep", "report", "export"}, first) && (len(toks) == 1 || last.Kind == tComma && clause == "") {
-		return s.st.pulseNames()
+		return c.st.pulseNames()
 	}
 	if last.Kind == tIdent && (first == "sweep" || first == "describe") && clause == "" {
 		if first == "sweep" {
@@ -167,14 +167,17 @@ func (s *Session) candidates(before, prefix string) []string {
 		}
 		return []string{"with"}
 	}
-	return s.valueNames()
+	return c.valueNames()
 }
+
+// completer finds candidates against one committed state.
+type completer struct{ st *state }
 
 func nucleusNames() []string { return strings.Fields(physics.NucleusNames()) }
 
-func (s *Session) valueNames() []string {
+func (c completer) valueNames() []string {
 	var out []string
-	for n, b := range s.st.names {
+	for n, b := range c.st.names {
 		if b.pulse == nil {
 			out = append(out, n)
 		}
@@ -183,27 +186,27 @@ func (s *Session) valueNames() []string {
 }
 
 // specFor finds the shape row behind a call name: a shape or a pulse to copy.
-func (s *Session) specFor(fn string) *shapeSpec {
+func (c completer) specFor(fn string) *shapeSpec {
 	if sp, ok := lookupShape(fn); ok {
 		return sp
 	}
-	if b, ok := s.st.names[fn]; ok && b.pulse != nil {
+	if b, ok := c.st.names[fn]; ok && b.pulse != nil {
 		return b.pulse.Spec
 	}
 	return nil
 }
 
-func (s *Session) callArgNames(fn string) []string {
+func (c completer) callArgNames(fn string) []string {
 	if fn == "train" {
-		return append(append(argNamesOf(trainArgs), shapeNames()...), s.st.pulseNames()...)
+		return append(append(argNamesOf(trainArgs), shapeNames()...), c.st.pulseNames()...)
 	}
-	if sp := s.specFor(fn); sp != nil {
+	if sp := c.specFor(fn); sp != nil {
 		return sp.argNames()
 	}
 	return nil
 }
 
-func (s *Session) argWords(fn, arg string) []string {
+func (c completer) argWords(fn, arg string) []string {
 	if fn == "train" {
 		for _, a := range trainArgs {
 			if a.Name == arg {
@@ -212,7 +215,7 @@ func (s *Session) argWords(fn, arg string) []string {
 		}
 		return nil
 	}
-	if sp := s.specFor(fn); sp != nil {
+	if sp := c.specFor(fn); sp != nil {
 		if a, ok := sp.arg(arg); ok && a.Kind == argWord {
 			return a.Words
 		}
@@ -220,13 +223,13 @@ func (s *Session) argWords(fn, arg string) []string {
 	return nil
 }
 
-func (s *Session) axisNames(toks []token) []string {
+func (c completer) axisNames(toks []token) []string {
 	out := spinAxisNames()
 	for _, t := range toks[1:] {
 		if t.Kind == tIdent && t.Text == "over" {
 			break
 		}
-		if b, ok := s.st.names[t.Text]; ok && b.pulse != nil && b.pulse.Spec != nil {
+		if b, ok := c.st.names[t.Text]; ok && b.pulse != nil && b.pulse.Spec != nil {
 			for _, a := range b.pulse.Spec.allArgs() {
 				if a.Kind != argWord {
 					out = append(out, a.Name)
@@ -256,7 +259,7 @@ func (s *Session) Inspect(code string, cursor int) (string, bool) {
 		return "", false
 	}
 	var parts []string
-	if b, ok := s.st.names[w]; ok {
+	if b, ok := s.state().names[w]; ok {
 		if b.pulse != nil {
 			parts = append(parts, pulseSummary(b.pulse))
 		} else {

@@ -23,6 +23,7 @@ import (
 	"runtime/debug"
 	"sort"
 	"strings"
+	"sync"
 
 	"nutate/display"
 )
@@ -38,6 +39,7 @@ type Sink struct {
 // cancellation may come from another goroutine through the context.
 type Session struct {
 	dir       string
+	mu        sync.Mutex // guards st (the pointer; a committed state is never changed)
 	st        *state
 	overrides map[string]override
 	used      map[string]bool
@@ -85,7 +87,7 @@ func cancelled(src string, p Pos, cause error) *CellError {
 // run executes one statement on a copy of the state, with the one recover at the
 // edge of execution.
 func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err error) {
-	ev := &evaluator{ctx: ctx, sess: s, st: s.st.clone(), sink: sink}
+	ev := &evaluator{ctx: ctx, sess: s, st: s.state().clone(), sink: sink}
 	usedBefore := make(map[string]bool, len(s.used))
 	for k, v := range s.used {
 		usedBefore[k] = v
@@ -105,13 +107,22 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 		}
 		return toCellError(src, st, e)
 	}
+	s.mu.Lock()
 	s.st = ev.st
+	s.mu.Unlock()
 	if sink.Display != nil {
 		for _, b := range ev.out {
 			sink.Display(b)
 		}
 	}
 	return nil
+}
+
+// state returns the committed state, safe to read while a cell runs.
+func (s *Session) state() *state {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.st
 }
 
 func firstFrames(stack []byte) string {
@@ -138,8 +149,12 @@ func toCellError(src string, st Stmt, e error) *CellError {
 // Override makes a later `let NAME = ...` take value (source text) instead. The
 // value is parsed now, so a malformed one is refused at once.
 func (s *Session) Override(name, value string) error {
-	if isReserved(name) || name == "" {
+	toks := tokenize(name, &errorList{src: name})
+	if len(toks) != 2 || toks[0].Kind != tIdent || isReserved(name) {
 		return fmt.Errorf("override: %q is not a name", name)
+	}
+	if _, ok := lookupUnit(name); ok {
+		return fmt.Errorf("override: %q is a unit, not a name", name)
 	}
 	stmts, errs := parse("let " + name + " = " + value)
 	if len(errs) > 0 {
