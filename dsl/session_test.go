@@ -298,3 +298,32 @@ func TestBundleKinds(t *testing.T) {
 		}
 	}
 }
+
+func TestProgressReported(t *testing.T) {
+	s := NewSession(t.TempDir())
+	src := "pulse p = sinc(duration = 2 ms, tbw = 4, flip = 90 deg, samples = 1000)\n" +
+		"sweep p over offset -5 kHz to 5 kHz points 201, b1 0.5 to 1.5 points 60" // 1.2e7 steps
+	var dones []int
+	err := s.Exec(context.Background(), src, Sink{Progress: func(task string, done, total int) {
+		if task != "sweep p" || total != 100 {
+			t.Errorf("progress %q %d/%d", task, done, total)
+		}
+		dones = append(dones, done)
+	}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(dones) < 2 || dones[0] != 0 || dones[len(dones)-1] != 100 {
+		t.Fatalf("progress %v, want 0 first and 100 last", dones)
+	}
+	for i := 1; i < len(dones); i++ {
+		if dones[i] <= dones[i-1] {
+			t.Fatalf("progress %v does not increase", dones)
+		}
+	}
+	// A short sweep reports nothing.
+	dones = nil
+	if err := s.Exec(context.Background(), "sweep p over offset -5 kHz to 5 kHz points 11", Sink{Progress: func(string, int, int) { dones = append(dones, 0) }}); err != nil || dones != nil {
+		t.Errorf("short sweep: err %v, progress %v", err, dones)
+	}
+}
