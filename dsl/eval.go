@@ -10,7 +10,6 @@ import (
 
 	"nutate/display"
 	"nutate/physics"
-	"nutate/physics/shape"
 )
 
 // state is what persists from cell to cell. A statement works on a copy and the
@@ -225,7 +224,5 @@ func wordOf(e Expr) (string, bool) {
 	return "", false
 }
 
-// valueOf turns a shape built for this nucleus into a text bundle.
+// textBundle is a plain-text answer.
 func textBundle(s string) display.Bundle { return display.Text(s) }
-
-var _ = shape.NewCommon

@@ -18,7 +18,7 @@ var quantityTable = []quantitySpec{
 	{Name: "mz", Help: "longitudinal magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "mxy", Help: "transverse magnitude |Mx + iMy| after the pulse", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "phase", Unit: "deg", Help: "phase of Mx + iMy after the pulse, atan2(My, Mx)", Method: "exact piecewise-constant Bloch rotation"},
-	{Name: "echo", Help: "crushed spin-echo response of a refocusing pulse, |β|² (its complex value −β²·Mxy* is in the JSON phase)", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
+	{Name: "echo", Help: "crushed spin-echo response of a refocusing pulse: the magnitude |β|² of Mxy+ = −β²·Mxy* (for Mxy* of unit size)", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
 	{Name: "peak", Property: true, Unit: "uT", Help: "peak B1 of the pulse", Method: "largest |B1| sample"},
 	{Name: "energy", Property: true, Unit: "µT²·ms", Help: "∫B1² dt: a relative, waveform-only estimate (not SAR)", Method: "sum of |B1|²·dwell"},
 	{Name: "b1rms", Property: true, Unit: "uT", Help: "time-averaged B1, √(energy/TR); needs `with tr = ...`; relative, waveform-only", Method: "√(∫B1² dt / TR)"},

@@ -310,9 +310,8 @@ func (ev *evaluator) evalArgs(spec *shapeSpec, c *Call) (map[string]argVal, erro
 			return nil, errAt(a.Name.P, "argument %s given twice", name)
 		}
 		if as.Group != "" {
-			for other, ov := range out {
+			for other := range out {
 				if os, _ := spec.arg(other); os.Group == as.Group {
-					_ = ov
 					return nil, errAt(a.Name.P, "give %s or %s, not both", other, name)
 				}
 			}

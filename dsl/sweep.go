@@ -212,7 +212,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		return err
 	}
 	var axes []*sweepAxis
-	for i, ax := range s.Axes {
+	for _, ax := range s.Axes {
 		a, err := ev.evalAxis(ax, defs)
 		if err != nil {
 			return err
@@ -225,7 +225,6 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		if _, fixed := set.given[a.kind]; fixed && a.spin {
 			return errAt(set.given[a.kind], "%s is both an axis and a setting", a.kind)
 		}
-		_ = i
 		axes = append(axes, a)
 	}
 	anyShapeAxis := false
@@ -715,7 +714,6 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 			iso.T2 = arr
 		}
 	}
-	_ = fmt.Sprint
 	return iso, nil
 }
 
