@@ -19,6 +19,7 @@ type state struct {
 	field   float64 // T; 0: not set
 	names   map[string]*binding
 	seq     int // definition counter, for listing names in order
+	last    *sweepTable // the last sweep's data, for `export sweep to "file.csv"`
 }
 
 // binding is a named quantity or a named pulse.

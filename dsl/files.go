@@ -28,28 +28,29 @@ func (ev *evaluator) path(p string) string {
 }
 
 // export runs `export NAME to "file.csv"`.
+// `export sweep to "file.csv"` writes the last sweep's data instead.
 func (ev *evaluator) export(s *ExportStmt) error {
-	d, err := ev.pulseNamed(s.Name)
-	if err != nil {
-		return err
-	}
 	if s.Path == "" {
 		return errAt(s.PathP, "export needs a file name, got \"\"")
 	}
 	path := ev.path(s.Path)
-	if info, err := os.Stat(path); err == nil {
-		if info.IsDir() {
-			return errAt(s.PathP, "%s is a folder; want a file name", s.Path)
+	if err := ev.checkOverwrite(s, path); err != nil {
+		return err
+	}
+	if s.Name.Name == "sweep" {
+		t := ev.st.last
+		if t == nil {
+			return errAt(s.Name.P, "no sweep has run yet in this session")
 		}
-		f, err := os.Open(path)
-		if err != nil {
-			return errAt(s.PathP, "cannot check %s before overwriting it: %v", s.Path, err)
+		if err := os.WriteFile(path, t.csv(), 0o644); err != nil {
+			return errAt(s.PathP, "cannot write %s: %v", s.Path, err)
 		}
-		first, _ := bufio.NewReader(f).ReadString('\n')
-		f.Close()
-		if !strings.HasPrefix(first, exportMarker) {
-			return errAt(s.PathP, "%s exists and is not a waveform export; refusing to overwrite it (choose another name or remove the file)", s.Path)
-		}
+		ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %d rows, columns %s", t.title, s.Path, len(t.rows), strings.Join(t.columns, ", "))))
+		return nil
+	}
+	d, err := ev.pulseNamed(s.Name)
+	if err != nil {
+		return err
 	}
 	var buf bytes.Buffer
 	p := d.Pulse
@@ -77,6 +78,27 @@ func (ev *evaluator) export(s *ExportStmt) error {
 		return errAt(s.PathP, "cannot write %s: %v", s.Path, err)
 	}
 	ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %d samples, %d columns (%s)", d.Name, s.Path, n, len(exportColumns), strings.Join(exportColumns, ", "))))
+	return nil
+}
+
+// checkOverwrite refuses to replace a file that is not one of our exports.
+func (ev *evaluator) checkOverwrite(s *ExportStmt, path string) error {
+	info, err := os.Stat(path)
+	if err != nil {
+		return nil
+	}
+	if info.IsDir() {
+		return errAt(s.PathP, "%s is a folder; want a file name", s.Path)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return errAt(s.PathP, "cannot check %s before overwriting it: %v", s.Path, err)
+	}
+	first, _ := bufio.NewReader(f).ReadString('\n')
+	f.Close()
+	if !strings.HasPrefix(first, exportMarker) && !strings.HasPrefix(first, sweepMarker) {
+		return errAt(s.PathP, "%s exists and is not a waveform or sweep export; refusing to overwrite it (choose another name or remove the file)", s.Path)
+	}
 	return nil
 }
 
@@ -155,6 +177,9 @@ func readWaveformCSV(name, text string, gammaBar float64) (shape.Samples, float6
 			continue
 		}
 		if strings.HasPrefix(line, "#") {
+			if strings.HasPrefix(line, sweepMarker) {
+				return smp, 0, fmt.Errorf("%s is a sweep export (a profile or map), not a waveform", name)
+			}
 			if strings.HasPrefix(line, exportMarker) {
 				if i := strings.Index(line, "duration "); i >= 0 {
 					f := strings.Fields(line[i+len("duration "):])

@@ -319,7 +319,7 @@ func (p *parser) str() (string, Pos) {
 
 // export := "export" NAME "to" STRING
 func (p *parser) export(kw token) Stmt {
-	name := p.ident("a pulse name")
+	name := p.ident("a pulse name, or `sweep` for the last sweep's data")
 	p.word("to")
 	path, pp := p.str()
 	return &ExportStmt{P: kw.Pos, Name: name, Path: path, PathP: pp}

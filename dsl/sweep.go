@@ -304,9 +304,11 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		for _, c := range curves {
 			ev.emit(mapOutput(title, axes, c, n0, n1))
 		}
+		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return nil
 	}
 	ev.emit(profileOutput(title, axes[0], curves, defs, ev.st))
+	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 	return nil
 }
 
