@@ -18,7 +18,7 @@ type state struct {
 	nucleus physics.Nucleus
 	field   float64 // T; 0: not set
 	names   map[string]*binding
-	seq     int // definition counter, for listing names in order
+	seq     int         // definition counter, for listing names in order
 	last    *sweepTable // the last sweep's data, for `export sweep to "file.csv"`
 }
 

@@ -255,7 +255,7 @@ func TestExportRefusesForeignFile(t *testing.T) {
 	}
 	s := NewSession(dir)
 	err := s.Exec(context.Background(), "pulse p = rect(duration = 1 ms, flip = 90 deg)\nexport p to \"notes.csv\"", Sink{})
-	if err == nil || !strings.Contains(err.Error(), "not a waveform export") {
+	if err == nil || !strings.Contains(err.Error(), "is not a waveform or sweep export") {
 		t.Errorf("error %v, want a refusal", err)
 	}
 	if b, _ := os.ReadFile(foreign); string(b) != "a,b\n1,2\n" {
