@@ -44,16 +44,25 @@ func linspace(a, b float64, n int) []float64 {
 
 // BenchmarkSimulateHS is the reference workload: hyperbolic secant, 10 ms, 2048
 // samples, bandwidth 4 kHz, truncation 5.3, peak 800 Hz, offsets over ±6 kHz × B1
-// scales 0.5–1.5, no relaxation, from +z; and the same with T1 = 1 s, T2 = 100 ms.
-// The metric isochromat-steps/s is spins × samples per second of wall time.
+// scales 0.5–1.5, from +z; without relaxation and with T1 = 1 s, T2 = 100 ms. The
+// metric isochromat-steps/s is spins × samples per second of wall time;
+// isochromat-steps/cpu-s divides by the CPU time of the process instead, so it is
+// the rate per busy core whatever else the machine runs.
 //
-// Figures on the 2-core AMD EPYC build machine (go1.26, GOAMD64=v1), 256 × 256:
+// Figures on the 2-core AMD EPYC (Turin) build machine, go1.26, GOAMD64=v1, with
+// other builds running (load average 8–10 on 2 cores, so wall-time figures are a
+// fraction of a free machine's), 256 × 256 spins, best of 3:
 //
-//	rotation,   1 worker:  see report
-//	rotation,   2 workers: see report
-//	relaxation, 1 worker:  see report
+//	                     ns/op    steps/cpu-s  steps/s (wall)
+//	rotation, 1 worker   2.07e9   1.30e8       6.5e7
+//	rotation, 2 workers  2.32e9   1.28e8       5.8e7
+//	relaxation, 1 worker 5.04e9   5.03e7       2.7e7
+//	relaxation, 2 workers 4.04e9  5.21e7       3.3e7
 //
-// A plain scalar C loop with libm does 5.7e7 isochromat-steps/s per core here.
+// Per busy core, relaxation is 2.6× slower than rotation alone, and two workers keep
+// the per-core rate (no sharing between workers), so on two free cores the wall
+// rate doubles. A plain scalar C loop with libm does 5.7e7 isochromat-steps/s per
+// core here; the rotation kernel does 1.3e8 (1.36e8 with GOAMD64=v3).
 func BenchmarkSimulateHS(b *testing.B) {
 	w := hsWaveform(10e-3, 2048, 4000, 5.3, 800)
 	for _, relax := range []bool{false, true} {
