@@ -158,6 +158,9 @@ func (c completer) candidates(before, prefix string) []string {
 	if clause == "with" && last.Kind == tAssign && len(toks) >= 2 && toks[len(toks)-2].Text == "start" {
 		return []string{"z", "-z", "x", "y"}
 	}
+	if first == "export" && len(toks) == 1 {
+		return append(c.st.pulseNames(), "sweep")
+	}
 	if contains([]string{"describe", "sweep", "report", "export"}, first) && (len(toks) == 1 || last.Kind == tComma && clause == "") {
 		return c.st.pulseNames()
 	}

@@ -88,7 +88,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		{"shape", d.Kind},
 		{"nucleus", d.Nucleus.Name},
 		{"duration", Quantity{p.Duration(), dimTime}.String()},
-		{"samples", fmt.Sprintf("%d (dwell %s)", p.Wave.Len(), Quantity{p.Duration() / float64(max(1, p.Wave.Len())), dimTime})},
+		{"samples", samplesText(p)},
 		{"peak B1", fmtField(p.Peak(), gb)},
 	}
 	if !math.IsNaN(p.Flip) {
@@ -137,3 +137,11 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 }
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
+
+// samplesText gives the sample count and the dwell, or says the dwell varies.
+func samplesText(p *shape.Pulse) string {
+	if !uniform(p.Wave.Dwell) {
+		return fmt.Sprintf("%d (dwell varies)", p.Wave.Len())
+	}
+	return fmt.Sprintf("%d (dwell %s)", p.Wave.Len(), Quantity{p.Wave.Dwell[0], dimTime})
+}

@@ -553,6 +553,8 @@ func pulseSummary(d *pulseDef) string {
 	}
 	if !math.IsNaN(p.Flip) && !p.Adiabatic {
 		parts = append(parts, "flip "+Quantity{p.Flip, dimAngle}.format("deg"))
+	} else if a, ok := d.Args["flip"]; ok && d.Spec != nil {
+		parts = append(parts, "rotation "+a.Val.String()+" by design")
 	}
 	if p.Bandwidth != 0 {
 		parts = append(parts, "bandwidth "+Quantity{p.Bandwidth, dimFrequency}.String())
