@@ -44,7 +44,8 @@ type refTable struct {
 // bloch_reference.json, written by gen_bloch.py beside it with scipy's matrix
 // exponential of the augmented Bloch generator per step and cross-checked there
 // with scipy's solve_ivp. Cases: random waveforms with steps large and small,
-// all start states, relaxation (T1 > T2, T1 = T2, T2 > T1, either infinite), slice
+// all start states, relaxation (T1 > T2, T1 = T2, T2 > T1, either infinite) over
+// short and long (millisecond) samples, slice
 // selection gradients, and the benchmark's hyperbolic secant with and without
 // relaxation. gamma = 1. Tolerance 1e-9 (CHECKS.md asks 1e-6 of exact results).
 func TestReferenceTables(t *testing.T) {

@@ -123,6 +123,24 @@ def main():
         })
     cases.append(dict(name="random relaxation", spins=spins, **rnd))
 
+    # Long steps with relaxation (the engine combines many substeps by squaring).
+    n = 6
+    longs = {
+        "dwell": list(rng.uniform(1e-3, 20e-3, n)),
+        "b1x": list(rng.uniform(-1, 1, n) * 2 * math.pi * 500),
+        "b1y": list(rng.uniform(-1, 1, n) * 2 * math.pi * 500),
+    }
+    spins = []
+    for k, (t1, t2) in enumerate([(0.5, 0.05), (0.01, 0.002), (math.inf, 0.004), (0.003, math.inf), (1.0, 1.0)]):
+        spins.append({
+            "offset": float(rng.uniform(-800, 800)),
+            "scale": float(rng.uniform(0.5, 1.5)),
+            "position": 0.0,
+            "t1": t1, "t2": t2,
+            "start": list(map(float, starts[k % len(starts)])),
+        })
+    cases.append(dict(name="long steps relaxation", spins=spins, **longs))
+
     # Slice selection: a random RF with a random gradient, spins along x.
     n = 30
     grad = {
