@@ -48,8 +48,11 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			flip = formatNumber(roundSig(pr.Rotation*180/math.Pi, 4)) + " (simulated)"
 		}
 		tbw := "—"
-		if !math.IsNaN(pr.Bandwidth) {
-			tbw = formatNumber(roundSig(pr.Bandwidth*p.Duration(), 4))
+		switch {
+		case p.TBW > 0:
+			tbw = formatNumber(roundSig(p.TBW, 4))
+		case !math.IsNaN(pr.Bandwidth):
+			tbw = formatNumber(roundSig(pr.Bandwidth*p.Duration(), 4)) + " (measured)"
 		}
 		row := []string{d.Name, shp, formatNumber(roundSig(p.Duration()*1e3, 6)), fmt.Sprint(p.Wave.Len()),
 			formatNumber(roundSig(p.Peak()*1e6, 5)), formatNumber(roundSig(p.Peak()*gb, 5)), flip,
@@ -70,7 +73,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		context += fmt.Sprintf(", B0 = %s T", formatNumber(ev.st.field))
 	}
 	notes := []string{
-		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW = bandwidth × duration.",
+		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
 	}
 	t := display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}
