@@ -118,3 +118,31 @@ func TestPPMAxis(t *testing.T) {
 		}
 	}
 }
+
+// A pulse's center moves its band: the excited band of a sinc centred at −7.5 ppm
+// is centred at −7.5 ppm on a ppm axis (LANGUAGE.md "Shapes": center is the
+// carrier offset of the band).
+func TestCenterMovesBand(t *testing.T) {
+	src := "nucleus 31P\nfield 7 T\npulse soft = sinc(duration = 2 ms, tbw = 6, window = hann, flip = 10 deg, center = -7.5 ppm)\n" +
+		"sweep soft over offset -30 ppm to 15 ppm points 451 show mxy"
+	y := sweepJSON(t, src)["mxy"]
+	x := func(i int) float64 { return -30 + 0.1*float64(i) }
+	// The half-maximum crossings are symmetric about the centre.
+	peak := 0.0
+	for _, v := range y {
+		peak = math.Max(peak, v)
+	}
+	var cross []float64
+	for i := 0; i+1 < len(y); i++ {
+		a, b := y[i]-peak/2, y[i+1]-peak/2
+		if a*b < 0 {
+			cross = append(cross, x(i)+0.1*a/(a-b))
+		}
+	}
+	if len(cross) != 2 {
+		t.Fatalf("half-maximum crossings %v, want 2", cross)
+	}
+	if mid := (cross[0] + cross[1]) / 2; math.Abs(mid+7.5) > 0.05 {
+		t.Errorf("band centre %.3f ppm, want -7.5 ppm", mid)
+	}
+}
