@@ -13,6 +13,9 @@ import (
 	"nutate/physics/shape"
 )
 
+// maxImportBytes bounds the size of an imported file.
+const maxImportBytes = 256 << 20
+
 // exportMarker starts the comment line of every waveform export; a file that does
 // not start with it is never overwritten.
 const exportMarker = "# nutate waveform export"
@@ -126,6 +129,9 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 	set, err := ev.evalSettings(s.With, "dwell")
 	if err != nil {
 		return err
+	}
+	if info, err := os.Stat(ev.path(s.Path)); err == nil && info.Size() > maxImportBytes {
+		return errAt(s.PathP, "%s has %d bytes, over the limit of %d for a waveform", s.Path, info.Size(), maxImportBytes)
 	}
 	data, err := os.ReadFile(ev.path(s.Path))
 	if err != nil {

@@ -24,11 +24,15 @@ func isReserved(s string) bool {
 // parser builds statements from tokens. A fault abandons the statement (one error
 // per line) and parsing resumes at the next statement.
 type parser struct {
-	src  string
-	toks []token
-	i    int
-	errs *errorList
+	src   string
+	toks  []token
+	i     int
+	errs  *errorList
+	depth int // nesting of expressions, bounded so that no input exhausts the stack
 }
+
+// maxNesting bounds parentheses and unary signs in one expression.
+const maxNesting = 100
 
 type bailout struct{}
 
@@ -416,6 +420,8 @@ func (p *parser) call(fun Ident) *Call {
 
 // expr := sum ["in" UNIT]
 func (p *parser) expr() Expr {
+	p.nest()
+	defer func() { p.depth-- }()
 	x := p.sum()
 	if p.isWord("in") {
 		t := p.tok()
@@ -426,11 +432,28 @@ func (p *parser) expr() Expr {
 	return x
 }
 
+// terms bounds the length of a chain of operators (the evaluator recurses along it).
+func (p *parser) terms(n int) {
+	if n >= maxTerms {
+		p.fail(p.tok().Pos, "expression has more than %d terms", maxTerms)
+	}
+}
+
+// maxTerms bounds a chain of + - or * / in one expression.
+const maxTerms = 1000
+
+func (p *parser) nest() {
+	if p.depth++; p.depth > maxNesting {
+		p.fail(p.tok().Pos, "expression nested more than %d deep", maxNesting)
+	}
+}
+
 // sum := product {("+" | "-") product}
 func (p *parser) sum() Expr {
 	x := p.product()
-	for p.tok().Kind == tPlus || p.tok().Kind == tMinus {
+	for n := 0; p.tok().Kind == tPlus || p.tok().Kind == tMinus; n++ {
 		t := p.tok()
+		p.terms(n)
 		p.i++
 		x = &Binary{P: t.Pos, Op: t.Kind, X: x, Y: p.product()}
 	}
@@ -440,8 +463,9 @@ func (p *parser) sum() Expr {
 // product := unary {("*" | "/") unary}
 func (p *parser) product() Expr {
 	x := p.unary()
-	for p.tok().Kind == tStar || p.tok().Kind == tSlash {
+	for n := 0; p.tok().Kind == tStar || p.tok().Kind == tSlash; n++ {
 		t := p.tok()
+		p.terms(n)
 		p.i++
 		x = &Binary{P: t.Pos, Op: t.Kind, X: x, Y: p.unary()}
 	}
@@ -452,6 +476,8 @@ func (p *parser) product() Expr {
 func (p *parser) unary() Expr {
 	if t := p.tok(); t.Kind == tMinus || t.Kind == tPlus {
 		p.i++
+		p.nest()
+		defer func() { p.depth-- }()
 		return &Unary{P: t.Pos, Op: t.Kind, X: p.unary()}
 	}
 	return p.primary()

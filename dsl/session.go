@@ -61,6 +61,9 @@ func NewSession(dir string) *Session {
 // stay, and the failing statement changes nothing. The error has Traceback()
 // []string; after a cancellation errors.Is(err, context.Canceled) holds.
 func (s *Session) Exec(ctx context.Context, src string, sink Sink) (err error) {
+	if len(src) > maxCell {
+		return &CellError{Errs: []*Error{{Pos: Pos{0, 1, 1}, Msg: fmt.Sprintf("cell has %d bytes, over the limit of %d", len(src), maxCell), Line: lineOf(src, 0)}}, Stmt: -1}
+	}
 	stmts, perrs := parse(src)
 	if len(perrs) > 0 {
 		return &CellError{Errs: perrs, Stmt: -1}
@@ -75,6 +78,9 @@ func (s *Session) Exec(ctx context.Context, src string, sink Sink) (err error) {
 	}
 	return nil
 }
+
+// maxCell bounds the size of one cell.
+const maxCell = 1 << 20
 
 func cancelled(src string, p Pos, cause error) *CellError {
 	return &CellError{

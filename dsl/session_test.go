@@ -327,3 +327,22 @@ func TestProgressReported(t *testing.T) {
 		t.Errorf("short sweep: err %v, progress %v", err, dones)
 	}
 }
+
+// Inputs built to exhaust the stack or memory are refused with an error.
+func TestHostileInputs(t *testing.T) {
+	cases := []struct{ name, src, want string }{
+		{"deep parentheses", "print " + strings.Repeat("(", 100000) + "1", "nested more than 100 deep"},
+		{"deep signs", "print " + strings.Repeat("-", 100000) + "1", "nested more than 100 deep"},
+		{"long chain", "print 1" + strings.Repeat(" + 1", 5000), "more than 1000 terms"},
+		{"huge cell", "# " + strings.Repeat("x", 2<<20), "over the limit of 1048576"},
+		{"nested trains", "pulse t = " + strings.Repeat("train(", 1000) + "x", "nested more than 100 deep"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			err := NewSession(t.TempDir()).Exec(context.Background(), c.src, Sink{})
+			if err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Errorf("error %v, want %q", err, c.want)
+			}
+		})
+	}
+}

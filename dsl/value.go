@@ -97,7 +97,7 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 			if r.Unit == "%" && b.Unit != "%" {
 				r.Unit = ""
 			}
-			return r, nil
+			return r, checkFinite(x.P, r)
 		case tStar:
 			r := Value{Q: Quantity{a.Q.V * b.Q.V, a.Q.D.mul(b.Q.D)}}
 			r.Unit = productUnit(a, b)
