@@ -100,12 +100,14 @@ var invFact1 = func() (v [maxTerms + 1]float64) {
 
 // seriesHorner sets v = Σₖ cₖ·Cᵏ·(1, 0, 0) for k = 0…terms, cₖ = 1/(k+1)!, by
 // Horner's rule v ← C·v + cₖ·(1, 0, 0) with C·(e0, e1, e2) = (−q3·e2, e0 − q2·e2,
-// e1 − q1·e2). It takes the negated coefficients nq = −q. Three spins are summed
-// together so that their dependency chains overlap; plain multiply and add keep
-// the twelve running values in registers.
-func seriesHorner(terms int, q1, q2, q3, v0, v1, v2 []float64) {
-	n := len(q1)
-	q2, q3, v0, v1, v2 = q2[:n], q3[:n], v0[:n], v1[:n], v2[:n]
+// e1 − q1·e2). It takes the negated coefficients nqᵢ = −qᵢ. Three spins are
+// summed together so that their dependency chains overlap; plain multiply and add
+// (no fused multiply-add, whose fallback call would force spills) keep the nine
+// running values in registers.
+func seriesHorner(terms int, nq1, nq2, nq3, v0, v1, v2 []float64) {
+	n := len(nq1)
+	q1, q2, q3 := nq1, nq2[:n], nq3[:n]
+	v0, v1, v2 = v0[:n], v1[:n], v2[:n]
 	cK := invFact1[terms&maxTerms]
 	i := 0
 	for ; i+3 <= n; i += 3 {
@@ -140,8 +142,8 @@ func xMul(a, c, x, y, z, ux, uy, uz float64) (float64, float64, float64) {
 
 // relaxSquare applies sub = 2ˢ substeps of the affine map M ← E·M + f with
 // E = e^X = I + X·φ1(X) and f = φ1(X)·t·b, t·b = (0, 0, −c), by squaring:
-// (E, f)∘(E, f) = (E², E·f + f). With φ1(X) = d0·I + d1·X + d2·X² and
-// X³ = −q1X² − q2X − q3I this is E = I + d0·X + d1·X² + d2·X³.
+// (E, f)∘(E, f) = (E², E·f + f). With φ1(X) = d0·I + d1·X + d2·X²,
+// E = I + d0·X + d1·X² + d2·X³.
 func relaxSquare(sub int, x, y, z, a, c, d0, d1, d2, mx, my, mz float64) (float64, float64, float64) {
 	var xm, x2, e [3][3]float64
 	xm = [3][3]float64{{a, z, -y}, {-z, a, x}, {y, -x, c}}
@@ -187,10 +189,10 @@ type relaxScratch struct {
 }
 
 // relaxBlock advances the magnetization of a block of spins through steps
-// [j0, j1) with relaxation, exactly as described at the top of this file. For each
-// step the coefficients d = Σ cₖ·Cᵏ·(1, 0, 0), with the companion matrix C of the
-// recurrence and cₖ = 1/(k+1)!, are summed by Horner's rule with the spins as the
-// inner loop, so that the spins' dependency chains overlap.
+// [j0, j1) with relaxation, exactly as described at the top of this file. Per
+// step: the characteristic coefficients of every spin's X, the series for d
+// (seriesHorner, its length from a bound on ‖X‖₂ over the block), then the update
+// of M (relaxSquare for long steps).
 func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []float64, sc *relaxScratch) {
 	n := len(off)
 	pos, scale, r1, r2 = pos[:n], scale[:n], r1[:n], r2[:n]
