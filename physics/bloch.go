@@ -147,6 +147,9 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 	if budget == 0 {
 		budget = DefaultMaxSteps
 	}
+	if !(budget > 0) {
+		return nil, fmt.Errorf("max steps is %g, want > 0 (0: the default %.3g)", budget, float64(DefaultMaxSteps))
+	}
 	if steps := float64(n) * float64(w.Len()); steps > budget {
 		return nil, fmt.Errorf("simulation of %d isochromats × %d samples = %.3g steps exceeds the budget of %.3g", n, w.Len(), steps, budget)
 	}
@@ -174,9 +177,14 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 		maxPos = max(maxPos, math.Abs(at(iso.Position, i, 0)))
 		maxScale = max(maxScale, math.Abs(at(iso.B1Scale, i, 1)))
 	}
-	st := newSteps(w, gamma)
+	st, err := newSteps(w, gamma, maxOff, maxPos, maxScale)
+	if err != nil {
+		return nil, err
+	}
 	if relax {
-		st.planRelax(w, gamma, maxOff, maxPos, maxScale, maxR)
+		if err := st.planRelax(w, gamma, maxOff, maxPos, maxScale, maxR); err != nil {
+			return nil, err
+		}
 	}
 	res := &Result{Mx: make([]float64, n), My: make([]float64, n), Mz: make([]float64, n)}
 	if !relax {

@@ -575,6 +575,9 @@ func TestInvalidInput(t *testing.T) {
 		{"nan offset", good, 1, Isochromats{Offset: []float64{math.NaN()}}, Options{}, "offset[0] is NaN"},
 		{"negative t1", good, 1, Isochromats{T1: []float64{-1}}, Options{}, "t1[0] is -1 s, want ≥ 0"},
 		{"start", good, 1, Isochromats{}, Options{Start: [3]float64{math.Inf(1), 0, 0}}, "start magnetization component 0 is +Inf"},
+		{"max steps", good, 1, Isochromats{}, Options{MaxSteps: math.NaN()}, "max steps is NaN, want > 0"},
+		{"overflow", &Waveform{Dwell: []float64{1}, B1: []complex128{1e300}}, 1e10, Isochromats{}, Options{}, "sample 0: the rotation angle overflows"},
+		{"relaxation too long", &Waveform{Dwell: []float64{1e30}, B1: []complex128{1000}}, 1, Isochromats{T2: []float64{1}}, Options{}, "sample 0: ‖γB_eff‖·dt + dt/T = 1e+33 rad is too large"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := Simulate(context.Background(), tc.w, tc.gamma, &tc.iso, tc.opt)
@@ -588,8 +591,8 @@ func TestInvalidInput(t *testing.T) {
 // The inner loops allocate nothing (STYLE.md).
 func TestKernelsAllocateNothing(t *testing.T) {
 	w := hsWaveform(1e-3, 64, 4000, 5.3, 800)
-	st := newSteps(w, 1)
-	st.planRelax(w, 1, 4e4, 0, 1.5, 10)
+	st, _ := newSteps(w, 1, 2*3.14159*6000, 0, 1.5)
+	_ = st.planRelax(w, 1, 4e4, 0, 1.5, 10)
 	var b block
 	if a := testing.AllocsPerRun(10, func() {
 		rotateBlock(st, 0, st.n, b.off[:], b.pos[:], b.scale[:], b.scale2[:], b.ar[:], b.ai[:], b.br[:], b.bi[:])

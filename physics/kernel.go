@@ -1,6 +1,9 @@
 package physics
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // steps holds the per-sample terms that every isochromat shares, computed once per
 // simulation so that the inner loops only combine them with per-spin values.
@@ -13,7 +16,10 @@ type steps struct {
 	sub               []int
 }
 
-func newSteps(w *Waveform, gamma float64) *steps {
+// newSteps tabulates the shared terms; it refuses a sample whose rotation angle
+// over the spins (bounded with the largest offset, position and B1 scale) is not
+// a finite number, which only absurd inputs reach.
+func newSteps(w *Waveform, gamma, maxOff, maxPos, maxScale float64) (*steps, error) {
 	n := w.Len()
 	st := &steps{n: n}
 	buf := make([]float64, 5*n)
@@ -27,8 +33,12 @@ func newSteps(w *Waveform, gamma float64) *steps {
 		if w.Gradient != nil {
 			st.gh[j] = gamma * w.Gradient[j] * h
 		}
+		zh := maxOff*h + maxPos*math.Abs(st.gh[j])
+		if x := maxScale*maxScale*st.p[j] + zh*zh; math.IsInf(x, 0) || math.IsNaN(x) {
+			return nil, fmt.Errorf("sample %d: the rotation angle overflows (B1 %g T, dwell %g s), want finite", j, b1, w.Dwell[j])
+		}
 	}
-	return st
+	return st, nil
 }
 
 // Power series in x = φ² of cos φ and of sin φ / φ (Abramowitz & Stegun 4.3.65,

@@ -27,7 +27,7 @@ func processCPU() float64 {
 
 func BenchmarkKernelRotate(b *testing.B) {
 	w := hsWaveform(10e-3, 2048, 4000, 5.3, 800)
-	st := newSteps(w, 1)
+	st, _ := newSteps(w, 1, 2*3.14159*6000, 0, 1.5)
 	var blk block
 	for i := range blockSpins {
 		blk.off[i] = 2 * 3.14159 * (-6000 + 12000*float64(i)/blockSpins)
@@ -47,8 +47,8 @@ func BenchmarkKernelRotate(b *testing.B) {
 
 func BenchmarkKernelRelax(b *testing.B) {
 	w := hsWaveform(10e-3, 2048, 4000, 5.3, 800)
-	st := newSteps(w, 1)
-	st.planRelax(w, 1, 2*3.14159*6000, 0, 1.5, 10)
+	st, _ := newSteps(w, 1, 2*3.14159*6000, 0, 1.5)
+	_ = st.planRelax(w, 1, 2*3.14159*6000, 0, 1.5, 10)
 	var blk block
 	for i := range blockSpins {
 		blk.off[i] = 2 * 3.14159 * (-6000 + 12000*float64(i)/blockSpins)

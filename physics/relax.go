@@ -1,6 +1,9 @@
 package physics
 
-import "math"
+import (
+	"fmt"
+	"math"
+)
 
 // Relaxation during a step. With R1 = 1/T1, R2 = 1/T2 and M0 = ẑ the Bloch
 // equations (Bloch, Phys. Rev. 70:460, 1946) are linear with constant coefficients
@@ -61,7 +64,7 @@ func relaxTerms(rho float64) int {
 // ‖dt·A‖₂ ≤ dt·(|ω|max + max(R1, R2)) over all spins: ‖Ω‖₂ = |ω| for the rotation
 // part and ‖diag(R2, R2, R1)‖₂ = max(R1, R2). The series length is chosen per block
 // of spins and step from the same bound over the block (relaxBlock).
-func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR float64) {
+func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR float64) error {
 	n := st.n
 	st.dt, st.wx, st.wy, st.g = make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
 	st.w1, st.sub = make([]float64, n), make([]int, n)
@@ -75,18 +78,21 @@ func (st *steps) planRelax(w *Waveform, gamma, maxOff, maxPos, maxScale, maxR fl
 		wz := maxOff + maxPos*math.Abs(st.g[j])
 		st.w1[j] = math.Hypot(st.wx[j], st.wy[j])
 		rho := dt * (math.Hypot(maxScale*st.w1[j], wz) + maxR)
-		sub := 1
-		if rho > relaxRho {
-			sq := int(math.Ceil(math.Log2(rho / relaxRho)))
-			for math.Ldexp(relaxRho, sq) < rho {
-				sq++
-			}
-			sub = 1 << min(sq, 62)
+		if !(rho <= maxRho) {
+			return fmt.Errorf("sample %d: ‖γB_eff‖·dt + dt/T = %.3g rad is too large to simulate with relaxation, want ≤ %.3g", j, rho, maxRho)
 		}
-		st.dt[j] = dt / float64(sub)
-		st.sub[j] = sub
+		sq := 0
+		for math.Ldexp(relaxRho, sq) < rho {
+			sq++
+		}
+		st.dt[j] = math.Ldexp(dt, -sq)
+		st.sub[j] = 1 << sq
 	}
+	return nil
 }
+
+// maxRho bounds ‖dt·A‖₂ of one sample: 2⁴⁰ substeps, far beyond any pulse.
+var maxRho = math.Ldexp(relaxRho, 40)
 
 // invFact1[k] = 1/(k+1)!.
 var invFact1 = func() (v [maxTerms + 1]float64) {
