@@ -10,10 +10,18 @@
 // texts, also used by `nutate help`). The language itself is described in
 // LANGUAGE.md and by `help`.
 //
-// Layout: scanner.go (tokens, positions), parser.go and ast.go (syntax), units.go
-// and value.go (quantities and dimension checks), eval.go (statements), shapes.go
-// (the shape table), sweep.go, describe.go, report.go, files.go, help.go,
-// complete.go.
+// Layout: scanner.go (tokens, positions), parser.go and ast.go (syntax, one parse
+// function per statement with its grammar above it), units.go and value.go
+// (quantities and dimension checks), errors.go (positions, carets, suggestions),
+// eval.go (statements), shapes.go, slrshape.go and train.go (the shape table: one
+// explicit row per shape), quantities.go and settings.go (the `show` and `with`
+// tables), sweep.go, features.go and sweepfile.go (sweeps, their summaries and
+// CSV), describe.go, report.go, files.go (waveform CSV), render.go (the adapter to
+// package display), help.go and complete.go (help texts, completion, inspection).
+//
+// Limits: a cell of at most 1 MiB, expressions nested at most 100 deep, sweeps
+// within the engine's step budget (physics.DefaultMaxSteps), at most 100 000
+// points per axis and 10⁶ per map.
 package dsl
 
 import (
