@@ -601,3 +601,36 @@ func TestKernelsAllocateNothing(t *testing.T) {
 		t.Errorf("kernels allocate %g times per run, want 0", a)
 	}
 }
+
+// A set where only some spins relax: the others match a simulation without
+// relaxation, and the result carries no Cayley–Klein parameters (Bloch 1946;
+// Pauly et al. 1991 for α and β of pure rotations).
+func TestMixedRelaxation(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 10))
+	w := randomWaveform(rng, 40, 2*math.Pi*2000, 30e-6)
+	offs := linspace(-2000, 2000, 130)
+	t1, t2 := make([]float64, len(offs)), make([]float64, len(offs))
+	for i := range offs {
+		if i%3 == 0 {
+			t1[i], t2[i] = 0.05, 0.01
+		} else if i%3 == 1 {
+			t1[i], t2[i] = math.Inf(1), 0
+		}
+	}
+	mixed := sim(t, w, 1, &Isochromats{Offset: offs, T1: t1, T2: t2}, Options{Start: StartPlusX})
+	pure := sim(t, w, 1, &Isochromats{Offset: offs}, Options{Start: StartPlusX})
+	if mixed.Alpha != nil || mixed.Beta != nil {
+		t.Error("Alpha and Beta are set although spins relax")
+	}
+	for i := range offs {
+		m := [3]float64{mixed.Mx[i], mixed.My[i], mixed.Mz[i]}
+		p := [3]float64{pure.Mx[i], pure.My[i], pure.Mz[i]}
+		if i%3 == 0 {
+			if math.Abs(m[0]-p[0])+math.Abs(m[1]-p[1])+math.Abs(m[2]-p[2]) < 1e-6 {
+				t.Errorf("spin %d relaxes but matches the pure rotation", i)
+			}
+			continue
+		}
+		checkVec(t, fmt.Sprintf("spin %d", i), m, p, 1e-12)
+	}
+}
