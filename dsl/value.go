@@ -15,15 +15,8 @@ type Value struct {
 
 func (v Value) String() string {
 	u := v.Unit
-	if u != "" {
-		if unit, ok := lookupUnit(u); !ok || unit.Dim != v.Q.D {
-			u = ""
-		}
-	}
-	if u == "%" || (u == "" && v.Q.D == dimNumber) {
-		if u == "%" {
-			return v.Q.format("%")
-		}
+	if unit, ok := lookupUnit(u); u != "" && (!ok || unit.Dim != v.Q.D) {
+		u = ""
 	}
 	return v.Q.format(u)
 }
