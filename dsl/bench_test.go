@@ -2,7 +2,9 @@ package dsl
 
 import (
 	"context"
+	"errors"
 	"testing"
+	"time"
 )
 
 // BenchmarkParse measures scanning and parsing of the LANGUAGE.md example.
@@ -35,4 +37,30 @@ func BenchmarkSweep(b *testing.B) {
 			}
 		})
 	}
+}
+
+// BenchmarkInterrupt measures the time from a cancellation, made once a long map
+// sweep (4e9 rotation steps) reports 1 % done, to Exec's return.
+func BenchmarkInterrupt(b *testing.B) {
+	s := NewSession(b.TempDir())
+	if err := s.Exec(context.Background(), "pulse p = sinc(duration = 4 ms, tbw = 8, flip = 90 deg, samples = 4000)", Sink{}); err != nil {
+		b.Fatal(err)
+	}
+	total := 0.0
+	for b.Loop() {
+		ctx, cancel := context.WithCancel(context.Background())
+		var at time.Time
+		err := s.Exec(ctx, "sweep p over offset -20 kHz to 20 kHz points 1000, b1 0.5 to 1.5 points 1000", Sink{Progress: func(_ string, done, _ int) {
+			if done >= 1 && at.IsZero() {
+				at = time.Now()
+				cancel()
+			}
+		}})
+		total += time.Since(at).Seconds()
+		cancel()
+		if !errors.Is(err, context.Canceled) {
+			b.Fatalf("error %v, want context.Canceled", err)
+		}
+	}
+	b.ReportMetric(1e3*total/float64(b.N), "ms-to-stop")
 }
