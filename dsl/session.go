@@ -116,7 +116,9 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 		}
 	}()
 	if e := ev.exec(st); e != nil {
-		if ctxErr := ctx.Err(); ctxErr != nil && (errors.Is(e, ctxErr) || errors.Is(e, context.Canceled) || errors.Is(e, context.DeadlineExceeded)) {
+		// Once interrupted, any failure of the statement is the interrupt's doing
+		// (a routine may report it in its own words).
+		if ctxErr := ctx.Err(); ctxErr != nil {
 			return cancelled(src, st.Position(), ctxErr)
 		}
 		return toCellError(src, st, e)
