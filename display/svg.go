@@ -278,12 +278,15 @@ func padRange(lo, hi, frac float64) (float64, float64) {
 	switch {
 	case lo > hi:
 		return 0, 1
-	case lo == hi:
-		d := math.Max(math.Abs(lo)*0.1, 1)
-		if lo == 0 {
+	case hi-lo <= 1e-9*math.Max(math.Abs(lo), math.Abs(hi)):
+		// Equal, or equal but for rounding: show a span around the value rather
+		// than magnifying floating-point noise.
+		m := lo/2 + hi/2
+		d := math.Max(math.Abs(m)*0.1, 1)
+		if m == 0 {
 			d = 1
 		}
-		return lo - d, hi + d
+		return m - d, m + d
 	}
 	d := (hi - lo) * frac
 	return lo - d, hi + d
@@ -533,6 +536,11 @@ func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
 	}
 	var ts []plot.Tick
 	k0, k1 := math.Ceil(lo/step-1e-9), math.Floor(hi/step+1e-9)
+	if !(k1-k0 < 1000) || k0 == k0+1 {
+		// A span too small for the values' precision: no ladder of ticks to build
+		// (and k++ would not advance).
+		return []plot.Tick{{Value: lo, Label: label(lo)}}
+	}
 	for k := k0 - 1; k <= k1; k++ {
 		v := k * step
 		if k >= k0 {
