@@ -82,6 +82,9 @@ func (e *endpoint) open(c net.Conn) {
 	defer e.wg.Done()
 	zc, err := zmq4.Open(c, null.Security(), e.typ, zmq4.SocketIdentity("nutate-"+e.name), true, nil)
 	if err != nil {
+		if debugLog {
+			e.log.Printf("%s: handshake with %s failed: %v", e.name, c.RemoteAddr(), err)
+		}
 		c.Close()
 		return
 	}

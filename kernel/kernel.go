@@ -26,7 +26,8 @@ type dispatcher struct {
 	exec    Executor
 	session string
 	log     *log.Logger
-	publish func(Message) // on iopub; must keep order
+	publish func(Message)    // on iopub; must keep order
+	queued  func() []request // takes the shell requests waiting now (nil: none)
 
 	mu        sync.Mutex
 	cancelRun context.CancelFunc // cancels the running cell, nil when idle
@@ -88,9 +89,10 @@ func (d *dispatcher) status(req Message, state string) {
 
 // handle answers one request, bracketed by busy and idle on iopub. It runs on
 // the shell goroutine for shell requests and on the control goroutine for
-// control requests; only execute_request is long. It reports whether execute
-// requests already queued should be aborted (a cell failed with stop_on_error).
-func (d *dispatcher) handle(r request, control bool) (abortQueued bool) {
+// control requests; only execute_request is long. When a cell fails with
+// stop_on_error, it returns the requests that were waiting when the cell
+// failed (taken with d.queued): their execute requests are to be aborted.
+func (d *dispatcher) handle(r request, control bool) (waiting []request) {
 	d.status(r.msg, "busy")
 	defer d.status(r.msg, "idle")
 	switch t := r.msg.Header.MsgType; t {
@@ -129,7 +131,7 @@ func (d *dispatcher) handle(r request, control bool) (abortQueued bool) {
 	default:
 		d.log.Printf("unknown message type %q ignored", t)
 	}
-	return false
+	return nil
 }
 
 // abort answers an execute_request that was queued behind a failed cell with
@@ -197,7 +199,7 @@ func (d *dispatcher) Interrupt() {
 // errInterrupted is what an interrupted cell reports.
 const interruptedName = "Interrupted"
 
-func (d *dispatcher) execute(r request) (abortQueued bool) {
+func (d *dispatcher) execute(r request) (waiting []request) {
 	var c struct {
 		Code         string `json:"code"`
 		Silent       bool   `json:"silent"`
@@ -206,7 +208,7 @@ func (d *dispatcher) execute(r request) (abortQueued bool) {
 	}
 	if err := json.Unmarshal(r.msg.Content, &c); err != nil {
 		d.replyError(r, "execute_reply", "BadRequest", "execute_request: content: "+err.Error(), nil)
-		return false
+		return nil
 	}
 	store := !c.Silent && (c.StoreHistory == nil || *c.StoreHistory)
 
@@ -246,7 +248,13 @@ func (d *dispatcher) execute(r request) (abortQueued bool) {
 			"user_expressions": map[string]any{},
 			"payload":          []any{},
 		})
-		return false
+		return nil
+	}
+	// Requests that arrived while the cell ran are the ones stop_on_error
+	// aborts; they are taken before the reply, so a client that sends its next
+	// cell on seeing the reply is not aborted.
+	if !c.Silent && (c.StopOnError == nil || *c.StopOnError) && d.queued != nil {
+		waiting = d.queued()
 	}
 	ename, evalue, tb := describeError(err, ctx)
 	errContent := map[string]any{"ename": ename, "evalue": evalue, "traceback": tb}
@@ -258,7 +266,7 @@ func (d *dispatcher) execute(r request) (abortQueued bool) {
 		"evalue":          evalue,
 		"traceback":       tb,
 	})
-	return !c.Silent && (c.StopOnError == nil || *c.StopOnError)
+	return waiting
 }
 
 // run calls the executor, turning a panic into an error: the one recover at the

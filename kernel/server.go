@@ -232,6 +232,9 @@ const iopubWait = 500 * time.Millisecond
 // readiness another round of kernel_info.
 func (s *Server) serve(q chan request, done chan struct{}, control bool) {
 	defer close(done)
+	if !control {
+		s.d.queued = func() []request { return drain(q) }
+	}
 	first := s.iopub != nil && !control
 	for {
 		select {
@@ -245,8 +248,12 @@ func (s *Server) serve(q chan request, done chan struct{}, control bool) {
 				}
 				t.Stop()
 			}
-			if s.d.handle(r, control) {
-				s.abortQueued(q)
+			for _, w := range s.d.handle(r, control) {
+				if w.msg.Header.MsgType == "execute_request" {
+					s.d.abort(w)
+				} else {
+					s.d.handle(w, control)
+				}
 			}
 		case <-s.stop:
 			return
@@ -254,19 +261,15 @@ func (s *Server) serve(q chan request, done chan struct{}, control bool) {
 	}
 }
 
-// abortQueued answers "aborted" to the execute requests already waiting in q
-// and handles the other requests found there as usual.
-func (s *Server) abortQueued(q chan request) {
+// drain takes the requests waiting in q now, without blocking.
+func drain(q chan request) []request {
+	var rs []request
 	for {
 		select {
 		case r := <-q:
-			if r.msg.Header.MsgType == "execute_request" {
-				s.d.abort(r)
-			} else if s.d.handle(r, false) {
-				continue
-			}
+			rs = append(rs, r)
 		default:
-			return
+			return rs
 		}
 	}
 }

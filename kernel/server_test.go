@@ -22,8 +22,12 @@ const testKey = "0123456789abcdef"
 func testServer(t testing.TB) (*Server, chan string) {
 	t.Helper()
 	joined := make(chan string, 64)
+	lg := log.New(io.Discard, "", 0)
+	if debugLog {
+		lg = log.New(os.Stderr, "kernel: ", log.Lmicroseconds)
+	}
 	s, err := start(ConnectionInfo{IP: "127.0.0.1", Key: testKey, SignatureScheme: "hmac-sha256"},
-		&fakeExec{started: make(chan struct{}, 1)}, log.New(io.Discard, "", 0), joined)
+		&fakeExec{started: make(chan struct{}, 1)}, lg, joined)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -49,12 +53,20 @@ func dial(t testing.TB, port int, typ zmq4.SocketType) *zmq4.Conn {
 	return zc
 }
 
-// waitJoin waits until the endpoint named name has accepted a peer.
+// waitJoin waits until the endpoint named name has accepted a peer. The bound
+// only turns a failed handshake into a failure instead of a hang.
 func waitJoin(t testing.TB, joined chan string, name string) {
 	t.Helper()
-	for n := range joined {
-		if n == name {
-			return
+	bound := time.NewTimer(time.Minute)
+	defer bound.Stop()
+	for {
+		select {
+		case n := <-joined:
+			if n == name {
+				return
+			}
+		case <-bound.C:
+			t.Fatalf("%s: the kernel never completed the handshake (run with NUTATE_KERNEL_DEBUG=1 to see why)", name)
 		}
 	}
 }

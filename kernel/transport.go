@@ -154,8 +154,7 @@ func (l *guardedListener) screen(c net.Conn) {
 		c.Close()
 		return
 	}
-	gc := &guardedConn{Conn: c, prefix: sig}
-	gc.guard.greeting = zmtpGreeting
+	gc := newGuardedConn(c, sig)
 	select {
 	case l.ready <- gc:
 	case <-l.done:
@@ -187,38 +186,113 @@ func (l *guardedListener) Addr() net.Addr { return l.inner.Addr() }
 // guardedConn replays the screened signature, parses the incoming ZMTP stream
 // to refuse oversized frames, lifts the handshake deadline once the peer's
 // first command has arrived, and puts a deadline on every write.
+//
+// It also answers ZMTP heartbeats itself. zmq4 replies to a PING from inside
+// RecvMsg, on the reading goroutine, while another goroutine may be writing a
+// multipart message: the PONG then lands between two frames and breaks the
+// stream. So incoming PING commands are taken out of the stream here and their
+// PONGs are written only between messages, which the connection knows by
+// following its own outgoing frames.
 type guardedConn struct {
 	net.Conn
 	prefix []byte
-	guard  frameGuard
-	mu     sync.Mutex // serialises Read's parser state (zmq4 reads from one goroutine, but be safe)
+
+	rmu   sync.Mutex // the read side: in, rerr, guard
+	in    []byte     // checked bytes waiting for Read
+	rerr  error      // read error to report once in is empty
+	buf   []byte     // network read buffer
+	guard frameGuard
+
+	wmu     sync.Mutex // held for each network write
+	smu     sync.Mutex // out and pending
+	out     frameGuard // follows outgoing frames to find message boundaries
+	pending [][]byte   // PONG frames waiting for a boundary
+}
+
+func newGuardedConn(c net.Conn, prefix []byte) *guardedConn {
+	gc := &guardedConn{Conn: c, prefix: prefix, buf: make([]byte, 32<<10)}
+	gc.guard = frameGuard{greeting: zmtpGreeting, holdCommands: true}
+	gc.out = frameGuard{greeting: zmtpGreeting, noLimits: true}
+	return gc
 }
 
 func (c *guardedConn) Read(p []byte) (int, error) {
-	c.mu.Lock()
-	defer c.mu.Unlock()
-	var n int
-	var err error
-	if len(c.prefix) > 0 {
-		n = copy(p, c.prefix)
-		c.prefix = c.prefix[n:]
-	} else {
-		n, err = c.Conn.Read(p)
-	}
-	if n > 0 {
+	c.rmu.Lock()
+	defer c.rmu.Unlock()
+	for len(c.in) == 0 && c.rerr == nil {
+		var chunk []byte
+		if len(c.prefix) > 0 {
+			chunk, c.prefix = c.prefix, nil
+		} else {
+			n, err := c.Conn.Read(c.buf)
+			chunk, c.rerr = c.buf[:n], err
+		}
 		commands := c.guard.commands
-		if gerr := c.guard.feed(p[:n]); gerr != nil {
+		var pings [][]byte
+		var gerr error
+		c.in, pings, gerr = c.guard.filter(chunk, c.in[:0])
+		if gerr != nil {
 			c.Conn.Close()
-			return 0, gerr
+			c.in, c.rerr = nil, gerr
+			break
 		}
 		if commands == 0 && c.guard.commands > 0 {
 			c.Conn.SetReadDeadline(time.Time{})
+		}
+		for _, body := range pings {
+			c.pong(body)
+		}
+	}
+	if len(c.in) == 0 {
+		return 0, c.rerr
+	}
+	n := copy(p, c.in)
+	c.in = c.in[n:]
+	return n, nil
+}
+
+// pong answers a PING (ZMTP 3.1, rfc.zeromq.org/spec/37: body is the 2-byte
+// TTL then up to 16 bytes of context, which the PONG echoes).
+func (c *guardedConn) pong(ping []byte) {
+	ctx := []byte{}
+	if len(ping) > 2 {
+		ctx = ping[2:min(len(ping), 18)]
+	}
+	body := append([]byte("\x04PONG"), ctx...)
+	frame := append([]byte{0x04, byte(len(body))}, body...)
+	c.smu.Lock()
+	if c.out.atBoundary() && c.wmu.TryLock() {
+		c.smu.Unlock()
+		c.write(frame)
+		c.wmu.Unlock()
+		return
+	}
+	// A message is being written: the writer sends the PONG after it.
+	c.pending = append(c.pending, frame)
+	c.smu.Unlock()
+}
+
+func (c *guardedConn) Write(p []byte) (int, error) {
+	c.wmu.Lock()
+	defer c.wmu.Unlock()
+	n, err := c.write(p)
+	c.smu.Lock()
+	c.out.filter(p[:n], nil)
+	var pongs [][]byte
+	if c.out.atBoundary() {
+		pongs, c.pending = c.pending, nil
+	}
+	c.smu.Unlock()
+	for _, f := range pongs {
+		if _, err := c.write(f); err != nil {
+			break
 		}
 	}
 	return n, err
 }
 
-func (c *guardedConn) Write(p []byte) (int, error) {
+// write writes p with a deadline; the caller holds wmu.
+func (c *guardedConn) write(p []byte) (int, error) {
 	c.Conn.SetWriteDeadline(time.Now().Add(writeTimeout))
 	n, err := c.Conn.Write(p)
 	if err != nil {
@@ -233,10 +307,17 @@ func (c *guardedConn) Write(p []byte) (int, error) {
 }
 
 // frameGuard follows a ZMTP 3 byte stream (greeting, then frames of flags,
-// size and body) and refuses frames larger than MaxFrameSize.
-// Frame layout: ZMTP 3.0, https://rfc.zeromq.org/spec/23/ (flags bit 1 = long
-// size of 8 bytes network order, bit 2 = command).
+// size and body). On the incoming side it refuses frames larger than
+// MaxFrameSize and messages over MaxMessageSize or MaxMessageFrames, and holds
+// command frames back until complete so PINGs can be taken out; on the
+// outgoing side it only tracks message boundaries.
+// Frame layout: ZMTP 3.0, https://rfc.zeromq.org/spec/23/ (flags bit 0 =
+// more frames follow, bit 1 = long size of 8 bytes network order, bit 2 =
+// command).
 type frameGuard struct {
+	holdCommands bool // hold command frames and take PINGs out
+	noLimits     bool // outgoing side: no size bounds
+
 	greeting int // greeting bytes still to pass
 	state    int // 0: flags, 1: size bytes, 2: body
 	flags    byte
@@ -244,34 +325,63 @@ type frameGuard struct {
 	sizeGot  int
 	sizeLen  int
 	body     uint64
-	commands int // command frames completed
+	more     bool   // inside a multipart message
+	holding  bool   // the current frame is a command being held back
+	cmd      []byte // the command frame being held back
+	commands int    // command frames completed
 
 	msgFrames int    // frames of the current multipart message so far
 	msgBytes  uint64 // their bytes
 }
 
+// atBoundary reports whether the stream is between messages.
+func (g *frameGuard) atBoundary() bool {
+	return g.greeting == 0 && g.state == 0 && !g.more
+}
+
+// feed checks p, discarding the bytes (tests).
 func (g *frameGuard) feed(p []byte) error {
-	for len(p) > 0 {
+	_, _, err := g.filter(p, nil)
+	return err
+}
+
+// filter checks in and appends to out the bytes to pass on; complete PING
+// commands are left out and their bodies returned.
+func (g *frameGuard) filter(in, out []byte) ([]byte, [][]byte, error) {
+	var pings [][]byte
+	pass := func(b []byte) {
+		if g.holding {
+			g.cmd = append(g.cmd, b...)
+		} else {
+			out = append(out, b...)
+		}
+	}
+	for len(in) > 0 {
 		if g.greeting > 0 {
-			k := min(g.greeting, len(p))
+			k := min(g.greeting, len(in))
+			out = append(out, in[:k]...)
 			g.greeting -= k
-			p = p[k:]
+			in = in[k:]
 			continue
 		}
 		switch g.state {
 		case 0:
-			g.flags = p[0]
-			p = p[1:]
+			g.flags = in[0]
+			g.state = 1
+			g.holding = g.holdCommands && g.flags&0x04 != 0
+			g.cmd = g.cmd[:0]
+			pass(in[:1])
+			in = in[1:]
 			g.sizeGot = 0
 			g.sizeLen = 1
 			if g.flags&0x02 != 0 {
 				g.sizeLen = 8
 			}
-			g.state = 1
 		case 1:
-			k := copy(g.size[g.sizeGot:g.sizeLen], p)
+			k := copy(g.size[g.sizeGot:g.sizeLen], in)
+			pass(in[:k])
 			g.sizeGot += k
-			p = p[k:]
+			in = in[k:]
 			if g.sizeGot < g.sizeLen {
 				continue
 			}
@@ -280,40 +390,64 @@ func (g *frameGuard) feed(p []byte) error {
 			} else {
 				g.body = binary.BigEndian.Uint64(g.size[:8])
 			}
-			if g.body > MaxFrameSize {
-				return fmt.Errorf("%w (header claims %d bytes)", ErrFrameTooLarge, g.body)
-			}
-			if g.flags&0x04 == 0 {
-				g.msgFrames++
-				g.msgBytes += g.body
-				if g.msgFrames > MaxMessageFrames || g.msgBytes > MaxMessageSize {
-					return fmt.Errorf("%w (%d frames, %d bytes so far)", ErrMessageTooLarge, g.msgFrames, g.msgBytes)
+			if !g.noLimits {
+				if g.body > MaxFrameSize {
+					return out, pings, fmt.Errorf("%w (header claims %d bytes)", ErrFrameTooLarge, g.body)
+				}
+				if g.flags&0x04 == 0 {
+					g.msgFrames++
+					g.msgBytes += g.body
+					if g.msgFrames > MaxMessageFrames || g.msgBytes > MaxMessageSize {
+						return out, pings, fmt.Errorf("%w (%d frames, %d bytes so far)", ErrMessageTooLarge, g.msgFrames, g.msgBytes)
+					}
 				}
 			}
 			g.state = 2
 			if g.body == 0 {
-				g.endFrame()
+				out, pings = g.endFrame(out, pings)
 			}
 		case 2:
-			k := uint64(len(p))
+			k := uint64(len(in))
 			if k > g.body {
 				k = g.body
 			}
+			pass(in[:k])
 			g.body -= k
-			p = p[k:]
+			in = in[k:]
 			if g.body == 0 {
-				g.endFrame()
+				out, pings = g.endFrame(out, pings)
 			}
 		}
 	}
-	return nil
+	return out, pings, nil
 }
 
-func (g *frameGuard) endFrame() {
-	if g.flags&0x04 != 0 {
-		g.commands++
-	} else if g.flags&0x01 == 0 {
-		g.msgFrames, g.msgBytes = 0, 0 // the last frame of a message
-	}
+// endFrame closes the current frame: a held command is passed on, or taken
+// out if it is a PING.
+func (g *frameGuard) endFrame(out []byte, pings [][]byte) ([]byte, [][]byte) {
 	g.state = 0
+	if g.flags&0x04 == 0 {
+		g.more = g.flags&0x01 != 0
+		if !g.more {
+			g.msgFrames, g.msgBytes = 0, 0 // the last frame of a message
+		}
+		return out, pings
+	}
+	g.commands++
+	if !g.holding {
+		return out, pings
+	}
+	g.holding = false
+	hdr := 2
+	if g.flags&0x02 != 0 {
+		hdr = 9
+	}
+	body := g.cmd[hdr:]
+	if len(body) >= 5 && body[0] == 4 && string(body[1:5]) == "PING" {
+		pings = append(pings, append([]byte(nil), body[5:]...))
+	} else {
+		out = append(out, g.cmd...)
+	}
+	g.cmd = g.cmd[:0]
+	return out, pings
 }

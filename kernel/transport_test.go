@@ -1,9 +1,12 @@
 package kernel
 
 import (
+	"bytes"
 	"context"
 	"encoding/binary"
 	"errors"
+	"io"
+	"log"
 	"net"
 	"testing"
 
@@ -106,7 +109,7 @@ func TestFrameGuardMessageBounds(t *testing.T) {
 			t.Fatal(err)
 		}
 		g.state, g.body = 0, 0 // pretend the body passed
-		g.endFrame()
+		g.endFrame(nil, nil)
 		if err := g.feed([]byte{0x00, 1}); !errors.Is(err, ErrMessageTooLarge) {
 			t.Fatalf("got %v, want ErrMessageTooLarge", err)
 		}
@@ -130,7 +133,7 @@ func TestGuardedTransportWithZmq4Sockets(t *testing.T) {
 	RegisterTransports()
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
-	rep := zmq4.NewRep(ctx)
+	rep := zmq4.NewRep(ctx, zmq4.WithLogger(log.New(io.Discard, "", 0)))
 	defer rep.Close()
 	if err := rep.Listen("guarded-tcp://127.0.0.1:0"); err != nil {
 		t.Fatal(err)
@@ -186,4 +189,66 @@ func FuzzFrameGuard(f *testing.F) {
 			t.Fatalf("unexpected error %v", err)
 		}
 	})
+}
+
+func TestFrameGuardTakesOutPings(t *testing.T) {
+	greeting := make([]byte, zmtpGreeting)
+	greeting[0], greeting[9] = 0xff, 0x7f
+	ready := zmtpFrame(0x04, []byte("\x05READY\x0bSocket-Type\x00\x00\x00\x03SUB"))
+	ping := zmtpFrame(0x04, []byte("\x04PING\x00\x0actx"))
+	longPing := append([]byte{0x06, 0, 0, 0, 0, 0, 0, 0, 7}, []byte("\x04PING\x00\x0a")...)
+	msg1 := zmtpFrame(0x01, []byte("part one"))
+	msg2 := zmtpFrame(0x00, make([]byte, 300))
+	other := zmtpFrame(0x04, []byte("\x05ERROR\x03bad"))
+
+	var stream, want []byte
+	for _, part := range [][]byte{greeting, ready, ping, msg1, msg2, longPing, other, ping} {
+		stream = append(stream, part...)
+		if !bytes.Equal(part, ping) && !bytes.Equal(part, longPing) {
+			want = append(want, part...)
+		}
+	}
+	for _, chunk := range []int{1, 2, 5, 64, len(stream)} {
+		g := frameGuard{greeting: zmtpGreeting, holdCommands: true}
+		var out []byte
+		var pings [][]byte
+		for i := 0; i < len(stream); i += chunk {
+			var p [][]byte
+			var err error
+			out, p, err = g.filter(stream[i:min(i+chunk, len(stream))], out)
+			if err != nil {
+				t.Fatalf("chunk %d: %v", chunk, err)
+			}
+			pings = append(pings, p...)
+		}
+		if !bytes.Equal(out, want) {
+			t.Fatalf("chunk %d: passed %d bytes, want %d (the stream without its PINGs)", chunk, len(out), len(want))
+		}
+		if len(pings) != 3 || string(pings[0]) != "\x00\x0actx" || string(pings[1]) != "\x00\x0a" {
+			t.Fatalf("chunk %d: pings %q", chunk, pings)
+		}
+		if !g.atBoundary() {
+			t.Fatalf("chunk %d: not at a message boundary at the end", chunk)
+		}
+	}
+}
+
+func TestFrameGuardBoundaries(t *testing.T) {
+	g := frameGuard{noLimits: true}
+	steps := []struct {
+		bytes    []byte
+		boundary bool
+	}{
+		{zmtpFrame(0x01, []byte("a")), false},
+		{zmtpFrame(0x01, []byte("b")), false},
+		{[]byte{0x00, 3, 'c'}, false}, // last frame, body incomplete
+		{[]byte("de"), true},
+		{zmtpFrame(0x04, []byte("\x04PONG")), true},
+	}
+	for i, s := range steps {
+		g.filter(s.bytes, nil)
+		if g.atBoundary() != s.boundary {
+			t.Fatalf("step %d: atBoundary %v, want %v", i, g.atBoundary(), s.boundary)
+		}
+	}
 }

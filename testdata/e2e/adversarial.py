@@ -169,6 +169,49 @@ check(times[-1] < 5, "a cell took %.1f s while a subscriber was stuck" % times[-
 alive("stuck subscriber")
 ok("stuck_subscriber_isolated")
 
+# ZMTP heartbeats (libzmq sends PING commands when HEARTBEAT_IVL is set): a
+# subscriber and a shell client that ping every 2 ms get every message intact,
+# and are never dropped for missing PONGs.
+hb_sub = ctx.socket(zmq.SUB)
+hb_sub.setsockopt(zmq.HEARTBEAT_IVL, 2)
+hb_sub.setsockopt(zmq.HEARTBEAT_TIMEOUT, 1000)
+hb_sub.setsockopt(zmq.SUBSCRIBE, b"")
+hb_sub.connect("tcp://%s:%d" % (ip, ports["iopub"]))
+hb_shell = ctx.socket(zmq.DEALER)
+hb_shell.setsockopt(zmq.HEARTBEAT_IVL, 2)
+hb_shell.setsockopt(zmq.HEARTBEAT_TIMEOUT, 1000)
+hb_shell.setsockopt(zmq.LINGER, 0)
+hb_shell.connect("tcp://%s:%d" % (ip, ports["shell"]))
+# Wait until the subscriber receives: the first request's busy proves it joined.
+while True:
+    m = good.msg("kernel_info_request")
+    good.send(hb_shell, m)
+    check(recv_reply(hb_shell) is not None, "heartbeat client: no kernel_info reply")
+    if hb_sub.poll(500):
+        break
+while hb_sub.poll(200):
+    hb_sub.recv_multipart()
+cells = 100
+ids = set()
+for i in range(cells):
+    m = good.msg("execute_request", content={"code": "sweep hard over offset -5 kHz to 5 kHz points 101", "silent": False,
+                                             "store_history": True, "user_expressions": {}, "allow_stdin": False})
+    ids.add(m["header"]["msg_id"])
+    good.send(hb_shell, m)
+    r = recv_reply(hb_shell, timeout=30)
+    check(r is not None and r["content"]["status"] == "ok", "heartbeat client: cell %d reply %r" % (i, r and r["content"]))
+idle_seen = set()
+while len(idle_seen) < cells and hb_sub.poll(10000):
+    _, msg = good.feed_identities(hb_sub.recv_multipart())
+    m = good.deserialize(msg)  # raises on a broken message
+    if m["msg_type"] == "status" and m["content"]["execution_state"] == "idle":
+        idle_seen.add(m["parent_header"].get("msg_id"))
+check(ids <= idle_seen, "heartbeat subscriber: saw %d of %d idle statuses" % (len(ids & idle_seen), cells))
+hb_sub.close(linger=0)
+hb_shell.close()
+alive("ZMTP heartbeats")
+ok("zmtp_heartbeat_pings")
+
 stuck.close()
 for s in idle:
     s.close()
