@@ -41,7 +41,9 @@
 // guarded transport accepts on its own goroutine and hands a connection over
 // only once its 10-byte ZMTP signature has arrived, bounds the handshake with
 // a deadline, refuses frames over 256 MiB (and messages over 256 MiB or 65536
-// frames) before anything is allocated, and bounds every write.
+// frames) before anything is allocated, bounds every write, and answers ZMTP
+// heartbeat PINGs itself, between messages (zmq4 answers them from its reader
+// while a writer may be halfway through a message, which breaks the stream).
 //
 // NUTATE_KERNEL_DEBUG=1 logs every request, peer and execution time to
 // standard error.
