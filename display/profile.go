@@ -106,7 +106,7 @@ func (p Profile) SVG() string {
 		s.xpad = 0.025
 	}
 	for _, g := range p.groups() {
-		pn := panel{label: axisLabel(orDefault(g[0].Quantity, "y"), g[0].Unit), degrees: isDegrees(g[0].Unit)}
+		pn := panel{label: axisLabel(orDefault(g[0].Quantity, "y"), g[0].Unit), degrees: isDegrees(g[0].Unit), magnet: g[0].Unit == ""}
 		for _, c := range g {
 			l := line{x: p.X.Values, y: c.Y, style: seriesStyle(style[c.Pulse])}
 			if pn.degrees {

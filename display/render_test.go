@@ -335,7 +335,9 @@ func TestSteps(t *testing.T) {
 	}{
 		{"held with zero ends", true, true, []float64{0, 0, 1, 1, 2, 2, 3, 3}, []float64{0, 1, 1, 2, 2, 3, 3, 0}},
 		{"held", false, true, []float64{0, 1, 1, 2, 2, 3}, []float64{1, 1, 2, 2, 3, 3}},
-		{"midpoints with zero ends", true, false, []float64{0, 0.5, 1.5, 2.5, 3}, []float64{0, 1, 2, 3, 0}},
+		{"midpoints with zero ends", true, false, []float64{0, 0, 0.5, 1.5, 2.5, 3, 3}, []float64{0, 1, 1, 2, 3, 3, 0}},
+		// Phase and frequency are not pulled to 0 at the pulse's edges.
+		{"midpoints", false, false, []float64{0, 0.5, 1.5, 2.5, 3}, []float64{1, 1, 2, 3, 3}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			x, v := steps(tm, y, tc.zero, tc.hold)
@@ -346,5 +348,90 @@ func TestSteps(t *testing.T) {
 	}
 	if x, v := steps([]float64{1e-4}, []float64{7}, true, true); !slices.Equal(x, []float64{0, 0, 2e-4, 2e-4}) || !slices.Equal(v, []float64{0, 7, 7, 0}) {
 		t.Errorf("lone sample: got %v %v, want it held from 0 to twice its midpoint", x, v)
+	}
+}
+
+// Y ranges a reader expects (common practice): magnetization in M0 units on a
+// fixed axis, other quantities with a minimum span so rounding-level variation
+// is not magnified, widened without crossing zero, phase on a quarter turn.
+func TestYRange(t *testing.T) {
+	for _, tc := range []struct {
+		name           string
+		pn             panel
+		lo, hi         float64
+		wantLo, wantHi float64 // before padding
+	}{
+		{"mxy on [0, 1]", panel{magnet: true}, 0.001, 0.02, 0, 1},
+		{"mz of an inversion on [−1, 1]", panel{magnet: true}, -0.98, 1, -1, 1},
+		{"mz of a saturation with rounding below 0", panel{magnet: true}, -1e-7, 1, 0, 1},
+		{"fully inverted mz on [−1, 0]", panel{magnet: true}, -1, -0.9, -1, 0},
+		{"unitless beyond ±1 is not magnetization", panel{magnet: true}, 2, 10, 2, 10},
+		{"bandwidth 361–368 Hz", panel{}, 361, 368, 364.5 - 36.8, 364.5 + 36.8},
+		{"wide range untouched", panel{}, 100, 4000, 100, 4000},
+		{"flip 8–65° from 0", panel{degrees: true}, 8, 65, 0, 90},
+		{"negative bandwidth-like values", panel{}, -368, -361, -364.5 - 36.8, -364.5 + 36.8},
+		{"constant", panel{}, 5, 5, 4.5, 5.5},
+		{"phase near 10° from 0", panel{degrees: true}, 9, 11, 0, 90},
+		{"phase near −10° up to 0", panel{degrees: true}, -11, -9, -90, 0},
+		{"phase near 170° on a quarter turn", panel{degrees: true}, 165, 175, 125, 215},
+		{"amplitude from 0", panel{zero: true}, 2, 9, 0, 9},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			lo, hi := tc.pn.yRange(tc.lo, tc.hi)
+			wl, wh := padRange(tc.wantLo, tc.wantHi, yPad)
+			if math.Abs(lo-wl) > 1e-9*math.Max(1, math.Abs(wl)) || math.Abs(hi-wh) > 1e-9*math.Max(1, math.Abs(wh)) {
+				t.Errorf("got [%v, %v], want [%v, %v]", lo, hi, wl, wh)
+			}
+			if lo > tc.lo || hi < tc.hi {
+				t.Errorf("range [%v, %v] does not hold the data [%v, %v]", lo, hi, tc.lo, tc.hi)
+			}
+		})
+	}
+}
+
+// Marks on one line get one label naming each (common practice for legends).
+func TestMergeMarks(t *testing.T) {
+	for _, tc := range []struct {
+		in   []string
+		want string
+	}{
+		{[]string{"a band edge", "b band edge"}, "a, b band edge"},
+		{[]string{"a band edge", "a band edge"}, "a band edge"},
+		{[]string{"edge", "half width"}, "edge / half width"},
+		{[]string{"edge", "a edge"}, "edge / a edge"},
+	} {
+		t.Run(tc.want, func(t *testing.T) {
+			if got := mergeLabels(tc.in); got != tc.want {
+				t.Errorf("mergeLabels(%q) = %q, want %q", tc.in, got, tc.want)
+			}
+		})
+	}
+	tr := func(x float64) vg.Length { return vg.Length(x) }
+	ms := []Mark{{X: 390, Label: "b band edge"}, {X: 100, Label: "a band edge"}, {X: 100.5, Label: "b band edge"}, {X: 390, Label: "a band edge"}}
+	got, rows := placeMarks(ms, tr, 0, 400, 50, 400)
+	if rows != 1 || len(got) != 2 || got[0].txt != "a, b band edge" || got[1].txt != "b, a band edge" {
+		t.Fatalf("got %+v on %d rows, want two merged labels on one row", got, rows)
+	}
+	if e := got[1].left + textStyle(markSize).Width(got[1].txt); e > 400 {
+		t.Errorf("label of a mark at the range end runs to %v, past the data area's 400", e)
+	}
+}
+
+// Where the RF is off its phase is undefined (atan2(0, 0)); the trace is left
+// out there rather than drawn at 0° (common practice).
+func TestPhaseWhereOn(t *testing.T) {
+	amp := []float64{0, 2, 3, 0, 2, 0}
+	ph := []float64{0, 90, 90, 0, -90, 0}
+	got := phaseWhereOn(ph, amp)
+	for i := range got {
+		if off := amp[i] == 0; off != math.IsNaN(got[i]) || !off && got[i] != ph[i] {
+			t.Errorf("sample %d (amplitude %v): got phase %v", i, amp[i], got[i])
+		}
+	}
+	if ph[0] != 0 {
+		t.Errorf("input changed: %v", ph)
+	}
+	if got := phaseWhereOn(ph, nil); !slices.Equal(got, ph) {
+		t.Errorf("without amplitudes: got %v, want the phase as given", got)
 	}
 }

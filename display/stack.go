@@ -18,6 +18,69 @@ type panel struct {
 	lines   []line
 	degrees bool // phase axis: ticks at multiples of 90°
 	zero    bool // the y range includes 0 (amplitudes, gradients)
+	// magnet marks a quantity in M0 units (no unit): when its values lie
+	// within [−1, 1] the axis is the fixed [0, 1], [−1, 0] or [−1, 1].
+	magnet bool
+}
+
+// Y-range rules, so a reader sees what changed and by how much rather than an
+// axis magnified to whatever the data span:
+const (
+	// yPad is the fraction of the span added above and below, so curves do not
+	// run along the frame.
+	yPad = 0.06
+	// minRelSpan is the smallest span, as a fraction of the largest |value|,
+	// shown for a quantity with a unit: a property varying by 2 % over a sweep
+	// reads as nearly constant, not as a zigzag across the panel. It matches
+	// padRange's span for a constant (±10 %), so the axis does not jump as a
+	// variation shrinks to nothing.
+	minRelSpan = 0.2
+	// minDegSpan is the smallest span of an axis in degrees: a quarter turn.
+	minDegSpan = 90
+	// magnetSlack is how far a magnetization may stray past 0 (rounding, a
+	// simulation's last digits) and still take the one-sided axis.
+	magnetSlack = 0.02
+)
+
+// yRange is the y range of the panel for data spanning [lo, hi] (lo > hi when
+// there are none): magnetization on a fixed axis, otherwise the data widened to
+// a minimum span (not crossing zero when the data do not) and padded.
+func (pn panel) yRange(lo, hi float64) (float64, float64) {
+	if !(lo <= hi) {
+		return padRange(lo, hi, yPad)
+	}
+	if pn.magnet && lo >= -1-1e-9 && hi <= 1+1e-9 {
+		switch {
+		case lo >= -magnetSlack:
+			lo, hi = 0, 1
+		case hi <= magnetSlack:
+			lo, hi = -1, 0
+		default:
+			lo, hi = -1, 1
+		}
+		return padRange(lo, hi, yPad)
+	}
+	if pn.zero {
+		lo, hi = math.Min(lo, 0), math.Max(hi, 0)
+	}
+	span := minRelSpan * math.Max(math.Abs(lo), math.Abs(hi))
+	if pn.degrees {
+		span = minDegSpan
+	}
+	if hi-lo < span {
+		mid := lo/2 + hi/2
+		nlo, nhi := mid-span/2, mid+span/2
+		// Widening keeps the data's side of zero: a flip angle of 8–65° is
+		// drawn from 0, never from −15°.
+		switch {
+		case lo >= 0 && nlo < 0:
+			nlo, nhi = 0, span
+		case hi <= 0 && nhi > 0:
+			nlo, nhi = -span, 0
+		}
+		lo, hi = nlo, nhi
+	}
+	return padRange(lo, hi, yPad)
 }
 
 // stack is a figure of panels stacked vertically over one shared x axis, with a
@@ -87,16 +150,7 @@ func (s stack) plots() []*plot.Plot {
 			_, _, a, b := l.DataRange()
 			ylo, yhi = math.Min(ylo, a), math.Max(yhi, b)
 		}
-		if pn.zero && ylo <= yhi {
-			ylo, yhi = math.Min(ylo, 0), math.Max(yhi, 0)
-		}
-		if pn.degrees && ylo <= yhi && yhi-ylo < 90 {
-			// A nearly constant phase is shown on a quarter turn, not magnified
-			// to its rounding noise.
-			mid := (ylo + yhi) / 2
-			ylo, yhi = mid-45, mid+45
-		}
-		ylo, yhi = padRange(ylo, yhi, 0.06)
+		ylo, yhi = pn.yRange(ylo, yhi)
 		p.X.Min, p.X.Max = xlo, xhi
 		p.Y.Min, p.Y.Max = ylo, yhi
 		var scale plot.Normalizer = plot.LinearScale{}
@@ -182,14 +236,36 @@ func placeMarks(ms []Mark, trX func(float64) vg.Length, lo, hi float64, x0, x1 v
 		w   vg.Length
 		txt string
 	}
-	var in []mk
+	type raw struct {
+		x   vg.Length
+		txt string
+	}
+	var rs []raw
 	for _, m := range ms {
 		if m.Label == "" || !finite(m.X) || m.X < lo || m.X > hi {
 			continue
 		}
-		in = append(in, mk{x: trX(m.X), w: ts.Width(m.Label), txt: m.Label})
+		rs = append(rs, raw{x: trX(m.X), txt: m.Label})
 	}
-	sort.SliceStable(in, func(i, j int) bool { return in[i].x < in[j].x })
+	sort.SliceStable(rs, func(i, j int) bool { return rs[i].x < rs[j].x })
+	// Marks whose lines a reader cannot tell apart (two pulses with the same
+	// band edge) get one label naming all of them, at their mean position.
+	var in []mk
+	for i := 0; i < len(rs); {
+		j := i + 1
+		for j < len(rs) && rs[j].x-rs[j-1].x <= sameMark {
+			j++
+		}
+		var sum vg.Length
+		var txts []string
+		for _, r := range rs[i:j] {
+			sum += r.x
+			txts = append(txts, r.txt)
+		}
+		txt := mergeLabels(txts)
+		in = append(in, mk{x: sum / vg.Length(j-i), w: ts.Width(txt), txt: txt})
+		i = j
+	}
 	const gap, side = 4, 2
 	var rows [][][2]vg.Length // occupied spans per row
 	free := func(r int, a, b vg.Length) bool {
@@ -238,6 +314,51 @@ func placeMarks(ms []Mark, trX func(float64) vg.Length, lo, hi float64, x0, x1 v
 	return out, len(rows)
 }
 
+// sameMark is the distance in points within which mark lines read as one.
+const sameMark = 1.5
+
+// mergeLabels joins the labels of marks at one place: repeats are dropped, and
+// labels sharing a last word or words name their subjects once each ("p1, p2
+// band edge"); others are joined with " / ".
+func mergeLabels(ls []string) string {
+	var u []string
+	for _, l := range ls {
+		if !slices.Contains(u, l) {
+			u = append(u, l)
+		}
+	}
+	if len(u) == 1 {
+		return u[0]
+	}
+	// The longest common suffix that starts at a word.
+	suf := u[0]
+	for _, l := range u[1:] {
+		for !strings.HasSuffix(l, suf) {
+			k := strings.Index(suf, " ")
+			if k < 0 {
+				suf = ""
+				break
+			}
+			suf = suf[k+1:]
+		}
+	}
+	if suf != "" {
+		var heads []string
+		for _, l := range u {
+			h := strings.TrimSpace(strings.TrimSuffix(l, suf))
+			if h == "" || !strings.HasSuffix(l, " "+suf) {
+				heads = nil
+				break
+			}
+			heads = append(heads, h)
+		}
+		if heads != nil {
+			return strings.Join(heads, ", ") + " " + suf
+		}
+	}
+	return strings.Join(u, " / ")
+}
+
 // svg renders the stack.
 func (s stack) svg() string {
 	ps := s.plots()
@@ -257,7 +378,9 @@ func (s stack) svg() string {
 	cs := plot.Align(plotRows, tiles, probe)
 	dc := ps[0].DataCanvas(cs[0][0])
 	trX, _ := ps[0].Transforms(&dc)
-	placed, markRows := placeMarks(s.marks, trX, ps[0].X.Min, ps[0].X.Max, 2, figWidth-2)
+	// Mark labels stay over the data area, so a mark at the end of the range is
+	// labelled inside the frame's width, not over the tick labels or the edge.
+	placed, markRows := placeMarks(s.marks, trX, ps[0].X.Min, ps[0].X.Max, dc.Min.X, dc.Max.X)
 
 	title := wrapText(s.title, boldStyle(titleSize), figWidth-24)
 	var headH vg.Length = headPad

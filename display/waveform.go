@@ -3,6 +3,7 @@ package display
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 )
 
@@ -93,6 +94,9 @@ func (w Waveform) SVG() string {
 				v, unit = scaled(v, 1e-3), "kHz"
 			}
 		}
+		if ser.quantity == "phase" {
+			v = phaseWhereOn(v, w.Amplitude)
+		}
 		sx, sy := steps(tx, v, ser.quantity == "amplitude" || ser.quantity == "gradient", len(tx) <= maxHeld)
 		l := line{x: sx, y: sy, style: seriesStyle(0)}
 		pn := panel{label: axisLabel(ser.quantity, unit), lines: []line{l},
@@ -109,6 +113,22 @@ func (w Waveform) SVG() string {
 	return s.svg()
 }
 
+// phaseWhereOn leaves the phase out (NaN) where the amplitude is exactly zero:
+// there it is undefined (atan2(0, 0) reads 0), and drawing it would pull the
+// trace to 0° at the ends of a windowed pulse or through its gaps.
+func phaseWhereOn(phase, amp []float64) []float64 {
+	if len(amp) < len(phase) {
+		return phase
+	}
+	out := slices.Clone(phase)
+	for i := range out {
+		if amp[i] == 0 {
+			out[i] = math.NaN()
+		}
+	}
+	return out
+}
+
 // maxHeld is the most samples drawn as held steps; beyond it a sample is under a
 // point wide and a line through the midpoints shows the same without the
 // staircase.
@@ -118,8 +138,10 @@ const maxHeld = 200
 // hardware plays when hold is set: each value holds from halfway after the
 // previous sample to halfway before the next (the first and last sample as long
 // as their neighbours' spacing; a lone sample from 0 to twice its midpoint).
-// Without hold the line runs through the midpoints. With zeroEnds the line drops
-// to 0 at the pulse's start and end (RF and gradients are off outside).
+// Without hold the line runs through the midpoints, held flat over the first and
+// last half sample so it spans the whole pulse. With zeroEnds the line also
+// drops straight to 0 at the pulse's start and end (RF and gradients are off
+// outside); without it (phase, frequency) the trace simply ends there.
 func steps(t, y []float64, zeroEnds, hold bool) (sx, sy []float64) {
 	n := min(len(t), len(y))
 	if n == 0 {
@@ -143,12 +165,18 @@ func steps(t, y []float64, zeroEnds, hold bool) (sx, sy []float64) {
 	if zeroEnds {
 		sx, sy = append(sx, b[0]), append(sy, 0)
 	}
+	if !hold && b[0] < t[0] {
+		sx, sy = append(sx, b[0]), append(sy, y[0])
+	}
 	for i := range n {
 		if hold {
 			sx, sy = append(sx, b[i], b[i+1]), append(sy, y[i], y[i])
 		} else {
 			sx, sy = append(sx, t[i]), append(sy, y[i])
 		}
+	}
+	if !hold && b[n] > t[n-1] {
+		sx, sy = append(sx, b[n]), append(sy, y[n-1])
 	}
 	if zeroEnds {
 		sx, sy = append(sx, b[n]), append(sy, 0)
