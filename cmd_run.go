@@ -36,10 +36,24 @@ func cmdRun(args []string) int {
 		fmt.Fprintln(os.Stderr, "usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...")
 		fs.PrintDefaults()
 	}
-	if err := fs.Parse(args); err != nil {
-		return 2
+	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
+	// all are parsed before any file is touched.
+	var files []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return 2
+		}
+		rest := fs.Args()
+		if len(rest) == 0 {
+			break
+		}
+		if rest[0] == "--" {
+			files = append(files, rest[1:]...)
+			break
+		}
+		files = append(files, rest[0])
+		args = rest[1:]
 	}
-	files := fs.Args()
 	if len(files) == 0 {
 		fs.Usage()
 		return 2

@@ -172,3 +172,22 @@ func TestRunJSON(t *testing.T) {
 		t.Error("the sweep gave no SVG plot")
 	}
 }
+
+// TestRunFlagsAfterFiles: flags after the file name are flags, parsed before any
+// file is touched; the source notebook is left as it was.
+func TestRunFlagsAfterFiles(t *testing.T) {
+	dir := t.TempDir()
+	f := writeNotebook(t, dir, "print 1 kHz in uT")
+	before, _ := os.ReadFile(f)
+	out := filepath.Join(dir, "out.ipynb")
+	if code := cmdRun([]string{f, "--output", out}); code != 0 {
+		t.Fatalf("exit %d", code)
+	}
+	after, _ := os.ReadFile(f)
+	if !bytes.Equal(before, after) {
+		t.Error("the source notebook was rewritten although --output was given after it")
+	}
+	if raw, err := os.ReadFile(out); err != nil || !bytes.Contains(raw, []byte("23.48")) {
+		t.Errorf("--output file not written with the result: %v", err)
+	}
+}
