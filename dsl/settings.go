@@ -100,6 +100,11 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 			if !(x > 0) || math.IsInf(x, 0) {
 				return nil, errAt(p, "%s must be positive, got %s", name, v)
 			}
+			if name == "t1" || name == "t2" {
+				if err := checkRelaxTime(name, v, p); err != nil {
+					return nil, err
+				}
+			}
 			switch name {
 			case "t1":
 				s.t1 = x
@@ -139,4 +144,24 @@ func b1Factor(v Value, peak, gammaBar float64) (float64, bool) {
 		return v.Q.V / math.Abs(gammaBar) / peak, true
 	}
 	return 0, false
+}
+
+// minRelaxTime is the shortest T1 or T2 accepted. Shorter times are far below any
+// tissue's or sample's and below any dwell, where the decay over one sample
+// underflows; 0 would be read by the physics layer as "no relaxation".
+const minRelaxTime = 1e-9
+
+// checkRelaxTime refuses a relaxation time (what names the setting or axis) that is
+// not positive, not finite, or below minRelaxTime.
+func checkRelaxTime(what string, v Value, p Pos) error {
+	x := v.Q.V
+	switch {
+	case !(x > 0):
+		return errAt(p, "%s must be positive, got %s", what, v)
+	case math.IsInf(x, 0):
+		return errAt(p, "%s must be finite, got %s", what, v)
+	case x < minRelaxTime:
+		return errAt(p, "%s must be at least 1 ns, got %s", what, v)
+	}
+	return nil
 }

@@ -99,8 +99,16 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 			ok = from.Q.D == dimLength
 		case "t1", "t2":
 			ok = from.Q.D == dimTime
-			if ok && !(from.Q.V > 0 && to.Q.V > 0) {
-				return nil, errAt(ax.From.Position(), "%s axis must stay above 0 s, got %s to %s", a.kind, from, to)
+			if ok && to.Q.D == dimTime {
+				// Both ends are checked: the physics layer reads 0 as "no
+				// relaxation", and times far below a sample make its decay
+				// factors underflow.
+				if err := checkRelaxTime(a.kind+" axis", from, ax.From.Position()); err != nil {
+					return nil, err
+				}
+				if err := checkRelaxTime(a.kind+" axis", to, ax.To.Position()); err != nil {
+					return nil, err
+				}
 			}
 		}
 		if !ok {
