@@ -372,6 +372,7 @@ func TestYRange(t *testing.T) {
 		{"negative bandwidth-like values", panel{}, -368, -361, -364.5 - 36.8, -364.5 + 36.8},
 		{"constant", panel{}, 5, 5, 4.5, 5.5},
 		{"phase near 10° from 0", panel{degrees: true}, 9, 11, 0, 90},
+		{"phase 0 centred", panel{degrees: true}, 0, 0, -45, 45},
 		{"phase near −10° up to 0", panel{degrees: true}, -11, -9, -90, 0},
 		{"phase near 170° on a quarter turn", panel{degrees: true}, 165, 175, 125, 215},
 		{"amplitude from 0", panel{zero: true}, 2, 9, 0, 9},

@@ -73,9 +73,9 @@ func (pn panel) yRange(lo, hi float64) (float64, float64) {
 		// Widening keeps the data's side of zero: a flip angle of 8–65° is
 		// drawn from 0, never from −15°.
 		switch {
-		case lo >= 0 && nlo < 0:
+		case lo >= 0 && hi > 0 && nlo < 0:
 			nlo, nhi = 0, span
-		case hi <= 0 && nhi > 0:
+		case hi <= 0 && lo < 0 && nhi > 0:
 			nlo, nhi = -span, 0
 		}
 		lo, hi = nlo, nhi
