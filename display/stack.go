@@ -19,7 +19,7 @@ type panel struct {
 	degrees bool // phase axis: ticks at multiples of 90°
 	zero    bool // the y range includes 0 (amplitudes, gradients)
 	// magnet marks a quantity in M0 units (no unit): when its values lie
-	// within [−1, 1] the axis is the fixed [0, 1], [−1, 0] or [−1, 1].
+	// within [−1, 1] the axis is the fixed [0, 1] or [−1, 1].
 	magnet bool
 }
 
@@ -49,16 +49,14 @@ func (pn panel) yRange(lo, hi float64) (float64, float64) {
 	if !(lo <= hi) {
 		return padRange(lo, hi, yPad)
 	}
-	if pn.magnet && lo >= -1-1e-9 && hi <= 1+1e-9 {
-		switch {
-		case lo >= -magnetSlack:
-			lo, hi = 0, 1
-		case hi <= magnetSlack:
-			lo, hi = -1, 0
-		default:
-			lo, hi = -1, 1
+	if pn.magnet && lo >= -1-1e-6 && hi <= 1+1e-6 {
+		// Magnitudes (mxy, echo, mz of an excitation) on [0, 1]; anything that
+		// goes negative on the full [−1, 1], so an inversion shows where Mz
+		// stands against both +M0 and −M0.
+		if lo >= -magnetSlack {
+			return padRange(0, 1, yPad)
 		}
-		return padRange(lo, hi, yPad)
+		return padRange(-1, 1, yPad)
 	}
 	if pn.zero {
 		lo, hi = math.Min(lo, 0), math.Max(hi, 0)
