@@ -216,7 +216,7 @@ func readWaveformCSV(name, text string, gammaBar float64) (shape.Samples, float6
 			}
 		}
 		if len(fields) != len(cols) {
-			return smp, 0, fmt.Errorf("%s row %d: got %d columns, want %d", name, row, len(fields), len(cols))
+			return smp, 0, fmt.Errorf("%s row %d: got %s, want %d", name, row, plural(len(fields), "column"), len(cols))
 		}
 		for ci, f := range fields {
 			v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
