@@ -52,8 +52,9 @@ func (l *errorList) add(p Pos, format string, args ...any) {
 
 // CellError is the error Exec returns: one or more positioned faults (several parse
 // errors, one per line, sorted; or the single runtime error that stopped the cell).
-// Stmt is the byte offset where the failing statement starts (for a runtime error),
-// or -1 when the cell did not parse and nothing ran.
+// Stmt is the byte offset where the failing statement starts: for a runtime error
+// the statement that failed, for syntax errors the first faulty statement (the
+// statements before it have run). It is -1 when nothing ran.
 type CellError struct {
 	Errs []*Error
 	Stmt int

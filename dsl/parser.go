@@ -29,6 +29,7 @@ type parser struct {
 	i     int
 	errs  *errorList
 	depth int // nesting of expressions, bounded so that no input exhausts the stack
+	bad   int // offset where the first faulty statement starts; -1: none
 }
 
 // maxNesting bounds parentheses and unary signs in one expression.
@@ -37,9 +38,31 @@ const maxNesting = 100
 type bailout struct{}
 
 func parse(src string) ([]Stmt, []*Error) {
-	errs := &errorList{src: src}
-	toks := tokenize(src, errs)
-	p := &parser{src: src, toks: toks, errs: errs}
+	stmts, errs, _ := parseCell(src)
+	return stmts, errs
+}
+
+// parseCell parses src and also returns cut, the offset before which every
+// statement parsed cleanly (len(src) when there are no errors): the statements
+// that start before cut may run although the cell has syntax errors.
+func parseCell(src string) (stmts []Stmt, errs []*Error, cut int) {
+	el := &errorList{src: src}
+	toks := tokenize(src, el)
+	p := &parser{src: src, toks: toks, errs: el, bad: -1}
+	stmts = p.statements()
+	errs = sortErrors(el.errs)
+	cut = len(src)
+	if p.bad >= 0 {
+		cut = p.bad
+	}
+	if len(errs) > 0 {
+		// A scanner fault is cut at the start of its line.
+		cut = min(cut, strings.LastIndexByte(src[:min(errs[0].Pos.Offset, len(src))], '\n')+1)
+	}
+	return stmts, errs, cut
+}
+
+func (p *parser) statements() []Stmt {
 	var stmts []Stmt
 	for p.tok().Kind != tEOF {
 		if p.tok().Kind == tNewline {
@@ -50,7 +73,7 @@ func parse(src string) ([]Stmt, []*Error) {
 			stmts = append(stmts, s)
 		}
 	}
-	return stmts, sortErrors(errs.errs)
+	return stmts
 }
 
 func (p *parser) tok() token { return p.toks[p.i] }
@@ -134,10 +157,14 @@ func (p *parser) skipStatement() {
 }
 
 func (p *parser) statement() (s Stmt) {
+	start := p.tok().Pos.Offset
 	defer func() {
 		if r := recover(); r != nil {
 			if _, ok := r.(bailout); !ok {
 				panic(r)
+			}
+			if p.bad < 0 {
+				p.bad = start
 			}
 			s = nil
 			p.skipStatement()

@@ -64,25 +64,29 @@ func NewSession(dir string) *Session {
 }
 
 // Exec runs the statements of src in order, sending each output to sink. The whole
-// cell is parsed first: syntax errors (one per line, sorted) stop it before anything
-// runs. At run time an error stops the cell; earlier statements' outputs and state
-// stay, and the failing statement changes nothing. The error has Traceback()
+// cell is parsed first; with syntax errors, the statements before the first faulty
+// one run, then the syntax errors (one per line, sorted) are returned. At run time an
+// error stops the cell; earlier statements' outputs and state stay, and the failing
+// statement changes nothing. The error has Traceback()
 // []string; after a cancellation errors.Is(err, context.Canceled) holds.
 func (s *Session) Exec(ctx context.Context, src string, sink Sink) (err error) {
 	if len(src) > maxCell {
 		return &CellError{Errs: []*Error{{Pos: Pos{0, 1, 1}, Msg: fmt.Sprintf("cell has %d bytes, over the limit of %d", len(src), maxCell), Line: lineOf(src, 0)}}, Stmt: -1}
 	}
-	stmts, perrs := parse(src)
-	if len(perrs) > 0 {
-		return &CellError{Errs: perrs, Stmt: -1}
-	}
+	stmts, perrs, cut := parseCell(src)
 	for _, st := range stmts {
+		if len(perrs) > 0 && st.Position().Offset >= cut {
+			break
+		}
 		if e := ctx.Err(); e != nil {
 			return cancelled(src, st.Position(), e)
 		}
 		if err := s.run(ctx, src, st, sink); err != nil {
 			return err
 		}
+	}
+	if len(perrs) > 0 {
+		return &CellError{Errs: perrs, Stmt: cut}
 	}
 	return nil
 }

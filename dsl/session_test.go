@@ -45,7 +45,7 @@ func TestFailingStatementLeavesState(t *testing.T) {
 		"pulse p = rect(duration = 1 kHz, flip = 90 deg)",
 		"pulse p = sinc(duration = 1 ms, tbw = 4)",
 		"sweep p over offset -1 kHz to 1 kHz points 11 show nonsense",
-		"reset\nprint 1 +", // a parse error: nothing runs, not even reset
+		"print 1 +\nreset", // a parse error in the first statement: nothing runs, not even reset
 	}
 	for _, c := range cells {
 		var outs int
