@@ -85,9 +85,15 @@ type Mark struct {
 // position, T1/T2, a shape argument...). Curves of different quantities go on
 // separate stacked panels sharing X; curves of one quantity overlay, one colour
 // and dash pattern per pulse, with a legend when there are several pulses. Marks
-// are dashed vertical lines on every panel, labelled above the top one. Phase
-// curves (unit "deg") get ticks at multiples of 90° and are not joined across a
-// wrap.
+// are dashed vertical lines on every panel, labelled above the top one; marks
+// on one line share one label ("p1, p2 band edge"). Phase curves (unit "deg")
+// get ticks at multiples of 90° and are not joined across a wrap.
+//
+// Y ranges: a quantity without a unit whose values lie within [−1, 1] is
+// magnetization in M0 units and is drawn on [0, 1] (never negative) or [−1, 1];
+// other quantities are drawn over at least 20 % of their largest magnitude (a
+// quarter turn for degrees), widened without crossing zero, so that a property
+// varying by rounding-level amounts over a sweep reads as nearly constant.
 type Profile struct {
 	Title   string
 	X       Axis
@@ -115,6 +121,9 @@ type Map struct {
 
 // Waveform is a pulse's samples against time for `describe`: amplitude (µT),
 // phase (deg), frequency offset (Hz) and gradient (mT/m), any of which may be nil.
+// Amplitude and gradient are drawn down to 0 at the pulse's ends (off outside);
+// phase and frequency are not, and the phase is left out where the amplitude is
+// exactly 0 (undefined there).
 type Waveform struct {
 	Title     string
 	Time      []float64 // s, sample midpoints
