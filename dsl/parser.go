@@ -3,6 +3,7 @@ package dsl
 import (
 	"strconv"
 	"strings"
+	"unicode/utf8"
 )
 
 // statementKeywords start statements; each has a parse function below.
@@ -92,7 +93,14 @@ func (p *parser) fail(pos Pos, format string, args ...any) {
 
 func (p *parser) expected(what string) {
 	t := p.tok()
-	p.fail(t.Pos, "expected %s, got %s", what, t.describe())
+	pos := t.Pos
+	if t.Kind == tEOF && p.i > 0 {
+		// Point just after the last token, inside the input, not at a line
+		// past its end.
+		prev := p.toks[p.i-1]
+		pos = Pos{prev.End, prev.Pos.Line, prev.Pos.Col + utf8.RuneCountInString(prev.Text)}
+	}
+	p.fail(pos, "expected %s, got %s", what, t.describe())
 }
 
 func (p *parser) isWord(w string) bool {
@@ -404,19 +412,7 @@ func (p *parser) help(kw token) Stmt {
 func (p *parser) call(fun Ident) *Call {
 	c := &Call{Fun: fun}
 	open := p.expect(tLParen, "`(`")
-	defer func() {
-		// A fault past the line of an unclosed `(` is reported at the `(`.
-		if r := recover(); r != nil {
-			if _, ok := r.(bailout); ok && len(p.errs.errs) > 0 {
-				last := p.errs.errs[len(p.errs.errs)-1]
-				if t := p.tok(); (t.Kind == tEOF || last.Pos.Line > open.Pos.Line) && !p.closedLater(open) {
-					p.errs.errs = p.errs.errs[:len(p.errs.errs)-1]
-					p.errs.add(open.Pos, "`(` is never closed: expected `)`")
-				}
-			}
-			panic(r)
-		}
-	}()
+	defer p.unclosed(open)
 	for p.tok().Kind != tRParen {
 		a := &Arg{}
 		if p.tok().Kind == tIdent && p.peek(1).Kind == tAssign {
@@ -535,6 +531,7 @@ func (p *parser) primary() Expr {
 		return &id
 	case tLParen:
 		p.i++
+		defer p.unclosed(t)
 		x := p.expr()
 		p.expect(tRParen, "`)`")
 		return x
@@ -574,7 +571,25 @@ func (p *parser) unit(required bool) *UnitRef {
 	return &UnitRef{P: t.Pos, Name: t.Text}
 }
 
-// closedLater reports whether the `(` at open has a matching `)` in the cell.
+// unclosed, deferred by a parse function that read the `(` open, turns a fault at
+// the end of the statement or past the line of an unclosed `(` into one at the `(`.
+func (p *parser) unclosed(open token) {
+	r := recover()
+	if r == nil {
+		return
+	}
+	if _, ok := r.(bailout); ok && len(p.errs.errs) > 0 {
+		last := p.errs.errs[len(p.errs.errs)-1]
+		t := p.tok()
+		if (t.Kind == tEOF || t.Kind == tNewline || last.Pos.Line > open.Pos.Line) && !p.closedLater(open) {
+			p.errs.errs = p.errs.errs[:len(p.errs.errs)-1]
+			p.errs.add(open.Pos, "`(` is never closed: expected `)`")
+		}
+	}
+	panic(r)
+}
+
+// closedLater reports whether the `(` at open has a matching `)` in its statement.
 func (p *parser) closedLater(open token) bool {
 	depth := 0
 	for _, t := range p.toks {
@@ -582,6 +597,8 @@ func (p *parser) closedLater(open token) bool {
 			continue
 		}
 		switch t.Kind {
+		case tNewline, tEOF:
+			return false
 		case tLParen:
 			depth++
 		case tRParen:

@@ -140,6 +140,13 @@ func (s *scanner) scan() token {
 		case r == '\n' || r == ';':
 			p := s.pos()
 			s.advance()
+			if r == '\n' && (s.depth > 0 || continues(s.last)) && s.last != tNewline && s.keywordLineFollows() {
+				// A statement keyword cannot continue an expression: the line
+				// before is unfinished and the parser says so there; an open `(`
+				// is left to it as well, so that later lines parse on their own.
+				s.depth = 0
+				return token{Kind: tNewline, Pos: p, End: s.off, Text: string(r)}
+			}
 			if r == '\n' && (s.depth > 0 || continues(s.last) || s.last == tNewline) {
 				continue
 			}
@@ -221,6 +228,26 @@ func (s *scanner) scan() token {
 		return mk(tPercent)
 	}
 	return mk(tIllegal)
+}
+
+// keywordLineFollows reports whether the line starting at the current offset opens
+// with a statement keyword.
+func (s *scanner) keywordLineFollows() bool {
+	rest := strings.TrimLeft(s.src[s.off:], " \t\r\v\f")
+	n := 0
+	for n < len(rest) {
+		r, w := utf8.DecodeRuneInString(rest[n:])
+		if !isIdentPart(r) || n == 0 && !isIdentStart(r) {
+			break
+		}
+		n += w
+	}
+	for _, k := range statementKeywords {
+		if rest[:n] == k {
+			return true
+		}
+	}
+	return false
 }
 
 func (s *scanner) digitAfter(k int) bool {
