@@ -436,3 +436,26 @@ func TestPhaseWhereOn(t *testing.T) {
 		t.Errorf("without amplitudes: got %v, want the phase as given", got)
 	}
 }
+
+// A mark at the end of the range is drawn inside the frame, not under it; a
+// range without such marks keeps its curves up to the frame.
+func TestMarkAtRangeEnd(t *testing.T) {
+	x := linspace(-1000, 1000, 101)
+	y := make([]float64, len(x))
+	for _, tc := range []struct {
+		name  string
+		marks []Mark
+		inset bool
+	}{
+		{"marks at both ends", []Mark{{X: -1000, Label: "a band edge"}, {X: 1000, Label: "a band edge"}}, true},
+		{"marks inside", []Mark{{X: -500, Label: "a band edge"}}, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			s := stack{panels: []panel{{lines: []line{{x: x, y: y}}}}, marks: tc.marks}
+			p := s.plots()[0]
+			if got := p.X.Min < -1000 && p.X.Max > 1000; got != tc.inset {
+				t.Errorf("x range [%v, %v]: inset %v, want %v", p.X.Min, p.X.Max, got, tc.inset)
+			}
+		})
+	}
+}

@@ -133,6 +133,10 @@ func (s stack) plots() []*plot.Plot {
 	if s.logX && !(xlo > 0 && xhi > xlo) {
 		s.logX = false // nothing a log axis can show: fall back to linear
 	}
+	if s.xpad == 0 && !s.logX && s.markAtEnd(xlo, xhi) {
+		// A mark on the range's end would hide under the frame.
+		s.xpad = 0.015
+	}
 	switch {
 	case s.logX:
 		f := math.Pow(xhi/xlo, s.xpad)
@@ -184,6 +188,18 @@ func (s stack) plots() []*plot.Plot {
 		ps[i] = p
 	}
 	return ps
+}
+
+// markAtEnd reports whether a mark lies at (within 0.5 % of) an end of the
+// x range [lo, hi].
+func (s stack) markAtEnd(lo, hi float64) bool {
+	tol := 0.005 * (hi - lo)
+	for _, m := range s.marks {
+		if finite(m.X) && (math.Abs(m.X-lo) <= tol || math.Abs(m.X-hi) <= tol) {
+			return true
+		}
+	}
+	return false
 }
 
 // marks draws dashed vertical lines at the marks inside the x range.
