@@ -452,7 +452,8 @@ func TestMarkAtRangeEnd(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			s := stack{panels: []panel{{lines: []line{{x: x, y: y}}}}, marks: tc.marks}
-			p := s.plots()[0]
+			ps, _ := s.plots()
+			p := ps[0]
 			if got := p.X.Min < -1000 && p.X.Max > 1000; got != tc.inset {
 				t.Errorf("x range [%v, %v]: inset %v, want %v", p.X.Min, p.X.Max, got, tc.inset)
 			}

@@ -112,8 +112,9 @@ func panelHeightFor(n int) vg.Length {
 	return 1.25 * vg.Inch
 }
 
-// plots builds the gonum plots of the panels, all on one x range.
-func (s stack) plots() []*plot.Plot {
+// plots builds the gonum plots of the panels, all on one x range, and returns
+// them with the marks inside the data's x range (those that are drawn).
+func (s stack) plots() ([]*plot.Plot, []Mark) {
 	for i := range s.panels {
 		s.panels[i].lines = slices.Clone(s.panels[i].lines)
 		for k := range s.panels[i].lines {
@@ -133,6 +134,14 @@ func (s stack) plots() []*plot.Plot {
 	if s.logX && !(xlo > 0 && xhi > xlo) {
 		s.logX = false // nothing a log axis can show: fall back to linear
 	}
+	// Marks are shown over the data's range only (not over the padding).
+	var shown []Mark
+	for _, m := range s.marks {
+		if tol := 1e-9 * (xhi - xlo); m.X >= xlo-tol && m.X <= xhi+tol {
+			shown = append(shown, m)
+		}
+	}
+	s.marks = shown
 	if s.xpad == 0 && !s.logX && s.markAtEnd(xlo, xhi) {
 		// A mark on the range's end would hide under the frame.
 		s.xpad = 0.015
@@ -187,7 +196,7 @@ func (s stack) plots() []*plot.Plot {
 		p.Add(frame{})
 		ps[i] = p
 	}
-	return ps
+	return ps, s.marks
 }
 
 // markAtEnd reports whether a mark lies at (within 0.5 % of) an end of the
@@ -375,7 +384,7 @@ func mergeLabels(ls []string) string {
 
 // svg renders the stack.
 func (s stack) svg() string {
-	ps := s.plots()
+	ps, shown := s.plots()
 	n := len(ps)
 	ph := panelHeightFor(n)
 	bodyH := vg.Length(n)*ph + 0.35*vg.Inch
@@ -394,7 +403,7 @@ func (s stack) svg() string {
 	trX, _ := ps[0].Transforms(&dc)
 	// Mark labels stay over the data area, so a mark at the end of the range is
 	// labelled inside the frame's width, not over the tick labels or the edge.
-	placed, markRows := placeMarks(s.marks, trX, ps[0].X.Min, ps[0].X.Max, dc.Min.X, dc.Max.X)
+	placed, markRows := placeMarks(shown, trX, ps[0].X.Min, ps[0].X.Max, dc.Min.X, dc.Max.X)
 
 	title := wrapText(s.title, boldStyle(titleSize), figWidth-24)
 	var headH vg.Length = headPad
