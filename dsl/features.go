@@ -3,6 +3,8 @@ package dsl
 import (
 	"math"
 	"strings"
+
+	"nutate/physics/shape"
 )
 
 // features summarize a long curve for the table under a plot.
@@ -13,11 +15,52 @@ type features struct {
 	passRipple, stopRipple float64
 }
 
+// curveLevels gives the physical levels a magnetization curve's half level lies
+// between: base, the value far outside the band (for a b1 axis, at b1 = 0), which
+// is the start state; and target, the pass-band value where the design fixes it
+// (mz of a pulse of nominal flip θ from ±z: Mz0·cos θ; inversion −Mz0; saturation 0),
+// NaN to take the curve's extreme farthest from base. base is NaN where the axis
+// has no such baseline (t1, t2, shape arguments) or the quantity is not
+// magnetization.
+func curveLevels(q, axis string, start [3]float64, p *shape.Pulse) (base, target float64) {
+	base, target = math.NaN(), math.NaN()
+	if axis != "offset" && axis != "b1" && axis != "position" {
+		return base, target
+	}
+	switch q {
+	case "mx":
+		base = start[0]
+	case "my":
+		base = start[1]
+	case "mz":
+		base = start[2]
+		if start[0] != 0 || start[1] != 0 || p == nil {
+			break
+		}
+		switch {
+		case !math.IsNaN(p.Flip) && !p.Adiabatic && p.Role != shape.RoleSaturate:
+			target = start[2] * math.Cos(p.Flip)
+		case p.Role == shape.RoleInvert:
+			target = -start[2]
+		case p.Role == shape.RoleSaturate:
+			target = 0
+		}
+	case "mxy":
+		base = math.Hypot(start[0], start[1])
+	case "echo":
+		base = 0 // half maximum of the echo
+	}
+	return base, target
+}
+
 // curveFeatures finds the extremes, the crossings of the half level (midway
-// between the baseline, the mean of the two ends, and the main extreme), the width
-// between the crossings around the extreme, and the ripples inside and outside
-// that band. Crossings are interpolated linearly between points.
-func curveFeatures(x, y []float64, phase bool) features {
+// between base and the pass-band level: target, or when NaN the extreme farthest
+// from base), the width between the crossings around that extreme, and the
+// ripples inside and outside that band. Crossings are interpolated linearly
+// between points. With base NaN only the extremes are given; when the curve does
+// not pass the half level and come back on both sides inside the window the
+// width is NaN.
+func curveFeatures(x, y []float64, base, target float64) features {
 	f := features{min: math.NaN(), max: math.NaN(), width: math.NaN(), passRipple: math.NaN(), stopRipple: math.NaN(), crossings: "—"}
 	n := len(y)
 	if n == 0 {
@@ -33,15 +76,25 @@ func curveFeatures(x, y []float64, phase bool) features {
 		}
 	}
 	f.min, f.minAt, f.max, f.maxAt = y[imin], x[imin], y[imax], x[imax]
-	if phase || n < 3 || f.max-f.min < 1e-9 {
+	if math.IsNaN(base) || n < 3 || f.max-f.min < 1e-9 {
 		return f
 	}
-	base := (y[0] + y[n-1]) / 2
 	ext := imax
 	if math.Abs(y[imin]-base) > math.Abs(y[imax]-base)+tieTol(y[imax]) {
 		ext = imin
 	}
-	half := (base + y[ext]) / 2
+	level := target
+	if math.IsNaN(level) {
+		level = y[ext]
+	} else if level < base {
+		ext = imin
+	} else {
+		ext = imax
+	}
+	if math.Abs(level-base) < 1e-6 {
+		return f
+	}
+	half := (base + level) / 2
 	cross := func(i int) float64 { // crossing between i and i+1
 		a, b := y[i]-half, y[i+1]-half
 		if a == b {
@@ -62,7 +115,10 @@ func curveFeatures(x, y []float64, phase bool) features {
 	if len(all) > 0 {
 		f.crossings = strings.Join(all, ", ")
 	}
-	side := func(v float64) bool { return (v-half)*(y[ext]-half) > 0 }
+	side := func(v float64) bool { return (v-half)*(level-half) > 0 }
+	if !side(y[ext]) {
+		return f // the curve never passes the half level
+	}
 	lo, hi := ext, ext
 	for lo > 0 && side(y[lo-1]) {
 		lo--
@@ -102,4 +158,73 @@ func curveFeatures(x, y []float64, phase bool) features {
 	}
 	f.stopRipple = stop
 	return f
+}
+
+// phaseFeatures fits a line to the unwrapped phase (deg) by least squares over
+// the band: where mag (|Mxy|, may be nil) is at least half its maximum, the run of
+// points around the maximum; the whole axis when mag is nil. It returns the slope
+// (deg per x unit), the largest deviation from the line (deg) and the band's ends.
+// NaN when the band has fewer than 3 points.
+func phaseFeatures(x, phase, mag []float64) (slope, dev, x0, x1 float64) {
+	slope, dev, x0, x1 = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+	n := len(phase)
+	lo, hi := 0, n-1
+	if len(mag) == n && n > 0 {
+		im := 0
+		for i, v := range mag {
+			if v > mag[im] {
+				im = i
+			}
+		}
+		h := mag[im] / 2
+		if !(h > 0) {
+			return
+		}
+		lo, hi = im, im
+		for lo > 0 && mag[lo-1] >= h {
+			lo--
+		}
+		for hi < n-1 && mag[hi+1] >= h {
+			hi++
+		}
+	}
+	if hi-lo+1 < 3 {
+		return
+	}
+	// Unwrap: successive points differ by at most half a turn.
+	u := make([]float64, 0, hi-lo+1)
+	prev := phase[lo]
+	acc := phase[lo]
+	for i := lo; i <= hi; i++ {
+		if i > lo {
+			d := phase[i] - prev
+			d -= 360 * math.Round(d/360)
+			acc += d
+			prev = phase[i]
+		}
+		u = append(u, acc)
+	}
+	// Least-squares line through (x, u).
+	var sx, su float64
+	m := float64(len(u))
+	for k, v := range u {
+		sx += x[lo+k]
+		su += v
+	}
+	mx, mu := sx/m, su/m
+	var sxx, sxu float64
+	for k, v := range u {
+		dx := x[lo+k] - mx
+		sxx += dx * dx
+		sxu += dx * (v - mu)
+	}
+	if sxx == 0 {
+		return
+	}
+	slope = sxu / sxx
+	dev = 0
+	for k, v := range u {
+		dev = math.Max(dev, math.Abs(v-(mu+slope*(x[lo+k]-mx))))
+	}
+	return slope, dev, x[lo], x[hi]
 }

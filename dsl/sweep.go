@@ -315,7 +315,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return nil
 	}
-	ev.emit(profileOutput(title, axes[0], curves, defs, ev.st))
+	ev.emit(profileOutput(title, axes[0], curves, defs, ev.st, set.start))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 	return nil
 }
@@ -728,7 +728,7 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 }
 
 // profileOutput draws the curves of a one-axis sweep with its summary.
-func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state) display.Bundle {
+func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64) display.Bundle {
 	x := a.display()
 	prof := display.Profile{
 		Title: title,
@@ -738,7 +738,7 @@ func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*puls
 		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Unit: unitLabel(c.quantity.Unit), Y: c.values})
 	}
 	prof.Marks = bandMarks(a, defs, st)
-	prof.Summary = summaryTable(title, a, x, curves)
+	prof.Summary = summaryTable(title, a, x, curves, defs, start)
 	return profileBundle(prof)
 }
 
@@ -785,8 +785,9 @@ func unitLabel(u string) string {
 }
 
 // summaryTable lists up to 50 points row by row; longer curves are summarized by
-// their features.
-func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData) display.Table {
+// their features (start is the initial magnetization, the baseline of the half
+// levels).
+func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, defs []*pulseDef, start [3]float64) display.Table {
 	if len(x) <= 50 {
 		t := display.Table{Title: title, Columns: []display.Column{{Name: a.kind, Unit: unitLabel(a.unit)}}}
 		for _, c := range curves {
@@ -811,13 +812,52 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData) 
 		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
 			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple"}, {Name: "stop ripple"}},
 	}
+	hasPhase := false
 	for _, c := range curves {
-		f := curveFeatures(x, c.values, c.quantity.Name == "phase")
-		t.Rows = append(t.Rows, []string{c.pulse, c.quantity.Name,
-			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
-			fmtCellOpt(f.width), f.crossings, fmtCellOpt(f.passRipple), fmtCellOpt(f.stopRipple)})
+		hasPhase = hasPhase || c.quantity.Name == "phase"
 	}
-	t.Notes = append([]string{"width at half: distance between the half-level crossings around the main peak or dip; ripples are peak-to-peak inside the central half of that band and the largest excursion from the baseline outside it."}, energyNote(curves)...)
+	if hasPhase {
+		t.Columns = append(t.Columns, display.Column{Name: "phase slope", Unit: "deg/" + unitLabel(a.unit)}, display.Column{Name: "phase off linear", Unit: "deg"})
+	}
+	var notes []string
+	for _, c := range curves {
+		var p *shape.Pulse
+		for _, d := range defs {
+			if d.Name == c.pulse {
+				p = d.Pulse
+			}
+		}
+		if c.quantity.Name == "phase" {
+			var mag []float64
+			for _, m := range curves {
+				if m.pulse == c.pulse && m.quantity.Name == "mxy" {
+					mag = m.values
+				}
+			}
+			slope, dev, x0, x1 := phaseFeatures(x, c.values, mag)
+			row := []string{c.pulse, c.quantity.Name, "—", "—", "—", "—", "—", "—", fmtCellOpt(slope), fmtCellOpt(dev)}
+			t.Rows = append(t.Rows, row)
+			if !math.IsNaN(slope) {
+				band := "the whole axis (show mxy as well to fit over the band only)"
+				if mag != nil {
+					band = "the band where mxy is at least half its maximum"
+				}
+				notes = append(notes, fmt.Sprintf("%s phase: unwrapped, fitted by a line over %s, %s to %s %s; \"off linear\" is the largest deviation from that line.", c.pulse, band, formatNumber(roundSig(x0, 5)), formatNumber(roundSig(x1, 5)), unitLabel(a.unit)))
+			}
+			continue
+		}
+		base, target := curveLevels(c.quantity.Name, a.kind, start, p)
+		f := curveFeatures(x, c.values, base, target)
+		row := []string{c.pulse, c.quantity.Name,
+			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
+			fmtCellOpt(f.width), f.crossings, fmtCellOpt(f.passRipple), fmtCellOpt(f.stopRipple)}
+		if hasPhase {
+			row = append(row, "—", "—")
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	t.Notes = append([]string{"half level: midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's, e.g. mz = cos flip or −1 for inversion; otherwise the curve's extreme, so half maximum for mxy and echo); width at half: distance between the crossings around the band, \"—\" when the curve does not pass the half level and come back on both sides inside the window; ripples are peak-to-peak inside the central half of that band and the largest excursion from the baseline outside it."}, notes...)
+	t.Notes = append(t.Notes, energyNote(curves)...)
 	return t
 }
 
