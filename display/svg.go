@@ -397,7 +397,10 @@ func finishSVG(c *vgsvg.Canvas) string {
 	s = strings.ReplaceAll(s, "font-family:Liberation Sans;font-variant:normal;", "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;")
 	s = strings.ReplaceAll(s, ";font-weight:normal;font-style:normal", "")
 	s = strings.ReplaceAll(s, ";font-style:normal", "")
-	s = strings.ReplaceAll(s, `<image x=`, `<image preserveAspectRatio="none" x=`)
+	// Map cells are drawn as the blocks they are, not blurred into each other
+	// by the viewer's scaling (CSS pixelated, with the SVG 1.1 hint for viewers
+	// that do not know it).
+	s = strings.ReplaceAll(s, `<image x=`, `<image preserveAspectRatio="none" image-rendering="optimizeSpeed" style="image-rendering:pixelated" x=`)
 	s = strings.ReplaceAll(s, "data:image/jpg;base64,", "data:image/png;base64,")
 	return svgText.ReplaceAllStringFunc(s, fitText)
 }
