@@ -18,6 +18,10 @@ func (ev *evaluator) measure(d *pulseDef, tr float64) (shape.Properties, error) 
 
 func gammaBarOf(p *shape.Pulse) float64 { return math.Abs(p.Gamma) / (2 * math.Pi) }
 
+// signedGammaBar is γ/2π with its sign, for offsets: a shift δ or a position x in
+// a gradient G is the offset γ̄·B0·δ or γ̄·G·x (see convert).
+func signedGammaBar(p *shape.Pulse) float64 { return p.Gamma / (2 * math.Pi) }
+
 func fmtField(b, gammaBar float64) string {
 	return fmt.Sprintf("%s (%s)", Quantity{b, dimField}.format("uT"), Quantity{b * gammaBar, dimFrequency}.format("Hz"))
 }

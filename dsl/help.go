@@ -29,7 +29,10 @@ const conventionsHelp = `Conventions
   Δω = ω(spin) − ω(carrier). Phase 0 puts B1 along +x, so on resonance a 90° pulse of
   phase 0 takes +z to +y for positive γ. Negative-γ nuclei (3He, 15N, 17O, 129Xe)
   rotate the other way.
-  Printed amplitudes give both µT and Hz (γ̄B1, γ̄ = γ/2π).
+  Offsets carry the sign of γ: a chemical shift δ is the offset Δf = γ̄·B0·δ and a
+  position x in a gradient G is Δf = γ̄·G·x, so for a negative-γ nucleus +10 ppm is a
+  negative offset in Hz (` + "`print 10 ppm in Hz`" + ` shows it).
+  Printed amplitudes give both µT and Hz (|γ̄|B1, γ̄ = γ/2π).
   Simulation: each sample is an exact rotation (with relaxation, the exact solution of
   the linear step). Echo is the crushed spin-echo response |β|² of the Cayley–Klein
   parameters (Pauly et al., IEEE TMI 10:53, 1991).

@@ -693,7 +693,8 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 			switch a.kind {
 			case "offset":
 				if v.Q.D == dimPPM {
-					vals[i] = v.Q.V * 1e-6 * gb * ev.st.field
+					// Δf = γ̄·B0·δ with the sign of γ (see convert).
+					vals[i] = v.Q.V * 1e-6 * signedGammaBar(r.p) * ev.st.field
 				} else {
 					vals[i] = v.Q.V
 				}
@@ -750,19 +751,18 @@ func bandMarks(a *sweepAxis, defs []*pulseDef, st *state) []display.Mark {
 		if p.Bandwidth == 0 {
 			continue
 		}
-		gb := gammaBarOf(p)
 		for _, side := range []float64{-1, 1} {
 			f := p.Center + side*p.Bandwidth/2
 			var x float64
 			switch {
 			case a.kind == "offset" && a.from.Q.D == dimPPM:
-				x = f / (gb * st.field * 1e-6)
+				x = f / (signedGammaBar(p) * st.field * 1e-6)
 			case a.kind == "offset":
 				u, _ := lookupUnit(a.unit)
 				x = f / u.Factor
 			case a.kind == "position" && p.Gradient != 0:
 				u, _ := lookupUnit(a.unit)
-				x = f / (gb * p.Gradient) / u.Factor
+				x = f / (signedGammaBar(p) * p.Gradient) / u.Factor
 			default:
 				continue
 			}

@@ -246,10 +246,14 @@ func (q Quantity) format(unit string) string {
 func (q Quantity) String() string { return q.format("") }
 
 // in returns q in the given unit's value, converting between dimensions the way
-// the trade does: frequency ↔ field through the nucleus (ν = γ̄·B, as used both for
-// B1 amplitudes and for the Larmor frequency of B0), and ppm ↔ frequency through
-// the nucleus and the main field (ν = δ·10⁻⁶·γ̄·B0). It returns the converted
-// quantity in base units.
+// the trade does: frequency ↔ field through the nucleus (ν = |γ̄|·B, as used both
+// for B1 amplitudes and for the Larmor frequency of B0: magnitudes), and ppm ↔
+// frequency offset through the nucleus and the main field with the sign of γ:
+// Δf = γ̄·B0·δ·10⁻⁶. A shift δ adds the field B0·δ along z, and the convention
+// γB_eff = (ω1x, ω1y, Δω) makes its offset Δω = γ·B0·δ, so for a negative-γ nucleus
+// (15N, 17O, 3He, 129Xe) a positive shift is a negative offset, just as a position
+// x in a gradient G is the offset γ·G·x. It returns the converted quantity in base
+// units.
 func convert(q Quantity, to Dim, gammaBar, b0 float64, nucleus string) (Quantity, error) {
 	if q.D == to {
 		return q, nil
@@ -264,12 +268,12 @@ func convert(q Quantity, to Dim, gammaBar, b0 float64, nucleus string) (Quantity
 		if b0 == 0 {
 			return q, fmt.Errorf("ppm needs the main field (nucleus %s is set, the field is not): set it first, e.g. `field 3 T`", nucleus)
 		}
-		return Quantity{q.V * 1e-6 * gb * b0, to}, nil
+		return Quantity{q.V * 1e-6 * gammaBar * b0, to}, nil
 	case q.D == dimFrequency && to == dimPPM:
 		if b0 == 0 {
 			return q, fmt.Errorf("ppm needs the main field (nucleus %s is set, the field is not): set it first, e.g. `field 3 T`", nucleus)
 		}
-		return Quantity{q.V / (1e-6 * gb * b0), to}, nil
+		return Quantity{q.V / (1e-6 * gammaBar * b0), to}, nil
 	}
 	return q, fmt.Errorf("cannot convert %s to %s", q.D.Noun(), to.Noun())
 }
