@@ -55,9 +55,28 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 		if err != nil {
 			return err
 		}
-		ev.emit(waveformBundle(waveformOf(d), propertiesTable(d, pr, set.tr, ev.st.field)))
+		t := propertiesTable(d, pr, set.tr, ev.st.field)
+		if w, err := ev.thresholdWarning(d, pr); err != nil {
+			return err
+		} else if w != "" {
+			t.Notes = append([]string{"warning: " + w}, t.Notes...)
+		}
+		ev.emit(waveformBundle(waveformOf(d), t))
 	}
 	return nil
+}
+
+// thresholdWarning warns when an adiabatic pulse's peak is below its measured
+// threshold (see thresholdWarning).
+func (ev *evaluator) thresholdWarning(d *pulseDef, pr shape.Properties) (string, error) {
+	met := true
+	if math.IsNaN(pr.Threshold) {
+		var err error
+		if met, err = meetsAdiabaticTarget(ev.ctx, d.Pulse); err != nil {
+			return "", err
+		}
+	}
+	return thresholdWarning(d.Pulse, pr.Threshold, met), nil
 }
 
 // waveformOf gives the display's view of a pulse's samples.

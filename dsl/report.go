@@ -27,6 +27,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		cols = append(cols, display.Column{Name: "adiabatic threshold", Unit: "µT"})
 	}
 	var rows [][]string
+	var warnings []string
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {
 			return err
@@ -34,6 +35,11 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		pr, err := ev.measure(d, 0)
 		if err != nil {
 			return err
+		}
+		if w, err := ev.thresholdWarning(d, pr); err != nil {
+			return err
+		} else if w != "" {
+			warnings = append(warnings, "Warning ("+d.Name+"): "+w+".")
 		}
 		p := d.Pulse
 		gb := gammaBarOf(p)
@@ -76,6 +82,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
 	}
+	notes = append(notes, warnings...)
 	t := display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}
 	switch {
 	case s.Format == nil:

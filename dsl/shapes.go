@@ -465,8 +465,16 @@ func (ev *evaluator) pulse(s *PulseStmt) error {
 	if err := ev.checkCtx(); err != nil {
 		return err
 	}
+	met, err := meetsAdiabaticTarget(ev.ctx, def.Pulse)
+	if err != nil {
+		return errAt(s.Name.P, "checking %s against its adiabatic threshold: %v", s.Name.Name, err)
+	}
 	ev.st.define(s.Name.Name, &binding{pulse: def})
-	ev.emit(textBundle(pulseSummary(def)))
+	line := pulseSummary(def)
+	if !met {
+		line += "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + roleVerb(def.Pulse.Role) + " its band (`describe " + def.Name + "` gives the threshold)"
+	}
+	ev.emit(textBundle(line))
 	return nil
 }
 

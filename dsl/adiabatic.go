@@ -1,0 +1,94 @@
+package dsl
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"nutate/physics"
+	"nutate/physics/shape"
+)
+
+// thresholdTarget is the level shape.Measure's adiabatic threshold asks of each
+// role (see shape.Properties.Threshold): invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9,
+// refocus |β|² ≥ 0.9, saturate |Mz| ≤ 0.1.
+const thresholdTarget = 0.9
+
+// meetsAdiabaticTarget reports whether an adiabatic pulse with a role meets its
+// role's target at its own peak, at the offsets shape.Measure's threshold uses
+// (11 evenly spaced within a quarter of the design bandwidth of the centre; only
+// the centre without a design bandwidth). It costs one simulation of 11 spins,
+// so a `pulse` statement can afford it where the threshold search cannot. ok is
+// true for pulses it does not apply to.
+func meetsAdiabaticTarget(ctx context.Context, p *shape.Pulse) (bool, error) {
+	if !p.Adiabatic || p.Role == shape.RoleNone || p.Peak() == 0 {
+		return true, nil
+	}
+	offs := []float64{p.Center}
+	if bw := p.Bandwidth; bw > 0 {
+		const k = 11
+		offs = make([]float64, k)
+		for i := range offs {
+			offs[i] = p.Center + bw/4*(2*float64(i)/(k-1)-1)
+		}
+	}
+	w := p.Wave
+	w.Gradient = nil
+	r, err := physics.Simulate(ctx, &w, p.Gamma, &physics.Isochromats{Offset: offs}, physics.Options{})
+	if err != nil {
+		return false, err
+	}
+	for i := range offs {
+		var good bool
+		switch p.Role {
+		case shape.RoleInvert:
+			good = r.Mz[i] <= -thresholdTarget
+		case shape.RoleExcite:
+			good = math.Hypot(r.Mx[i], r.My[i]) >= thresholdTarget
+		case shape.RoleRefocus:
+			b := r.Beta[i]
+			good = real(b)*real(b)+imag(b)*imag(b) >= thresholdTarget
+		case shape.RoleSaturate:
+			good = math.Abs(r.Mz[i]) <= 1-thresholdTarget
+		default:
+			good = true
+		}
+		if !good {
+			return false, nil
+		}
+	}
+	return true, nil
+}
+
+// roleVerb says what a pulse of the role does to its band.
+func roleVerb(r shape.Role) string {
+	switch r {
+	case shape.RoleInvert:
+		return "invert"
+	case shape.RoleExcite:
+		return "fully excite"
+	case shape.RoleRefocus:
+		return "refocus"
+	case shape.RoleSaturate:
+		return "saturate"
+	}
+	return "act on"
+}
+
+// thresholdWarning is the plain warning for an adiabatic pulse played below its
+// threshold th (T; NaN when the search found none or it was not run), or "" when
+// the peak is enough. met is meetsAdiabaticTarget's answer.
+func thresholdWarning(p *shape.Pulse, th float64, met bool) string {
+	gb := gammaBarOf(p)
+	peak := Quantity{p.Peak(), dimField}.format("uT")
+	verb := roleVerb(p.Role)
+	switch {
+	case !p.Adiabatic || p.Role == shape.RoleNone:
+		return ""
+	case !math.IsNaN(th) && th > p.Peak():
+		return fmt.Sprintf("peak %s is below the adiabatic threshold %s: this pulse will not %s its band", peak, fmtField(th, gb), verb)
+	case math.IsNaN(th) && !met:
+		return fmt.Sprintf("peak %s is below the adiabatic threshold (not reached up to 32 times this peak): this pulse will not %s its band", peak, verb)
+	}
+	return ""
+}
