@@ -6,6 +6,7 @@ import (
 	"flag"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -21,6 +22,9 @@ var update = flag.Bool("update", false, "rewrite the expected sections of testda
 //	-- input --       a cell; successive inputs run in one session
 //	-- output --      the cell's text/plain outputs, one bundle after another
 //	-- error --       the cell's error traceback (absent: the cell must succeed)
+//	-- match --       instead of output: one regular expression per output line,
+//	                  for figures that belong to another package's design
+//	                  (kept as written by -update)
 //
 // Text before the first section is a comment. With -update the output and error
 // sections are rewritten from what the cells produce.
@@ -125,17 +129,24 @@ func TestScripts(t *testing.T) {
 				}
 				outSecs = append(outSecs, sec)
 				gotOut, gotErr := runCell(t, s, sec.body)
-				var wantOut, wantErr *string
+				var wantOut, wantErr, match *string
 				for j := i + 1; j < len(secs) && secs[j].kind != "input"; j++ {
 					switch secs[j].kind {
 					case "output":
 						wantOut = &secs[j].body
 					case "error":
 						wantErr = &secs[j].body
+					case "match":
+						match = &secs[j].body
 					}
 				}
+				if match != nil {
+					matchLines(t, i+1, gotOut, *match)
+				}
 				if *update {
-					if gotOut != "" {
+					if match != nil {
+						outSecs = append(outSecs, section{kind: "match", body: *match})
+					} else if gotOut != "" {
 						outSecs = append(outSecs, section{kind: "output", body: gotOut})
 					}
 					if gotErr != "" {
@@ -147,7 +158,7 @@ func TestScripts(t *testing.T) {
 				if wantOut != nil {
 					w = *wantOut
 				}
-				if gotOut != w {
+				if match == nil && gotOut != w {
 					t.Errorf("cell at section %d output:\n%s\nwant:\n%s", i+1, gotOut, w)
 				}
 				w = ""
@@ -164,5 +175,25 @@ func TestScripts(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// matchLines checks each output line against the pattern on the same line.
+func matchLines(t *testing.T, sec int, got, patterns string) {
+	t.Helper()
+	gl := strings.Split(strings.TrimSuffix(got, "\n"), "\n")
+	pl := strings.Split(strings.TrimSuffix(patterns, "\n"), "\n")
+	if len(gl) != len(pl) {
+		t.Errorf("cell at section %d: %d output lines, want %d:\n%s", sec, len(gl), len(pl), got)
+		return
+	}
+	for k := range pl {
+		re, err := regexp.Compile("^(?:" + pl[k] + ")$")
+		if err != nil {
+			t.Fatalf("section %d pattern %d: %v", sec, k+1, err)
+		}
+		if !re.MatchString(gl[k]) {
+			t.Errorf("cell at section %d line %d:\n%s\nwant a match of\n%s", sec, k+1, gl[k], pl[k])
+		}
 	}
 }
