@@ -172,8 +172,13 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 		if sv.Q.D != from.Q.D {
 			return nil, errAt(ax.Step.Position(), "step expects %s like the axis ends, got %s", from.Q.D.Noun(), describeValue(sv))
 		}
-		if sv.Q.V == 0 || (span != 0 && math.Signbit(sv.Q.V) != math.Signbit(span)) {
+		if sv.Q.V == 0 {
 			return nil, errAt(ax.Step.Position(), "step %s does not lead from %s to %s", sv, from, to)
+		}
+		// The step is taken in the direction from FROM to TO, whatever its
+		// sign: `20 ppm to 0 ppm step 5 ppm` descends.
+		if span != 0 && math.Signbit(sv.Q.V) != math.Signbit(span) {
+			sv.Q.V = -sv.Q.V
 		}
 		k := math.Floor(span/sv.Q.V + 1e-9)
 		if k+1 > maxAxisPoints {
