@@ -404,12 +404,32 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 	if err != nil {
 		return nil, err
 	}
+	if a, ok := args["dwell"]; ok && b.vals["dwell"] < minDwell {
+		return nil, errAt(a.Pos, "dwell must be at least %s, got %s", Quantity{minDwell, dimTime}, a.Val)
+	}
+	if a, ok := args["samples"]; ok && b.vals["samples"] > maxPulseSamples {
+		return nil, errAt(a.Pos, "samples must be at most %d, got %s", maxPulseSamples, a.Val)
+	}
 	p, err := spec.Build(b)
 	if err != nil {
 		return nil, errAt(ev.blame(err, args, callPos), "%s", strings.TrimPrefix(err.Error(), spec.Name+": "))
 	}
+	if n := p.Wave.Len(); n > maxPulseSamples {
+		at, what := callPos, "the shape's own sampling"
+		if a, ok := args["dwell"]; ok {
+			at, what = a.Pos, "dwell "+a.Val.String()
+		}
+		return nil, errAt(at, "%s gives %d samples, over the limit of %d per pulse; use a longer dwell or a shorter duration", what, n, maxPulseSamples)
+	}
 	return p, nil
 }
+
+// Sampling limits of one pulse: a dwell of 10 ns is far below any RF
+// transmitter's raster, and a million samples already take seconds to describe.
+const (
+	minDwell        = 10e-9
+	maxPulseSamples = 1_000_000
+)
 
 // blame places a shape's error at the argument it names, if any.
 func (ev *evaluator) blame(err error, args map[string]argVal, def Pos) Pos {
