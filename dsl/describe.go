@@ -114,7 +114,11 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		{"samples", samplesText(p)},
 		{"peak B1", fmtField(p.Peak(), gb)},
 	}
-	if !math.IsNaN(p.Flip) {
+	if imported(p) {
+		// The file's samples carry no design flip; γ|∫B1 dt| is only the
+		// area at the carrier (the rotation is the simulated one below).
+		rows = append(rows, []string{"area at the carrier (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
+	} else if !math.IsNaN(p.Flip) {
 		rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
 	}
 	rows = append(rows, []string{"rotation at centre (simulated)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
@@ -161,10 +165,14 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
 
-// samplesText gives the sample count and the dwell, or says the dwell varies.
+// imported reports whether p was read from a file (shape.FromSamples).
+func imported(p *shape.Pulse) bool { return p.Shape == "import" }
+
+// samplesText gives the sample count and the dwell; with a dwell that varies (a
+// train, an imported table) each sample is a segment of its own length.
 func samplesText(p *shape.Pulse) string {
 	if !uniform(p.Wave.Dwell) {
-		return fmt.Sprintf("%d (dwell varies)", p.Wave.Len())
+		return fmt.Sprintf("%d segments (variable dwell)", p.Wave.Len())
 	}
 	return fmt.Sprintf("%d (dwell %s)", p.Wave.Len(), Quantity{p.Wave.Dwell[0], dimTime})
 }

@@ -34,7 +34,7 @@ func curveLevels(q, axis string, start [3]float64, p *shape.Pulse) (base, target
 		base = start[1]
 	case "mz":
 		base = start[2]
-		if start[0] != 0 || start[1] != 0 || p == nil {
+		if start[0] != 0 || start[1] != 0 || p == nil || imported(p) {
 			break
 		}
 		switch {

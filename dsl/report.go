@@ -48,7 +48,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			shp = describeShape(d)
 		}
 		flip := "—"
-		if !math.IsNaN(p.Flip) {
+		if !math.IsNaN(p.Flip) && !imported(p) {
 			flip = formatNumber(roundSig(p.Flip*180/math.Pi, 5))
 		} else if !math.IsNaN(pr.Rotation) {
 			flip = formatNumber(roundSig(pr.Rotation*180/math.Pi, 4)) + " (simulated)"

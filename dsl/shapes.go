@@ -579,7 +579,9 @@ func pulseSummary(d *pulseDef) string {
 		plural(p.Wave.Len(), "sample"),
 		fmt.Sprintf("peak %s (%s)", Quantity{p.Peak(), dimField}.format("uT"), Quantity{p.Peak() * gb, dimFrequency}.format("Hz")),
 	}
-	if !math.IsNaN(p.Flip) && !p.Adiabatic {
+	if imported(p) {
+		parts = append(parts, "area at the carrier "+Quantity{p.Flip, dimAngle}.format("deg"))
+	} else if !math.IsNaN(p.Flip) && !p.Adiabatic {
 		parts = append(parts, "flip "+Quantity{p.Flip, dimAngle}.format("deg"))
 	} else if a, ok := d.Args["flip"]; ok && d.Spec != nil {
 		parts = append(parts, "rotation "+a.Val.String()+" by design")
