@@ -132,7 +132,10 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		[]string{"bandwidth (FWHM of profile)", fmtOpt(pr.Bandwidth, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
 	)
 	if p.TBW != 0 {
-		rows = append(rows, []string{"TBW", formatNumber(p.TBW)})
+		rows = append(rows, []string{"TBW (design)", formatNumber(p.TBW)})
+	}
+	if !math.IsNaN(pr.Bandwidth) {
+		rows = append(rows, []string{"TBW (measured, FWHM × duration)", formatNumber(roundSig(pr.Bandwidth*p.Duration(), 6))})
 	}
 	rows = append(rows,
 		[]string{"transition (90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
@@ -147,7 +150,10 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	}
 	if p.Gradient != 0 {
 		rows = append(rows, []string{"gradient", Quantity{p.Gradient, dimGradient}.format("mT/m")})
-		rows = append(rows, []string{"slice thickness", fmtOpt(pr.Thickness, func(v float64) string { return Quantity{v, dimLength}.format("mm") })})
+		if p.Bandwidth != 0 {
+			rows = append(rows, []string{"slice thickness (design)", Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")})
+		}
+		rows = append(rows, []string{"slice thickness (measured, FWHM)", fmtOpt(pr.Thickness, func(v float64) string { return Quantity{v, dimLength}.format("mm") })})
 		if field > 0 {
 			rows = append(rows, []string{"chemical-shift displacement", fmtOpt(pr.ShiftPerPPM, func(v float64) string { return Quantity{v, dimLength}.format("mm") + " per ppm" })})
 		}

@@ -595,7 +595,7 @@ func pulseSummary(d *pulseDef) string {
 	if p.Gradient != 0 {
 		parts = append(parts, "gradient "+Quantity{p.Gradient, dimGradient}.format("mT/m"))
 		if p.Bandwidth != 0 {
-			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm"))
+			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")+" (design)")
 		}
 	}
 	return strings.Join(parts, ", ")
