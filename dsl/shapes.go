@@ -407,6 +407,13 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 	if a, ok := args["dwell"]; ok && b.vals["dwell"] < minDwell {
 		return nil, errAt(a.Pos, "dwell must be at least %s, got %s", Quantity{minDwell, dimTime}, a.Val)
 	}
+	// Typo guards: no RF coil reaches 1 mT, and a hundred turns is no one's flip.
+	if a, ok := args["peak"]; ok && math.Abs(b.vals["peak"]) > maxPeak {
+		return nil, errAt(a.Pos, "peak must be at most 1 mT, got %s", a.Val)
+	}
+	if a, ok := args["flip"]; ok && math.Abs(b.vals["flip"]) > maxFlip {
+		return nil, errAt(a.Pos, "flip must be at most 36000 deg (100 turns), got %s", a.Val)
+	}
 	if a, ok := args["samples"]; ok && b.vals["samples"] > maxPulseSamples {
 		return nil, errAt(a.Pos, "samples must be at most %d, got %s", maxPulseSamples, a.Val)
 	}
@@ -429,6 +436,12 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 const (
 	minDwell        = 10e-9
 	maxPulseSamples = 1_000_000
+)
+
+// Amplitude bounds (typo guards): peak B1 in T, flip in rad.
+const (
+	maxPeak = 1e-3
+	maxFlip = 100 * 2 * math.Pi
 )
 
 // blame places a shape's error at the argument it names, if any.
