@@ -153,76 +153,189 @@ func crossing(h []float64, level, lo, hi float64) float64 {
 	return math.NaN()
 }
 
-// lowpass designs a linear-phase lowpass of taps coefficients with a transition
-// of width tw cycles/sample whose amplitude falls through level at edge:
-// equiripple by Remez exchange, falling back to least squares when the exchange
-// fails. The published edges centre the transition on the nominal edge; because
-// the transition of an equiripple filter with δ1 ≠ δ2 is not symmetric, the
-// transition is moved by secant steps until the crossing is within 0.2 % of
-// edge. The steps run on a coarse grid, each warm-started from the last; the
-// final design on the full grid starts from the coarse extremal set. It reports
-// the method used.
-func lowpass(taps int, edge, tw, level, d1, d2 float64) (h []float64, fp, fs float64, method string, err error) {
-	bands := func(c float64) ([]Band, bool) {
-		p, s := c-tw/2, c+tw/2
-		return []Band{{0, p, 1, 1}, {s, 0.5, 0, d1 / d2}}, p > 0 && s < 0.5
+// shaping says how a β filter departs from the plain equiripple lowpass of
+// Pauly et al. (1991), whose stopband error keeps its full height up to half the
+// sampling rate. That flat error is a comb of equal ripples across the whole
+// stopband, and its transform is a pair of spikes in the filter's end taps, so in
+// the first and last samples of the pulse, which grow with the number of samples
+// per time-bandwidth product. Here the stopband weight rises as (f/fs)^slope
+// beyond the stopband edge fs: the ripples keep their specified height near the
+// transition, where the profile is specified, and decay further out, where it
+// only costs the end spikes.
+type shaping struct {
+	slope float64 // stopband weight grows as (f/fs)^slope
+	// top makes the amplitude at zero offset the largest of the passband (for
+	// 180° designs, whose |β| cannot exceed 1, so that the on-resonance flip
+	// is the nominal one); otherwise the amplitude at zero offset is exactly 1.
+	top bool
+	// lift centres the stopband ripple above zero (for the non-negative
+	// prototype of minimum-phase designs), so that it needs no constant raise.
+	lift bool
+}
+
+// dcWeight pins the amplitude at zero offset (see shaping): its weighted error
+// is at most the levelled error, so the unweighted error there is at most that
+// divided by dcWeight.
+const dcWeight = 1e4
+
+// topMargin places a top passband (see shaping) topMargin·d1 below the amplitude
+// 1 at zero offset rather than d1: the largest error between the points of the
+// design grid exceeds the levelled error by a little, and |β| at zero offset must
+// stay the largest for the flip there to be 180° (a shortfall ε in |β| costs
+// √(8ε) rad of flip).
+const topMargin = 1.0
+
+// errNarrow reports a transition band wider than the passband it bounds: the
+// time-bandwidth product is too small for the ripples.
+var errNarrow = errors.New("transition does not fit")
+
+// narrowRatio is how far above the asked ripple the passband error of a design
+// that ran out of steps may be before lowpass gives up with errNarrow.
+const narrowRatio = 1.1
+
+// Tolerances of lowpass: the 50 % crossing within edgeTol of the nominal edge;
+// the levelled passband error δ between rippleLo and rippleHi times the asked
+// ripple, aiming at rippleAim times it. rippleHi is just above 1 because a
+// design with a top passband (see shaping) cannot have δ below the ripple.
+const (
+	edgeTol   = 2e-3
+	rippleLo  = 0.96
+	rippleAim = 0.98
+	rippleHi  = 1.002
+)
+
+// lowpass designs a linear-phase lowpass of taps coefficients, amplitude 1 at
+// zero offset, whose amplitude falls through level at edge, with passband ripple
+// d1 and stopband ripple d2: equiripple by Remez exchange with the stopband
+// weighting of sh, falling back to least squares when the exchange fails.
+//
+// The transition width starts at tw (from D∞, Herrmann, Rabiner & Chan 1973,
+// which holds for the plain equiripple design); it is then widened or narrowed
+// until the levelled passband error of the design is d1 within rippleTol, by a
+// D∞-scaled first step and secant steps in log δ, since the constraints of sh
+// cost ripple at a given width. Together with it the transition is moved by
+// secant steps until the crossing is within edgeTol of edge (the transition of
+// an equiripple filter with δ1 ≠ δ2 is not symmetric about its centre). The
+// steps run on a coarse grid, each warm-started from the last; the final design
+// on the full grid starts from the coarse extremal set. It returns errNarrow
+// (wrapped) when the transition no longer fits, and reports the method used.
+func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
+	ws := d1 / d2
+	// A top passband is centred d1 below the amplitude 1 at zero offset; a
+	// lifted stopband is centred just above its ripple, which is at most
+	// rippleHi·d2 when δ is accepted.
+	off, lift := 0.0, 0.0
+	if sh.top {
+		off = topMargin * d1
 	}
-	centre := func(design func([]Band) ([]float64, error), c, tol float64) (float64, []float64, error) {
+	if sh.lift {
+		lift = rippleHi * d2
+	}
+	bands := func(c, tw float64) ([]Band, target, bool) {
+		p, s := c-tw/2, c+tw/2
+		b := []Band{{0, p, 1 - off, 1}, {s, 0.5, 0, ws}}
+		pass, stop := 1-off, lift
+		tg := func(i int, f float64) (float64, float64) {
+			if i == 0 {
+				if f == 0 {
+					return 1, dcWeight
+				}
+				return pass, 1
+			}
+			env := math.Pow(s/f, sh.slope) // ≤ 1: the allowed error decays as env
+			return stop * env, ws / env
+		}
+		return b, tg, p > 0 && s < 0.5
+	}
+	type designer func([]Band, target) ([]float64, float64, error)
+	// solve moves the centre c and width tw of the transition until the
+	// crossing and the ripple are met, or maxSteps designs are made.
+	solve := func(design designer, c, tw float64, maxSteps int) (float64, float64, []float64, error) {
 		var h []float64
 		prevC, prevF := math.NaN(), math.NaN()
-		for range 6 {
-			b, ok := bands(c)
+		prevW, prevD := math.NaN(), math.NaN()
+		for range maxSteps {
+			b, tg, ok := bands(c, tw)
 			if !ok {
-				break
+				return c, tw, nil, fmt.Errorf("%w: transition %.4g to %.4g cycles/sample", errNarrow, c-tw/2, c+tw/2)
 			}
-			hh, err := design(b)
+			hh, delta, err := design(b, tg)
 			if err != nil {
-				return 0, nil, err
+				return c, tw, nil, err
 			}
 			h = hh
 			f := crossing(hh, level, 0, math.Min(0.5, c+1.5*tw))
-			if math.IsNaN(f) || math.Abs(f-edge) <= tol*edge {
-				return c, h, nil
+			okF := math.IsNaN(f) || math.Abs(f-edge) <= edgeTol*edge
+			okD := (delta >= rippleLo*d1 && delta <= rippleHi*d1) || delta == 0
+			if okF && okD {
+				return c, tw, h, nil
 			}
-			slope := 1.0 // the crossing moves with the transition
-			if !math.IsNaN(prevF) && f != prevF {
-				slope = (f - prevF) / (c - prevC)
+			nc, nw := c, tw
+			if !okF {
+				slope := 1.0 // the crossing moves with the transition
+				if !math.IsNaN(prevF) && f != prevF && prevW == tw {
+					slope = (f - prevF) / (c - prevC)
+				}
+				nc = c + (edge-f)/slope
 			}
-			prevC, prevF = c, f
-			c += (edge - f) / slope
+			if !okD {
+				// A first step that scales the width as D∞ would: the
+				// design behaves as a plain one of ripples delta and
+				// delta/ws; later steps are secant steps in log δ.
+				aim := rippleAim * d1
+				k := DInf(aim, aim/ws) / DInf(delta, delta/ws)
+				if !math.IsNaN(prevD) && prevW != tw {
+					s := (math.Log(delta) - math.Log(prevD)) / (tw - prevW)
+					if s < 0 {
+						k = 1 + (math.Log(aim)-math.Log(delta))/s/tw
+					}
+				}
+				nw = tw * math.Min(math.Max(k, 0.5), 2)
+			}
+			// Keep the bands inside 0 to 0.5: halve the step until they fit.
+			for k := 0; k < 30 && !(nc-nw/2 > 0 && nc+nw/2 < 0.5); k++ {
+				nc, nw = (c+nc)/2, (tw+nw)/2
+			}
+			prevC, prevF, prevW, prevD = c, f, tw, delta
+			c, tw = nc, nw
 		}
-		if h == nil {
-			return 0, nil, fmt.Errorf("transition band %g to %g cycles/sample does not fit", edge-tw/2, edge+tw/2)
+		if prevD > narrowRatio*d1 {
+			return prevC, prevW, nil, fmt.Errorf("%w: passband error %.3g, want %.3g", errNarrow, prevD, d1)
 		}
-		return prevC, h, nil
+		return prevC, prevW, h, nil
 	}
 	var ext []float64
-	coarse := func(b []Band) ([]float64, error) {
-		hh, e, err := remez(taps, b, ext, 4)
+	coarse := func(b []Band, tg target) ([]float64, float64, error) {
+		hh, e, delta, err := remez(taps, b, ext, 4, tg)
 		ext = e
-		return hh, err
+		return hh, delta, err
 	}
-	fine := func(b []Band) ([]float64, error) {
-		hh, e, err := remez(taps, b, ext, gridDensity)
+	fine := func(b []Band, tg target) ([]float64, float64, error) {
+		hh, e, delta, err := remez(taps, b, ext, gridDensity, tg)
 		ext = e
-		return hh, err
+		return hh, delta, err
 	}
-	c, _, err := centre(coarse, edge, 2e-3)
+	c, tw, _, err := solve(coarse, edge, tw, 10)
 	if err == nil {
-		// One full-grid design; re-centre on the full grid only if it moved.
-		b, _ := bands(c)
-		h, err = fine(b)
-		if err == nil {
-			f := crossing(h, level, 0, math.Min(0.5, c+1.5*tw))
-			if !(math.Abs(f-edge) <= 5e-3*edge) {
-				c, h, err = centre(fine, c, 2e-3)
-			}
-		}
+		// One full-grid design; solve again on the full grid only if it moved.
+		c, tw, h, err = solve(fine, c, tw, 4)
 	}
 	method = "remez"
 	if errors.Is(err, ErrNoConvergence) {
 		method = "least squares"
-		c, h, err = centre(func(b []Band) ([]float64, error) { return LeastSquares(taps, b) }, edge, 2e-3)
+		b, _, ok := bands(edge, tw)
+		if !ok {
+			return nil, 0, 0, "", fmt.Errorf("%w: transition %.4g to %.4g cycles/sample", errNarrow, b[0].Hi, b[1].Lo)
+		}
+		// Centred on the edge; unit amplitude at zero offset.
+		c = edge
+		h, err = LeastSquares(taps, []Band{{0, b[0].Hi, 1, 1}, {b[1].Lo, 0.5, 0, ws}})
+		if err == nil {
+			g := 1 / zeroPhase(h, 0)
+			for i := range h {
+				h[i] *= g
+			}
+		}
 	}
 	if err != nil {
 		return nil, 0, 0, "", err
@@ -230,22 +343,22 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64) (h []float64, fp, fs flo
 	return h, c - tw/2, c + tw/2, method, nil
 }
 
-// betaFilter designs the unit-passband β filter of n taps with ripples d1, d2.
-// Minimum phase follows the published construction: a linear-phase filter of
-// 2n−1 taps with ripples 2δ1 and δ2²/2 is raised to be non-negative and its
+// betaFilter designs the β filter of n taps with ripples d1, d2, amplitude 1 at
+// zero offset. Minimum phase follows the published construction: a linear-phase
+// filter of 2n−1 taps with ripples 2δ1 and δ2²/2, non-negative, and its
 // minimum-phase spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler,
 // Electron. Lett. 6:329, 1970, from memory); maximum phase is its time reversal.
 // It returns the band edges used (cycles/sample) and the method.
-func betaFilter(n int, tbw, d1, d2 float64, design Design, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
+func betaFilter(n int, tbw, d1, d2 float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
 	edge := tbw / (2 * float64(n))
 	if design == Linear {
 		// The 50 % point of |β| at the nominal edge.
-		return lowpass(n, edge, DInf(d1, d2)/float64(n), 0.5, d1, d2)
+		return lowpass(n, edge, DInf(d1, d2)/float64(n), 0.5, d1, d2, shaping{slope: stopSlope, top: top})
 	}
 	l1, l2 := 2*d1, d2*d2/2
 	taps := 2*n - 1
-	// |β|² = (A + raise)/(1 + raise) with raise ≈ δ2': |β| = 1/2 where A ≈ 1/4 − 3δ2'/4.
-	h2, fp, fs, method, err := lowpass(taps, edge, DInf(l1, l2)/float64(taps), 0.25-0.75*l2, l1, l2)
+	// |β|² ∝ the prototype: |β| = 1/2 where it is 1/4.
+	h2, fp, fs, method, err := lowpass(taps, edge, DInf(l1, l2)/float64(taps), 0.25, l1, l2, shaping{slope: 2 * stopSlope, top: top, lift: true})
 	if err != nil {
 		return nil, 0, 0, "", err
 	}
@@ -259,10 +372,12 @@ func betaFilter(n int, tbw, d1, d2 float64, design Design, cep *cepstrum) (h []f
 		amp[k] = real(v)*c - imag(v)*s
 		low = math.Min(low, amp[k])
 	}
-	// Raise the stopband just above zero so the factor has no zeros on |z| = 1.
+	// Raise what negative ripple is left just above zero so the factor has no
+	// zeros on |z| = 1, keeping the amplitude 1 at zero offset.
 	raise := -low * (1 + 1e-3)
+	a0 := amp[0] + raise
 	for k, v := range amp {
-		amp[k] = math.Sqrt(math.Max(v+raise, 0) / (1 + raise))
+		amp[k] = math.Sqrt(math.Max(v+raise, 0) / a0)
 	}
 	h = cep.minimumPhase(amp, n)
 	if design == Maximum {
@@ -272,6 +387,11 @@ func betaFilter(n int, tbw, d1, d2 float64, design Design, cep *cepstrum) (h []f
 	}
 	return h, fp, fs, method + ", minimum-phase factor", nil
 }
+
+// stopSlope is the exponent of the rising stopband weight (see shaping) of the
+// linear-phase β filter; the minimum-phase prototype, which is |β|², uses twice
+// it, so that |β| decays alike.
+const stopSlope = 2.0
 
 // betaMargin keeps max|β| on the design grid at most 1 − betaMargin, so that
 // |α| = √(1 − |β|²) stays away from zero and its cepstrum converges.

@@ -1,6 +1,7 @@
 package slr
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
@@ -67,17 +68,19 @@ func roleFlip(r shape.Role) float64 {
 // ripple of |β| has a trough at zero offset, the on-resonance flip of a 180°
 // design is below 180° by up to what the passband ripple allows.
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
-	p, _, err := design(spec, c, gamma)
+	p, _, err := design(spec, c, gamma, true)
 	return p, err
 }
 
 // PulseInfo is Pulse that also returns how the design was made, including the
 // polynomials A and B.
 func PulseInfo(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, error) {
-	return design(spec, c, gamma)
+	return design(spec, c, gamma, true)
 }
 
-func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, error) {
+// design makes the pulse; suggest lets a failure for a too small
+// time-bandwidth product search for one that works (the search itself does not).
+func design(spec Spec, c shape.Common, gamma float64, suggest bool) (*shape.Pulse, *Info, error) {
 	fail := func(format string, args ...any) (*shape.Pulse, *Info, error) {
 		return nil, nil, fmt.Errorf("slr: "+format, args...)
 	}
@@ -141,10 +144,42 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 	if spec.Design != Linear {
 		dinf, taps = DInf(2*d1, d2*d2/2), 2*n-1
 	}
+	tooSmall := func() (*shape.Pulse, *Info, error) {
+		// The design needs a wider transition than D∞ gives (see shaping):
+		// search upward from the D∞ bound for a product that designs.
+		need := math.Max(tbw, float64(n)*dinf/float64(taps)) * 1.02
+		found := false
+		if !suggest {
+			return fail("tbw: got %g, too small", tbw)
+		}
+		for range 12 {
+			need = math.Ceil(need*1000) / 1000
+			// Near the bound a design may succeed and a slightly larger
+			// one fail: suggest a product whose neighbours design too.
+			ok := true
+			for _, k := range []float64{1, 1.001, 1.05} {
+				s := spec
+				s.TBW = need * k
+				if _, _, err := design(s, c, gamma, false); err != nil {
+					ok = false
+					break
+				}
+			}
+			if ok {
+				found = true
+				break
+			}
+			need *= 1.08
+		}
+		if !found {
+			return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want larger ripples", tbw, d1, d2, pass, stop, role, spec.Design)
+		}
+		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want at least %.4g, or larger ripples",
+			tbw, d1, d2, pass, stop, role, spec.Design, need)
+	}
 	if fp, _ := edges(n, taps, tbw, dinf); !(fp > 0) {
 		// fp > 0 ⇔ tbw > n·D∞/taps.
-		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want more than %.4g, or larger ripples",
-			tbw, d1, d2, pass, stop, role, spec.Design, float64(n)*dinf/float64(taps))
+		return tooSmall()
 	}
 	if _, fs := edges(n, taps, tbw, dinf); !(fs < 0.5) {
 		need := n
@@ -163,8 +198,20 @@ func design(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, erro
 		return fail("samples: got %d, fewer than the filter needs for tbw %g with these ripples; want at least %d", n, tbw, need)
 	}
 	cep := getCepstrum(gridSize(n))
-	defer putCepstrum(cep)
-	h, fp, fs, method, err := betaFilter(n, tbw, d1, d2, spec.Design, cep)
+	defer func() {
+		if cep != nil {
+			putCepstrum(cep)
+		}
+	}()
+	// Where the passband ripple could carry |β| above 1, the passband is kept
+	// below its value at zero offset (see shaping).
+	top := math.Sin(flip/2)*(1+d1) > 1-betaMargin
+	h, fp, fs, method, err := betaFilter(n, tbw, d1, d2, spec.Design, top, cep)
+	if errors.Is(err, errNarrow) {
+		putCepstrum(cep)
+		cep = nil
+		return tooSmall()
+	}
 	if err != nil {
 		return nil, nil, fmt.Errorf("slr: %w", err)
 	}

@@ -49,9 +49,14 @@ func checkBands(taps int, bands []Band) error {
 // x = cos ω. For even taps the response is zero at 0.5 cycles/sample. It returns
 // ErrNoConvergence (wrapped) when the exchange does not settle.
 func Remez(taps int, bands []Band) ([]float64, error) {
-	h, _, err := remez(taps, bands, nil, gridDensity)
+	h, _, _, err := remez(taps, bands, nil, gridDensity, nil)
 	return h, err
 }
+
+// target gives the desired amplitude and error weight at frequency f (cycles/
+// sample) of band i, for responses that are not constant across a band; nil
+// means each band's Gain and Weight.
+type target func(i int, f float64) (gain, weight float64)
 
 // gridDensity is the number of dense-grid points per basis function over 0 to
 // 0.5 cycles/sample (16, common practice since Parks & McClellan).
@@ -60,10 +65,11 @@ const gridDensity = 16
 // remez is Remez on a grid of the given density, started from the extremal
 // frequencies init (cycles/sample) when they fit the problem, evenly spaced ones
 // otherwise; it also returns the final extremal frequencies, to warm-start a
-// neighbouring or finer design.
-func remez(taps int, bands []Band, init []float64, density int) ([]float64, []float64, error) {
+// neighbouring or finer design, and the largest weighted error on the grid. A non-nil
+// tg replaces the bands' gains and weights point by point.
+func remez(taps int, bands []Band, init []float64, density int, tg target) (h, extF []float64, delta float64, err error) {
 	if err := checkBands(taps, bands); err != nil {
-		return nil, nil, fmt.Errorf("remez: %w", err)
+		return nil, nil, 0, fmt.Errorf("remez: %w", err)
 	}
 	odd := taps%2 == 1
 	r := taps / 2 // basis functions cos(kω), k < r (plus one for odd taps)
@@ -73,7 +79,7 @@ func remez(taps int, bands []Band, init []float64, density int) ([]float64, []fl
 	step := 0.5 / float64(density*r)
 	var f, x, d, w []float64
 	var bandEnd []int
-	for _, b := range bands {
+	for bi, b := range bands {
 		lo, hi := b.Lo, b.Hi
 		if !odd && hi > 0.5-step {
 			hi = 0.5 - step // type II responses vanish at 0.5
@@ -88,6 +94,9 @@ func remez(taps int, bands []Band, init []float64, density int) ([]float64, []fl
 		for i := 0; i < m; i++ {
 			fi := lo + (hi-lo)*float64(i)/float64(m-1)
 			di, wi := b.Gain, b.Weight
+			if tg != nil {
+				di, wi = tg(bi, fi)
+			}
 			if !odd {
 				c := math.Cos(math.Pi * fi)
 				di, wi = di/c, wi*c
@@ -105,7 +114,7 @@ func remez(taps int, bands []Band, init []float64, density int) ([]float64, []fl
 		scale = math.Max(scale, math.Abs(w[i]*d[i]))
 	}
 	if ng < r+1 {
-		return nil, nil, fmt.Errorf("remez: bands too narrow for %d taps", taps)
+		return nil, nil, 0, fmt.Errorf("remez: bands too narrow for %d taps", taps)
 	}
 	ext := make([]int, r+1)
 	for k := range ext {
@@ -134,9 +143,10 @@ func remez(taps int, bands []Band, init []float64, density int) ([]float64, []fl
 		}
 	}
 	var (
-		ip   interpolant
-		e    = make([]float64, ng)
-		done bool
+		ip    interpolant
+		e     = make([]float64, ng)
+		done  bool
+		worst float64 // largest weighted error on the grid of the last fit
 	)
 	const maxIter = 60
 	for iter := 0; iter < maxIter; iter++ {
@@ -157,12 +167,13 @@ func remez(taps int, bands []Band, init []float64, density int) ([]float64, []fl
 		thr := math.Abs(ip.delta)*(1-1e-6) - 1e-12*scale
 		next, ok := extrema(e, bandEnd, thr, r+1)
 		if !ok {
-			return nil, nil, fmt.Errorf("remez: %w (alternation lost at iteration %d)", ErrNoConvergence, iter)
+			return nil, nil, 0, fmt.Errorf("remez: %w (alternation lost at iteration %d)", ErrNoConvergence, iter)
 		}
 		same := true
 		for k := range next {
 			same = same && next[k] == ext[k]
 		}
+		worst = maxE
 		ext = next
 		if same || maxE-math.Abs(ip.delta) <= 1e-9*maxE {
 			done = true
@@ -170,14 +181,21 @@ func remez(taps int, bands []Band, init []float64, density int) ([]float64, []fl
 		}
 	}
 	if !done {
-		return nil, nil, fmt.Errorf("remez: %w in %d iterations", ErrNoConvergence, maxIter)
+		return nil, nil, 0, fmt.Errorf("remez: %w in %d iterations", ErrNoConvergence, maxIter)
 	}
-	ip.fit(ext, x, d, w)
-	extF := make([]float64, len(ext))
+	if !(worst-math.Abs(ip.delta) <= 1e-9*worst) {
+		// The set changed on the last step: measure the final fit.
+		ip.fit(ext, x, d, w)
+		worst = 0
+		for i := range f {
+			worst = math.Max(worst, math.Abs(w[i]*(d[i]-ip.eval(x[i]))))
+		}
+	}
+	extF = make([]float64, len(ext))
 	for k, i := range ext {
 		extF[k] = f[i]
 	}
-	return impulse(taps, ip.eval), extF, nil
+	return impulse(taps, ip.eval), extF, worst, nil
 }
 
 // interpolant is the degree r−1 polynomial in x through the r+1 extremal points
