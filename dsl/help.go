@@ -317,13 +317,29 @@ func shapeHelp(s *shapeSpec) string {
 			req = append(req, a.Name+" = ...")
 		}
 	}
-	req = append(req, "flip = ... | peak = ...", "...")
+	common := argNamesOf(commonArgs)
+	if s.PeakOnly {
+		req = append(req, "peak = ...", "...")
+		for i, n := range common {
+			if n == "flip" {
+				common = append(common[:i:i], common[i+1:]...)
+				break
+			}
+		}
+	} else {
+		req = append(req, "flip = ... | peak = ...", "...")
+	}
 	b.WriteString(strings.Join(req, ", ") + ")\n")
-	fmt.Fprintf(&b, "  %s\n  method: %s\n  arguments:\n", s.Help, s.Method)
+	fmt.Fprintf(&b, "  %s\n  method: %s\n", s.Help, s.Method)
+	if len(s.Args) == 0 {
+		b.WriteString("  arguments: the common ones: " + strings.Join(common, ", ") + " (help arguments)")
+		return b.String()
+	}
+	b.WriteString("  arguments:\n")
 	for _, a := range s.Args {
 		b.WriteString("    " + argLine(a) + "\n")
 	}
-	b.WriteString("  and the common ones: " + strings.Join(argNamesOf(commonArgs), ", ") + " (help arguments)")
+	b.WriteString("  and the common ones: " + strings.Join(common, ", ") + " (help arguments)")
 	return b.String()
 }
 

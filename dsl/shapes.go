@@ -43,6 +43,9 @@ type shapeSpec struct {
 	// Composite rows (train) take elements as well as Args, and none of the
 	// common arguments; they are built by the evaluator's train.
 	Composite bool
+	// PeakOnly rows (adiabatic shapes) take their amplitude from peak alone:
+	// the common flip does not apply (bir4's flip is an argument of its own).
+	PeakOnly bool
 }
 
 // commonArgs are taken by every shape (LANGUAGE.md "Shapes").
@@ -116,9 +119,10 @@ var shapes = []*shapeSpec{
 		Build: buildSLR,
 	},
 	{
-		Name:   "hsec",
-		Help:   "adiabatic hyperbolic secant HSn; amplitude by peak",
-		Method: "Silver, Joseph & Hoult, Phys. Rev. A 31:2753 (1985); HSn: Tannús & Garwood, J. Magn. Reson. A 120:133 (1996)",
+		Name:     "hsec",
+		Help:     "adiabatic hyperbolic secant HSn; amplitude by peak",
+		PeakOnly: true,
+		Method:   "Silver, Joseph & Hoult, Phys. Rev. A 31:2753 (1985); HSn: Tannús & Garwood, J. Magn. Reson. A 120:133 (1996)",
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
 			{Name: "order", Kind: argCount, Default: "1", Help: "n of HSn"},
@@ -129,9 +133,10 @@ var shapes = []*shapeSpec{
 		},
 	},
 	{
-		Name:   "chirp",
-		Help:   "linear frequency sweep at constant amplitude, edges smoothed; amplitude by peak",
-		Method: "linear sweep; adiabatic passage (Landau–Zener, 1932)",
+		Name:     "chirp",
+		Help:     "linear frequency sweep at constant amplitude, edges smoothed; amplitude by peak",
+		PeakOnly: true,
+		Method:   "linear sweep; adiabatic passage (Landau–Zener, 1932)",
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
 			{Name: "ramp", Dim: dimNumber, Default: "0", Help: "fraction of the duration smoothed at each end (0 to 0.5, or %)"},
@@ -141,9 +146,10 @@ var shapes = []*shapeSpec{
 		},
 	},
 	{
-		Name:   "wurst",
-		Help:   "wideband uniform-rate smooth-truncation sweep; amplitude by peak",
-		Method: "WURST (Kupce & Freeman, J. Magn. Reson. A 115:273, 1995)",
+		Name:     "wurst",
+		Help:     "wideband uniform-rate smooth-truncation sweep; amplitude by peak",
+		PeakOnly: true,
+		Method:   "WURST (Kupce & Freeman, J. Magn. Reson. A 115:273, 1995)",
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
 			{Name: "order", Dim: dimNumber, Default: "20", Help: "n of the amplitude 1 − |sin(πt/T)|ⁿ"},
@@ -153,9 +159,10 @@ var shapes = []*shapeSpec{
 		},
 	},
 	{
-		Name:   "bir4",
-		Help:   "B1-insensitive rotation by flip; amplitude by peak",
-		Method: "BIR-4 (Garwood & Ke, J. Magn. Reson. 94:511, 1991)",
+		Name:     "bir4",
+		Help:     "B1-insensitive rotation by flip; amplitude by peak",
+		PeakOnly: true,
+		Method:   "BIR-4 (Garwood & Ke, J. Magn. Reson. 94:511, 1991)",
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
 			{Name: "flip", Dim: dimAngle, Required: true, Help: "rotation angle, set by the phase jumps (the amplitude is set by peak)"},
