@@ -738,7 +738,7 @@ func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*puls
 	x := a.display()
 	prof := display.Profile{
 		Title: title,
-		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse},
+		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse, Log: a.logScale()},
 	}
 	for _, c := range curves {
 		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Unit: unitLabel(c.quantity.Unit), Y: c.values})
@@ -910,6 +910,35 @@ func roundSig(v float64, sig int) float64 {
 	return math.Round(v*e) / e
 }
 
+// colourRange is the fixed colour scale of a magnetization map, so that maps of
+// different pulses or settings compare at a glance: −1…1 for the components,
+// 0…1 for the magnitudes |Mxy| and |β|², −180…180 deg for the phase. Pulse
+// properties get (0, 0): the data's own range.
+func colourRange(q string) (lo, hi float64) {
+	switch q {
+	case "mx", "my", "mz":
+		return -1, 1
+	case "mxy", "echo":
+		return 0, 1
+	case "phase":
+		return -180, 180
+	}
+	return 0, 0
+}
+
+// logScale reports whether a relaxation-time axis spans more than a decade, where
+// a logarithmic scale reads best (its values are all positive: see evalAxis).
+func (a *sweepAxis) logScale() bool {
+	if a.kind != "t1" && a.kind != "t2" || a.n < 2 {
+		return false
+	}
+	lo, hi := a.value(0).Q.V, a.value(a.n-1).Q.V
+	if lo > hi {
+		lo, hi = hi, lo
+	}
+	return lo > 0 && hi/lo > 10
+}
+
 // mapOutput draws one quantity of one pulse over two axes.
 func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) display.Bundle {
 	// Z[iy][ix] with the first axis horizontal.
@@ -922,13 +951,14 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) displa
 	}
 	m := display.Map{
 		Title:    title + ": " + c.pulse + " " + c.quantity.Name,
-		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse},
-		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse},
+		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse, Log: axes[0].logScale()},
+		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse, Log: axes[1].logScale()},
 		Pulse:    c.pulse,
 		Quantity: c.quantity.Name,
 		Unit:     unitLabel(c.quantity.Unit),
 		Z:        z,
 	}
+	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
 	if ok {
 		m.Contour, m.HasContour = level, true
