@@ -53,9 +53,10 @@ const filesHelp = `Files
 
 const errorsHelp = `Errors
   An error names the line and column, repeats the line with a caret under the fault,
-  and says what was expected. Syntax errors are all reported at once (one per line)
-  and nothing runs; at run time the first error stops the cell, earlier outputs stay
-  and the failing statement changes nothing.`
+  and says what was expected. Syntax errors are all reported at once (one per line),
+  after the statements before the first faulty one have run; at run time the first
+  error stops the cell, earlier outputs stay and the failing statement changes
+  nothing.`
 
 // Help returns the help text for topic ("" for the overview). The texts are those
 // shown by inspection in the notebook and by `nutate help`.
@@ -103,7 +104,7 @@ func Help(topic string) (string, error) {
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "axes":
 		var b strings.Builder
-		b.WriteString("Sweep axes: KIND FROM to TO (points N | step S)\n")
+		b.WriteString("Sweep axes: KIND FROM to TO (points N | step S; the step goes from FROM toward TO whatever its sign)\n")
 		for _, a := range spinAxes {
 			fmt.Fprintf(&b, "  %-9s %s\n", a.Name, a.Help)
 		}
