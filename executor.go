@@ -12,22 +12,43 @@ import (
 // languageExecutor adapts a dsl.Session to kernel.Executor.
 type languageExecutor struct {
 	s *dsl.Session
+	// displays counts progress displays over the session: display ids must be
+	// unique across cells, since an update reaches every display with its id.
+	displays int
 }
 
 func newExecutor(dir string) *languageExecutor { return &languageExecutor{s: dsl.NewSession(dir)} }
 
+// Execute runs a cell. Long work shows a progress line, updated in place; when the
+// work ends (finished, failed or interrupted) the line is cleared, so a saved
+// notebook holds results only.
 func (e *languageExecutor) Execute(ctx context.Context, code string, emit func(kernel.Output)) error {
-	n := 0
+	id, shown := "", false
+	clear := func() {
+		if shown {
+			emit(kernel.Output{Data: map[string]any{"text/plain": ""}, DisplayID: id, Update: true})
+			shown = false
+		}
+	}
+	defer clear()
 	return e.s.Exec(ctx, code, dsl.Sink{
-		Display: func(b display.Bundle) { emit(kernel.Output{Data: b}) },
+		Display: func(b display.Bundle) {
+			clear()
+			emit(kernel.Output{Data: b})
+		},
 		Progress: func(task string, done, total int) {
-			id := fmt.Sprintf("progress-%d", n)
+			if done >= total {
+				clear()
+				return
+			}
+			if !shown {
+				e.displays++
+				id = fmt.Sprintf("nutate-progress-%d", e.displays)
+			}
 			pct := 100 * float64(done) / float64(max(total, 1))
 			text := fmt.Sprintf("%s: %.0f%% (%d of %d)", task, pct, done, total)
-			emit(kernel.Output{Data: map[string]any{"text/plain": text}, DisplayID: id, Update: done > 0})
-			if done >= total {
-				n++
-			}
+			emit(kernel.Output{Data: map[string]any{"text/plain": text}, DisplayID: id, Update: shown})
+			shown = true
 		},
 	})
 }
