@@ -1,0 +1,51 @@
+package main
+
+import (
+	"context"
+	"testing"
+
+	"nutate/kernel"
+)
+
+// TestProgressDisplayCleared: a long sweep shows a progress display, updates it in
+// place, and clears it when done, so saved notebooks keep results only; display
+// ids differ between cells (an update reaches every display with its id).
+func TestProgressDisplayCleared(t *testing.T) {
+	e := newExecutor(t.TempDir())
+	run := func(code string) []kernel.Output {
+		var outs []kernel.Output
+		if err := e.Execute(context.Background(), code, func(o kernel.Output) { outs = append(outs, o) }); err != nil {
+			t.Fatalf("%s: %v", code, err)
+		}
+		return outs
+	}
+	run("pulse p = sinc(duration = 4 ms, tbw = 8, flip = 90 deg, samples = 4000)")
+	ids := map[string]bool{}
+	for cell := 0; cell < 2; cell++ {
+		outs := run("sweep p over offset -20 kHz to 20 kHz points 20000 show mz")
+		last := map[string]kernel.Output{}
+		first := map[string]bool{}
+		for _, o := range outs {
+			if o.DisplayID == "" {
+				continue
+			}
+			if !first[o.DisplayID] && o.Update {
+				t.Errorf("cell %d: display %s updated before it was shown", cell, o.DisplayID)
+			}
+			first[o.DisplayID] = true
+			last[o.DisplayID] = o
+		}
+		if len(last) == 0 {
+			t.Fatalf("cell %d: a sweep of 8e7 steps showed no progress", cell)
+		}
+		for id, o := range last {
+			if ids[id] {
+				t.Errorf("display id %s reused in a later cell", id)
+			}
+			ids[id] = true
+			if text, _ := o.Data["text/plain"].(string); !o.Update || text != "" {
+				t.Errorf("progress display %s not cleared at the end: %+v", id, o)
+			}
+		}
+	}
+}
