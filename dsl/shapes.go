@@ -1,6 +1,7 @@
 package dsl
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -563,9 +564,46 @@ func (ev *evaluator) copyPulse(name string, old *pulseDef, c *Call) (*pulseDef, 
 	args := mergeArgs(old.Spec, old.Args, changes)
 	p, err := ev.build(old.Spec, args, c.Fun.P)
 	if err != nil {
-		return nil, err
+		return nil, inheritedFault(err, name, old, args, changes, c)
 	}
 	return &pulseDef{Name: name, Spec: old.Spec, Kind: old.Kind, Args: args, Pulse: p, Nucleus: ev.st.nucleus}, nil
+}
+
+// inheritedFault moves an error that build placed on an argument the copy
+// inherited (whose position lies in the original's statement, perhaps in another
+// cell) to the copy, naming the inherited value and how to replace it.
+func inheritedFault(err error, name string, old *pulseDef, args, changes map[string]argVal, c *Call) error {
+	var pe *posError
+	if !errors.As(err, &pe) {
+		return err
+	}
+	for _, ch := range changes {
+		if ch.Pos == pe.pos {
+			return err
+		}
+	}
+	names := make([]string, 0, len(args))
+	for n := range args {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		a := args[n]
+		if _, changed := changes[n]; changed || a.Pos != pe.pos {
+			continue
+		}
+		val := a.Word
+		if val == "" {
+			val = a.Val.String()
+		}
+		msg := strings.TrimSuffix(strings.TrimPrefix(pe.msg, n+": "), " (or omit it)")
+		at := c.Fun.P
+		if len(c.Args) == 1 {
+			at = c.Args[0].Value.Position()
+		}
+		return errAt(at, "%s inherits %s = %s from %s: %s; give %s = ... in the copy to replace it", name, n, val, old.Name, msg, n)
+	}
+	return err
 }
 
 // mergeArgs applies changes over base; a changed argument drops the others of its
