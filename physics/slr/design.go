@@ -1,6 +1,7 @@
 package slr
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -119,9 +120,13 @@ func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 // zeroPhase is the amplitude Σ h[k]·cos(2πf·(k − (L−1)/2)) of a symmetric filter.
 func zeroPhase(h []float64, f float64) float64 {
 	mid := float64(len(h)-1) / 2
+	// cos(ω(k − mid)) by rotation from k = 0, step ω (rounding grows as k·ε).
+	sw, cw := math.Sincos(2 * math.Pi * f)
+	sn, cs := math.Sincos(-2 * math.Pi * f * mid)
 	s := 0.0
-	for k, v := range h {
-		s += v * math.Cos(2*math.Pi*f*(float64(k)-mid))
+	for _, v := range h {
+		s += v * cs
+		cs, sn = cs*cw-sn*sw, sn*cw+cs*sw
 	}
 	return s
 }
@@ -202,6 +207,9 @@ const (
 	rippleLo  = 0.96
 	rippleAim = 0.98
 	rippleHi  = 1.002
+	topLo     = 0.94
+	topAim    = 0.965
+	topHi     = 0.99
 )
 
 // lowpass designs a linear-phase lowpass of taps coefficients, amplitude 1 at
@@ -219,7 +227,7 @@ const (
 // steps run on a coarse grid, each warm-started from the last; the final design
 // on the full grid starts from the coarse extremal set. It returns errNarrow
 // (wrapped) when the transition no longer fits, and reports the method used.
-func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
+func lowpass(ctx context.Context, taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
 	ws := d1 / d2
 	// A top passband is centred d1 below the amplitude 1 at zero offset; a
 	// lifted stopband is centred just above its ripple, which is at most
@@ -230,6 +238,10 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64
 	}
 	if sh.lift {
 		lift = rippleHi * d2
+	}
+	lo, aimR, hi := rippleLo, rippleAim, rippleHi
+	if sh.top && !sh.lift {
+		lo, aimR, hi = topLo, topAim, topHi
 	}
 	bands := func(c, tw float64) ([]Band, target, bool) {
 		p, s := c-tw/2, c+tw/2
@@ -266,7 +278,7 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64
 			h = hh
 			f := crossing(hh, level, 0, math.Min(0.5, c+1.5*tw))
 			okF := math.IsNaN(f) || math.Abs(f-edge) <= edgeTol*edge
-			okD := (delta >= rippleLo*d1 && delta <= rippleHi*d1) || delta == 0
+			okD := (delta >= lo*d1 && delta <= hi*d1) || delta == 0
 			if okF && okD {
 				return c, tw, h, nil
 			}
@@ -282,7 +294,7 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64
 				// A first step that scales the width as D∞ would: the
 				// design behaves as a plain one of ripples delta and
 				// delta/ws; later steps are secant steps in log δ.
-				aim := rippleAim * d1
+				aim := aimR * d1
 				k := DInf(aim, aim/ws) / DInf(delta, delta/ws)
 				if !math.IsNaN(prevD) && prevW != tw {
 					s := (math.Log(delta) - math.Log(prevD)) / (tw - prevW)
@@ -306,11 +318,17 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64
 	}
 	var ext []float64
 	coarse := func(b []Band, tg target) ([]float64, float64, error) {
+		if err := ctx.Err(); err != nil {
+			return nil, 0, err
+		}
 		hh, e, delta, err := remez(taps, b, ext, 4, tg)
 		ext = e
 		return hh, delta, err
 	}
 	fine := func(b []Band, tg target) ([]float64, float64, error) {
+		if err := ctx.Err(); err != nil {
+			return nil, 0, err
+		}
 		hh, e, delta, err := remez(taps, b, ext, gridDensity, tg)
 		ext = e
 		return hh, delta, err
@@ -349,16 +367,16 @@ func lowpass(taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64
 // minimum-phase spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler,
 // Electron. Lett. 6:329, 1970, from memory); maximum phase is its time reversal.
 // It returns the band edges used (cycles/sample) and the method.
-func betaFilter(n int, tbw, d1, d2 float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
+func betaFilter(ctx context.Context, n int, tbw, d1, d2 float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
 	edge := tbw / (2 * float64(n))
 	if design == Linear {
 		// The 50 % point of |β| at the nominal edge.
-		return lowpass(n, edge, DInf(d1, d2)/float64(n), 0.5, d1, d2, shaping{slope: stopSlope, top: top})
+		return lowpass(ctx, n, edge, DInf(d1, d2)/float64(n), 0.5, d1, d2, shaping{slope: stopSlope, top: top})
 	}
 	l1, l2 := 2*d1, d2*d2/2
 	taps := 2*n - 1
 	// |β|² ∝ the prototype: |β| = 1/2 where it is 1/4.
-	h2, fp, fs, method, err := lowpass(taps, edge, DInf(l1, l2)/float64(taps), 0.25, l1, l2, shaping{slope: 2 * stopSlope, top: top, lift: true})
+	h2, fp, fs, method, err := lowpass(ctx, taps, edge, DInf(l1, l2)/float64(taps), 0.25, l1, l2, shaping{slope: 2 * stopSlope, top: top, lift: true})
 	if err != nil {
 		return nil, 0, 0, "", err
 	}

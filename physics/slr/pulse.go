@@ -1,6 +1,7 @@
 package slr
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -68,19 +69,33 @@ func roleFlip(r shape.Role) float64 {
 // ripple of |β| has a trough at zero offset, the on-resonance flip of a 180°
 // design is below 180° by up to what the passband ripple allows.
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
-	p, _, err := design(spec, c, gamma, true)
+	p, _, err := design(context.Background(), spec, c, gamma, true)
 	return p, err
+}
+
+// PulseContext is Pulse that stops early with an error wrapping ctx.Err() when
+// ctx is cancelled (checked before each of the filter designs a pulse is made
+// of).
+func PulseContext(ctx context.Context, spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
+	p, _, err := design(ctx, spec, c, gamma, true)
+	return p, err
+}
+
+// PulseInfoContext is PulseInfo that stops early with an error wrapping
+// ctx.Err() when ctx is cancelled.
+func PulseInfoContext(ctx context.Context, spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, error) {
+	return design(ctx, spec, c, gamma, true)
 }
 
 // PulseInfo is Pulse that also returns how the design was made, including the
 // polynomials A and B.
 func PulseInfo(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, *Info, error) {
-	return design(spec, c, gamma, true)
+	return design(context.Background(), spec, c, gamma, true)
 }
 
 // design makes the pulse; suggest lets a failure for a too small
 // time-bandwidth product search for one that works (the search itself does not).
-func design(spec Spec, c shape.Common, gamma float64, suggest bool) (*shape.Pulse, *Info, error) {
+func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, suggest bool) (*shape.Pulse, *Info, error) {
 	fail := func(format string, args ...any) (*shape.Pulse, *Info, error) {
 		return nil, nil, fmt.Errorf("slr: "+format, args...)
 	}
@@ -160,7 +175,7 @@ func design(spec Spec, c shape.Common, gamma float64, suggest bool) (*shape.Puls
 			for _, k := range []float64{1, 1.001, 1.05} {
 				s := spec
 				s.TBW = need * k
-				if _, _, err := design(s, c, gamma, false); err != nil {
+				if _, _, err := design(ctx, s, c, gamma, false); err != nil {
 					ok = false
 					break
 				}
@@ -168,6 +183,9 @@ func design(spec Spec, c shape.Common, gamma float64, suggest bool) (*shape.Puls
 			if ok {
 				found = true
 				break
+			}
+			if err := ctx.Err(); err != nil {
+				return nil, nil, fmt.Errorf("slr: %w", err)
 			}
 			need *= 1.08
 		}
@@ -206,7 +224,7 @@ func design(spec Spec, c shape.Common, gamma float64, suggest bool) (*shape.Puls
 	// Where the passband ripple could carry |β| above 1, the passband is kept
 	// below its value at zero offset (see shaping).
 	top := math.Sin(flip/2)*(1+d1) > 1-betaMargin
-	h, fp, fs, method, err := betaFilter(n, tbw, d1, d2, spec.Design, top, cep)
+	h, fp, fs, method, err := betaFilter(ctx, n, tbw, d1, d2, spec.Design, top, cep)
 	if errors.Is(err, errNarrow) {
 		putCepstrum(cep)
 		cep = nil
