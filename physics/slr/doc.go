@@ -17,10 +17,15 @@
 // (Remez exchange) algorithm, least squares when the exchange fails, in linear,
 // minimum or maximum phase; it converts profile ripples to filter ripples per role,
 // completes α as the minimum-phase factor of 1 − |β|², and inverts to the RF.
+// Unlike the plain equiripple filter, whose flat stopband error puts spikes in
+// the pulse's end samples, the stopband weight rises away from the band edge, the
+// transition width is solved for the asked ripple, and the amplitude at zero
+// offset is pinned so that the on-resonance rotation is the nominal flip.
+// PulseContext lets a long design be cancelled.
 //
 // Units are those of package physics: seconds, tesla, hertz, radians, rad·s⁻¹·T⁻¹.
 // Filter frequencies (Band) are in cycles per sample, 0 to 0.5.
 //
-// Entry points: Pulse (a designed *shape.Pulse), Forward, Inverse, Profile, Remez,
+// Entry points: Pulse and PulseContext (a designed *shape.Pulse), Forward, Inverse, Profile, Remez,
 // LeastSquares, MinimumPhase, DInf, Ripples.
 package slr

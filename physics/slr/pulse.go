@@ -65,9 +65,15 @@ func roleFlip(r shape.Role) float64 {
 // TBW/duration between the 50 % points of |β|. Errors say which value cannot be
 // met and the closest that can.
 //
-// The profile ripples hold within the published relations; where the passband
-// ripple of |β| has a trough at zero offset, the on-resonance flip of a 180°
-// design is below 180° by up to what the passband ripple allows.
+// The profile ripples hold within the published relations, the transition being
+// widened from the D∞ estimate as far as the design needs for them (see
+// shaping). The on-resonance rotation is the nominal flip: exactly (to about
+// 0.01°) for excitation and saturation, whose β filter has amplitude 1 at zero
+// offset; for 180° designs |β| at zero offset is the passband's largest, kept
+// 1e-6 below 1, which leaves the flip about 0.2° short of 180° (up to 0.6° for
+// linear phase, where the passband may exceed its zero-offset value by a few
+// 1e-6 between design grid points). The first and last samples are small
+// against the peak (about 1 % at TBW 4 and above; see shaping).
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
 	p, _, err := design(context.Background(), spec, c, gamma, true)
 	return p, err
