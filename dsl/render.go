@@ -56,3 +56,23 @@ func waveformBundle(w display.Waveform, props display.Table) display.Bundle {
 	}
 	return b
 }
+
+// withSettingsJSON adds the sweep's `with` settings, as written, to its
+// application/json: {"settings": {"offset": "12 ppm", ...}, ...}. The title
+// carries them too.
+func withSettingsJSON(b display.Bundle, set *settings) display.Bundle {
+	if len(set.written) == 0 {
+		return b
+	}
+	raw, ok := b["application/json"].(json.RawMessage)
+	if !ok || len(raw) < 2 || raw[0] != '{' {
+		return b
+	}
+	m := make(map[string]string, len(set.written))
+	for _, w := range set.written {
+		m[w[0]] = w[1]
+	}
+	head, _ := json.Marshal(m)
+	b["application/json"] = json.RawMessage(`{"settings":` + string(head) + "," + string(raw[1:]))
+	return b
+}

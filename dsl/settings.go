@@ -42,6 +42,20 @@ type settings struct {
 	dwell   float64
 	given   map[string]Pos
 	b1Label string
+	written [][2]string // name and value as written, in order, for titles and JSON
+}
+
+// caption is " with NAME = VALUE, ..." for the settings given, or "": two sweeps
+// differing only in their settings get different titles.
+func (s *settings) caption() string {
+	if len(s.written) == 0 {
+		return ""
+	}
+	parts := make([]string, len(s.written))
+	for i, w := range s.written {
+		parts[i] = w[0] + " = " + w[1]
+	}
+	return " with " + strings.Join(parts, ", ")
 }
 
 // evalSettings reads `with` settings; allowed limits which are accepted here.
@@ -72,12 +86,14 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 				return nil, errAt(p, "start expects z, -z, x or y, got %s%s", exprText(st.Value, w), suggest(w, []string{"z", "-z", "x", "y"}))
 			}
 			s.start = d
+			s.written = append(s.written, [2]string{name, w})
 			continue
 		}
 		v, err := ev.evalExpr(st.Value)
 		if err != nil {
 			return nil, err
 		}
+		s.written = append(s.written, [2]string{name, v.String()})
 		switch name {
 		case "offset":
 			if s.offset, err = ev.want(v, dimFrequency, "offset", p); err != nil {

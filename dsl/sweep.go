@@ -314,13 +314,16 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	title := "sweep " + joinNames(s.Names) + " over " + axes[0].kind
 	if len(axes) == 2 {
 		title += " and " + axes[1].kind
+	}
+	title += set.caption()
+	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emit(mapOutput(title, axes, c, n0, n1))
+			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return nil
 	}
-	ev.emit(profileOutput(title, axes[0], curves, defs, ev.st, set.start))
+	ev.emit(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 	return nil
 }

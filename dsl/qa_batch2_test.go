@@ -1,0 +1,70 @@
+package dsl
+
+import (
+	"context"
+	"encoding/json"
+	"strings"
+	"testing"
+
+	"nutate/display"
+)
+
+// cellBundles runs one cell in a fresh session and returns its outputs.
+func cellBundles(t *testing.T, src string) []display.Bundle {
+	t.Helper()
+	var out []display.Bundle
+	if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { out = append(out, b) }}); err != nil {
+		t.Fatalf("%s: %v", src, err)
+	}
+	return out
+}
+
+// Two sweeps that differ only in their `with` settings must be told apart in
+// every representation: text, HTML, the SVG title and the JSON.
+func TestSweepSettingsInTitle(t *testing.T) {
+	const pulse = "field 7 T\npulse p = rect(duration = 1 ms, flip = 90 deg)\n"
+	cases := []struct {
+		name, sweep, want string
+		settings      map[string]string
+	}{
+		{"curves", "sweep p over duration 1 ms to 2 ms points 2 show mxy with offset = 12 ppm, b1 = 70%",
+			"sweep p over duration with offset = 12 ppm, b1 = 70%", map[string]string{"offset": "12 ppm", "b1": "70%"}},
+		{"map", "sweep p over duration 1 ms to 2 ms points 2, offset -1 kHz to 1 kHz points 3 show mz with start = -z",
+			"sweep p over duration and offset with start = -z", map[string]string{"start": "-z"}},
+		{"none", "sweep p over duration 1 ms to 2 ms points 2 show mxy", "sweep p over duration", nil},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			bs := cellBundles(t, pulse+c.sweep)
+			b := bs[len(bs)-1]
+			for _, mime := range []string{"text/plain", "text/html", "image/svg+xml"} {
+				s, _ := b[mime].(string)
+				if !strings.Contains(s, c.want) {
+					t.Errorf("%s lacks %q:\n%.400s", mime, c.want, s)
+				}
+				if c.settings == nil && strings.Contains(s, " with ") {
+					t.Errorf("%s names settings that were not given:\n%.400s", mime, s)
+				}
+			}
+			raw, _ := json.Marshal(b["application/json"])
+			var data struct {
+				Title    string
+				Settings map[string]string
+			}
+			if err := json.Unmarshal(raw, &data); err != nil {
+				t.Fatal(err)
+			}
+			if !strings.HasPrefix(data.Title, c.want) {
+				t.Errorf("json title %q, want %q", data.Title, c.want)
+			}
+			if len(data.Settings) != len(c.settings) {
+				t.Errorf("json settings %v, want %v", data.Settings, c.settings)
+			}
+			for k, v := range c.settings {
+				if data.Settings[k] != v {
+					t.Errorf("json settings[%s] = %q, want %q", k, data.Settings[k], v)
+				}
+			}
+		})
+	}
+}
