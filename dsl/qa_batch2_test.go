@@ -25,7 +25,7 @@ func TestSweepSettingsInTitle(t *testing.T) {
 	const pulse = "field 7 T\npulse p = rect(duration = 1 ms, flip = 90 deg)\n"
 	cases := []struct {
 		name, sweep, want string
-		settings      map[string]string
+		settings          map[string]string
 	}{
 		{"curves", "sweep p over duration 1 ms to 2 ms points 2 show mxy with offset = 12 ppm, b1 = 70%",
 			"sweep p over duration with offset = 12 ppm, b1 = 70%", map[string]string{"offset": "12 ppm", "b1": "70%"}},
