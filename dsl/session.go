@@ -21,7 +21,9 @@
 //
 // Limits: a cell of at most 1 MiB, expressions nested at most 100 deep, sweeps
 // within the engine's step budget (physics.DefaultMaxSteps), at most 100 000
-// points per axis and 10⁶ per map.
+// points per axis and 10⁶ per map; a pulse of at most 10⁶ samples with a dwell of
+// at least 10 ns (describe's JSON keeps at most 4096 of them), a peak of at most
+// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns.
 package dsl
 
 import (
