@@ -198,6 +198,10 @@ var errNarrow = errors.New("transition does not fit")
 // that ran out of steps may be before lowpass gives up with errNarrow.
 const narrowRatio = 1.1
 
+// narrowEdgeTol is how far from the nominal edge the crossing of such a design
+// may be (the checks ask for 2 %; the search aims at edgeTol).
+const narrowEdgeTol = 1.5e-2
+
 // Tolerances of lowpass: the 50 % crossing within edgeTol of the nominal edge;
 // the levelled passband error δ between rippleLo and rippleHi times the asked
 // ripple, aiming at rippleAim times it. rippleHi is just above 1 because a
@@ -313,6 +317,9 @@ func lowpass(ctx context.Context, taps int, edge, tw, level, d1, d2 float64, sh 
 		}
 		if prevD > narrowRatio*d1 {
 			return prevC, prevW, nil, fmt.Errorf("%w: passband error %.3g, want %.3g", errNarrow, prevD, d1)
+		}
+		if !(math.Abs(prevF-edge) <= narrowEdgeTol*edge) {
+			return prevC, prevW, nil, fmt.Errorf("%w: 50 %% point at %.4g cycles/sample, want %.4g", errNarrow, prevF, edge)
 		}
 		return prevC, prevW, h, nil
 	}
