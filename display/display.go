@@ -73,6 +73,9 @@ type Curve struct {
 	Quantity string    // "mxy", "phase", ...
 	Unit     string    // "" for magnetization (M0 units), "deg" for phase
 	Y        []float64 // one per X value
+	// Label, when set, names the quantity on the y axis and in the caption
+	// instead of Quantity ("b1rms at TR 10 ms"); curves are grouped by Quantity.
+	Label string
 }
 
 // Mark is a vertical marker on a profile (band edges, FWHM) at X with a label.
@@ -100,6 +103,9 @@ type Profile struct {
 	Curves  []Curve
 	Marks   []Mark
 	Summary Table // features of the curves (widths, ripple, extremes), shown as the table
+	// Notes are drawn in small text under the figure itself (a caution that must
+	// travel with the image), wrapped to its width; the table keeps its own.
+	Notes []string
 }
 
 // Map is one quantity over two axes (X horizontal), Z[iy][ix] at (X.Values[ix],
@@ -117,6 +123,11 @@ type Map struct {
 	HasContour bool
 	Summary    Table
 	ZMin, ZMax float64
+	// Label, when set, names the quantity on the colour bar and in the caption
+	// instead of Quantity.
+	Label string
+	// Notes are drawn in small text under the figure, as for Profile.
+	Notes []string
 }
 
 // Waveform is a pulse's samples against time for `describe`: amplitude (µT),

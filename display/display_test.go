@@ -9,7 +9,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -25,6 +27,52 @@ func samples() map[string]Bundle {
 		"map":               sampleMap().Bundle(),
 		"waveform":          w.Bundle(wt),
 		"waveform_gradient": wg.Bundle(wgt),
+		"profile_notes":     sampleRMSProfile().Bundle(),
+		"map_notes":         sampleNotedMap().Bundle(),
+	}
+}
+
+// Notes travel inside the figure, under the plot, and the quantity's label
+// replaces its name on the axis and in the caption.
+func TestFigureNotes(t *testing.T) {
+	words := []string{"IEC", "60601-2-33", "officer"}
+	cases := []struct {
+		name       string
+		with, bare Bundle
+		label      string
+	}{
+		{"profile", sampleRMSProfile().Bundle(), func() Bundle { p := sampleRMSProfile(); p.Notes = nil; return p.Bundle() }(), "b1rms at TR 10 ms (µT)"},
+		{"map", sampleNotedMap().Bundle(), func() Bundle { m := sampleNotedMap(); m.Notes = nil; return m.Bundle() }(), "mxy after the pulse"},
+	}
+	height := regexp.MustCompile(`<svg[^>]* height="([0-9.]+)`)
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			svg := c.with["image/svg+xml"].(string)
+			checkXML(t, svg)
+			for _, w := range words {
+				if !strings.Contains(svg, w) {
+					t.Errorf("svg lacks %q of the note", w)
+				}
+				if strings.Contains(c.bare["image/svg+xml"].(string), w) {
+					t.Errorf("svg without notes has %q", w)
+				}
+			}
+			if !strings.Contains(svg, c.label) {
+				t.Errorf("svg lacks the label %q", c.label)
+			}
+			if txt := c.with["text/plain"].(string); !strings.Contains(txt, c.label) {
+				t.Errorf("caption lacks the label %q:\n%s", c.label, txt)
+			}
+			hw, hb := height.FindStringSubmatch(svg), height.FindStringSubmatch(c.bare["image/svg+xml"].(string))
+			if hw == nil || hb == nil {
+				t.Fatal("svg without a height")
+			}
+			a, _ := strconv.ParseFloat(hw[1], 64)
+			b, _ := strconv.ParseFloat(hb[1], 64)
+			if !(a > b) {
+				t.Errorf("height with notes %g, without %g: want the notes to add a band", a, b)
+			}
+		})
 	}
 }
 

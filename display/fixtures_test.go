@@ -102,3 +102,25 @@ func sampleWaveform(gradient bool) (Waveform, Table) {
 		Rows: [][]string{{"duration", "10.24", "ms"}, {"peak", "13.5", "µT"}, {"peak", "575", "Hz"}}}
 	return w, t
 }
+
+// sampleNote is a caution long enough to wrap under a figure.
+const sampleNote = "energy and B1rms: relative, waveform-only estimates, not SAR; defer to the scanner's SAR supervision, IEC 60601-2-33, local rules and the MR safety officer"
+
+// sampleRMSProfile is a 2-point property sweep with a labelled quantity and a
+// note under the figure.
+func sampleRMSProfile() Profile {
+	return Profile{
+		Title:  "sweep p over duration with tr = 10 ms",
+		X:      Axis{Label: "duration", Unit: "ms", Values: []float64{1, 2}},
+		Curves: []Curve{{Pulse: "p", Quantity: "b1rms", Label: "b1rms at TR 10 ms", Unit: "µT", Y: []float64{1.86, 1.31}}},
+		Notes:  []string{sampleNote},
+	}
+}
+
+// sampleNotedMap is a small map with a note under the figure.
+func sampleNotedMap() Map {
+	m := sampleMapSized(21, 11)
+	m.Notes = []string{sampleNote}
+	m.Label = "mxy after the pulse"
+	return m
+}

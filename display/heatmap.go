@@ -23,7 +23,8 @@ const maxPixels = 640
 // text/html (the caller's Summary, or else the extremes and the contour level),
 // and every value in application/json: {"kind": "map", "title", "pulse",
 // "quantity", "unit", "x", "y" (axes as in a profile), "z": [[row at y[0]], ...],
-// "contour": level or null, "summary": table}; non-finite values are null.
+// "contour": level or null, "summary": table, "label" and "notes" (when set)};
+// non-finite values are null.
 //
 // The heat map is an embedded PNG of the cells (smoothly scaled by the viewer),
 // coloured with this package's own perceptually uniform scale (see rampAnchors);
@@ -44,9 +45,12 @@ func (m Map) Bundle() Bundle {
 func (m Map) caption() string {
 	nx, ny := m.dims()
 	return fmt.Sprintf("(figure: %s over %s × %s, %d × %d points; all values in application/json)",
-		axisLabel(orDefault(m.Quantity, "z"), m.Unit), axisLabel(orDefault(m.X.Label, "x"), m.X.Unit),
+		axisLabel(orDefault(m.label(), "z"), m.Unit), axisLabel(orDefault(m.X.Label, "x"), m.X.Unit),
 		axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit), nx, ny)
 }
+
+// label names the map's quantity on the colour bar and in the caption.
+func (m Map) label() string { return orDefault(m.Label, m.Quantity) }
 
 // dims is the usable grid size: the axis lengths, cut to what Z holds.
 func (m Map) dims() (nx, ny int) {
@@ -152,7 +156,9 @@ func (m Map) SVG() string {
 		headH += vg.Length(len(title))*rowHeight + 3
 	}
 	headH += vg.Length(len(rows)) * rowHeight
-	H := headH + bodyH
+	notes := wrapNotes(m.Notes)
+	footH := footHeight(notes)
+	H := headH + bodyH + footH
 
 	c := vgsvg.New(figWidth, H)
 	full := draw.New(c)
@@ -188,7 +194,8 @@ func (m Map) SVG() string {
 	ls := textStyle(labelSize)
 	barCol := barGap + barW + tickLen + 2 + tw + 6 + ls.Height("M") + 6
 
-	body := draw.Crop(full, 0, 0, 0, -(H - bodyH))
+	drawNotes(full, notes, footH)
+	body := draw.Crop(full, 0, 0, footH, -(H - bodyH - footH))
 	main := draw.Crop(body, 4, -barCol, 4, 0)
 	p.Draw(main)
 	dc := p.DataCanvas(main)
@@ -239,7 +246,7 @@ func (m Map) SVG() string {
 	ls.Rotation = math.Pi / 2
 	ls.XAlign, ls.YAlign = draw.XCenter, draw.YTop
 	full.FillText(ls, vg.Point{X: bar.Max.X + tickLen + 2 + tw + 6, Y: (bar.Min.Y + bar.Max.Y) / 2},
-		axisLabel(orDefault(m.Quantity, "z"), m.Unit))
+		axisLabel(orDefault(m.label(), "z"), m.Unit))
 	return finishSVG(c)
 }
 

@@ -106,15 +106,22 @@ func (a Axis) json() []byte {
 func (p Profile) json() json.RawMessage {
 	var curves, marks [][]byte
 	for _, c := range p.Curves {
-		curves = append(curves, newObject().str("pulse", c.Pulse).str("quantity", c.Quantity).
-			str("unit", c.Unit).raw("y", jsonFloats(c.Y)).done())
+		co := newObject().str("pulse", c.Pulse).str("quantity", c.Quantity).str("unit", c.Unit)
+		if c.Label != "" {
+			co = co.str("label", c.Label)
+		}
+		curves = append(curves, co.raw("y", jsonFloats(c.Y)).done())
 	}
 	for _, m := range p.Marks {
 		marks = append(marks, newObject().raw("x", jsonNum(m.X)).str("label", m.Label).done())
 	}
-	return newObject().str("kind", "profile").str("title", p.Title).raw("x", p.X.json()).
+	o := newObject().str("kind", "profile").str("title", p.Title).raw("x", p.X.json()).
 		raw("curves", jsonArray(curves)).raw("marks", jsonArray(marks)).
-		raw("summary", p.Summary.json()).done()
+		raw("summary", p.Summary.json())
+	if len(p.Notes) > 0 {
+		o = o.raw("notes", jsonStrings(p.Notes))
+	}
+	return o.done()
 }
 
 func (m Map) json() json.RawMessage {
@@ -126,9 +133,16 @@ func (m Map) json() json.RawMessage {
 	if m.HasContour {
 		contour = jsonNum(m.Contour)
 	}
-	return newObject().str("kind", "map").str("title", m.Title).str("pulse", m.Pulse).
+	o := newObject().str("kind", "map").str("title", m.Title).str("pulse", m.Pulse).
 		str("quantity", m.Quantity).str("unit", m.Unit).raw("x", m.X.json()).raw("y", m.Y.json()).
-		raw("z", jsonArray(rows)).raw("contour", contour).raw("summary", m.Summary.json()).done()
+		raw("z", jsonArray(rows)).raw("contour", contour).raw("summary", m.Summary.json())
+	if m.Label != "" {
+		o = o.str("label", m.Label)
+	}
+	if len(m.Notes) > 0 {
+		o = o.raw("notes", jsonStrings(m.Notes))
+	}
+	return o.done()
 }
 
 func (w Waveform) json(t Table) json.RawMessage {

@@ -17,8 +17,9 @@ const maxDots = 30
 // caller's Summary when it has rows or notes, otherwise the data itself when there
 // are at most 50 points, otherwise each curve's extremes. application/json holds
 // every value: {"kind": "profile", "title", "x": {"label", "unit", "reverse",
-// "values"}, "curves": [{"pulse", "quantity", "unit", "y"}], "marks": [{"x",
-// "label"}], "summary": table}; non-finite values are null.
+// "values"}, "curves": [{"pulse", "quantity", "unit", "label" (when set), "y"}],
+// "marks": [{"x", "label"}], "summary": table, "notes" (when any)}; non-finite
+// values are null.
 //
 // Curves of one quantity and unit share a panel; different quantities get stacked
 // panels over the shared x axis, in order of first appearance. Each pulse keeps
@@ -39,7 +40,7 @@ func (p Profile) Bundle() Bundle {
 func (p Profile) caption() string {
 	var qs []string
 	for _, g := range p.groups() {
-		qs = append(qs, axisLabel(g[0].Quantity, g[0].Unit))
+		qs = append(qs, axisLabel(g[0].label(), g[0].Unit))
 	}
 	if len(qs) == 0 {
 		return "(no curves)"
@@ -86,6 +87,9 @@ func pulses(cs []Curve) []string {
 	return out
 }
 
+// label names the curve's quantity on axes and in captions.
+func (c Curve) label() string { return orDefault(c.Label, c.Quantity) }
+
 func isDegrees(unit string) bool { return unit == "deg" || unit == "°" || unit == "degree" }
 
 // SVG renders the profile figure alone.
@@ -101,12 +105,13 @@ func (p Profile) SVG() string {
 		reverse: p.X.Reverse,
 		marks:   p.Marks,
 		logX:    p.X.Log,
+		notes:   p.Notes,
 	}
 	if len(p.X.Values) <= maxDots {
 		s.xpad = 0.025
 	}
 	for _, g := range p.groups() {
-		pn := panel{label: axisLabel(orDefault(g[0].Quantity, "y"), g[0].Unit), degrees: isDegrees(g[0].Unit), magnet: g[0].Unit == ""}
+		pn := panel{label: axisLabel(orDefault(g[0].label(), "y"), g[0].Unit), degrees: isDegrees(g[0].Unit), magnet: g[0].Unit == ""}
 		for _, c := range g {
 			l := line{x: p.X.Values, y: c.Y, style: seriesStyle(style[c.Pulse])}
 			if pn.degrees {

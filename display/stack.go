@@ -98,6 +98,8 @@ type stack struct {
 	xpad float64
 	// logX draws x on a logarithmic scale.
 	logX bool
+	// notes are drawn in small text under the panels.
+	notes []string
 }
 
 func panelHeightFor(n int) vg.Length {
@@ -415,7 +417,9 @@ func (s stack) svg() string {
 	if markRows > 0 {
 		headH += 2
 	}
-	H := headH + bodyH
+	notes := wrapNotes(s.notes)
+	footH := footHeight(notes)
+	H := headH + bodyH + footH
 
 	c := vgsvg.New(figWidth, H)
 	full := draw.New(c)
@@ -428,7 +432,8 @@ func (s stack) svg() string {
 		drawLegend(full, rows, dc.Min.X, dc.Max.X, y-rowHeight/2)
 		y -= vg.Length(len(rows)) * rowHeight
 	}
-	body := draw.Crop(full, 0, 0, 0, -(H - bodyH))
+	drawNotes(full, notes, footH)
+	body := draw.Crop(full, 0, 0, footH, -(H - bodyH - footH))
 	cs = plot.Align(plotRows, tiles, body)
 	for i, row := range cs {
 		ps[i].Draw(row[0])
@@ -443,6 +448,36 @@ func (s stack) svg() string {
 		}
 	}
 	return finishSVG(c)
+}
+
+// wrapNotes wraps each note to the figure's width in the notes' small type.
+func wrapNotes(notes []string) []string {
+	var out []string
+	for _, n := range notes {
+		out = append(out, wrapText(n, textStyle(markSize), figWidth-24)...)
+	}
+	return out
+}
+
+// footHeight is the height of the band under a figure holding the wrapped notes.
+func footHeight(lines []string) vg.Length {
+	if len(lines) == 0 {
+		return 0
+	}
+	return vg.Length(len(lines))*markRow + headPad
+}
+
+// drawNotes draws the wrapped note lines left-aligned in the band of height
+// footH at the bottom of the figure.
+func drawNotes(c draw.Canvas, lines []string, footH vg.Length) {
+	ns := textStyle(markSize)
+	ns.Color = markColor
+	ns.XAlign, ns.YAlign = draw.XLeft, draw.YTop
+	y := footH - headPad/2
+	for _, l := range lines {
+		c.FillText(ns, vg.Point{X: 12, Y: y}, l)
+		y -= markRow
+	}
 }
 
 // drawTitle draws the wrapped title lines centred, top at y, and returns the y
