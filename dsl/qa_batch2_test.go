@@ -68,3 +68,33 @@ func TestSweepSettingsInTitle(t *testing.T) {
 		})
 	}
 }
+
+// Figures of energy or B1rms carry the caution inside the SVG, and B1rms names
+// its TR on the axis; figures of magnetization carry no such note.
+func TestEnergyCautionInFigure(t *testing.T) {
+	const pulse = "pulse p = rect(duration = 1 ms, flip = 90 deg)\n"
+	cases := []struct {
+		name, sweep string
+		caution     bool
+		label       string
+	}{
+		{"b1rms", "sweep p over duration 1 ms to 2 ms points 2 show b1rms with tr = 10 ms", true, "b1rms at TR 10 ms (µT)"},
+		{"energy", "sweep p over duration 1 ms to 2 ms points 2 show energy", true, "energy"},
+		{"energy map", "sweep p over duration 1 ms to 2 ms points 2, flip 10 deg to 20 deg points 2 show energy", true, "energy"},
+		{"magnetization", "sweep p over duration 1 ms to 2 ms points 2 show mz", false, "mz"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			bs := cellBundles(t, pulse+c.sweep)
+			svg, _ := bs[len(bs)-1]["image/svg+xml"].(string)
+			for _, w := range []string{"not SAR", "IEC 60601-2-33", "safety officer"} {
+				if got := strings.Contains(svg, w); got != c.caution {
+					t.Errorf("svg has %q: %v, want %v", w, got, c.caution)
+				}
+			}
+			if !strings.Contains(svg, c.label) {
+				t.Errorf("svg lacks the label %q", c.label)
+			}
+		})
+	}
+}

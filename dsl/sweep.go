@@ -212,6 +212,16 @@ type curveData struct {
 	quantity quantitySpec
 	values   []float64
 	role     shape.Role
+	label    string // the quantity named on axes and in tables ("b1rms at TR 10 ms")
+}
+
+// quantityLabel names a quantity on axes and in tables: b1rms with the TR it is
+// averaged over.
+func quantityLabel(q string, tr float64) string {
+	if q == "b1rms" && tr > 0 {
+		return "b1rms at TR " + Quantity{tr, dimTime}.String()
+	}
+	return q
 }
 
 // sweep runs `sweep NAMES over AXES [show ...] [with ...]`.
@@ -310,6 +320,9 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	curves, err := ev.runSweep(runs, axes, qs, set, n0, n1, total, "sweep "+joinNames(s.Names))
 	if err != nil {
 		return err
+	}
+	for _, c := range curves {
+		c.label = quantityLabel(c.quantity.Name, set.tr)
 	}
 	title := "sweep " + joinNames(s.Names) + " over " + axes[0].kind
 	if len(axes) == 2 {
@@ -744,10 +757,12 @@ func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*puls
 		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse, Log: a.logScale()},
 	}
 	for _, c := range curves {
-		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Unit: unitLabel(c.quantity.Unit), Y: c.values})
+		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Y: c.values})
 	}
 	prof.Marks = bandMarks(a, defs, st)
 	prof.Summary = summaryTable(title, a, x, curves, defs, start)
+	// The caution travels inside the image, which is what gets saved or pasted.
+	prof.Notes = energyNote(curves)
 	return profileBundle(prof)
 }
 
@@ -800,6 +815,9 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		t := display.Table{Title: title, Columns: []display.Column{{Name: a.kind, Unit: unitLabel(a.unit)}}}
 		for _, c := range curves {
 			name := c.quantity.Name
+			if c.label != "" {
+				name = c.label
+			}
 			if len(uniquePulses(curves)) > 1 {
 				name = c.pulse + " " + name
 			}
@@ -958,8 +976,10 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) displa
 		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse, Log: axes[1].logScale()},
 		Pulse:    c.pulse,
 		Quantity: c.quantity.Name,
+		Label:    c.label,
 		Unit:     unitLabel(c.quantity.Unit),
 		Z:        z,
+		Notes:    energyNote([]*curveData{c}),
 	}
 	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
