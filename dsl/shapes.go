@@ -425,9 +425,16 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 	if a, ok := args["samples"]; ok && b.vals["samples"] > maxPulseSamples {
 		return nil, errAt(a.Pos, "samples must be at most %d, got %s", maxPulseSamples, a.Val)
 	}
+	if err := checkSlice(args, b); err != nil {
+		return nil, err
+	}
 	p, err := spec.Build(b)
 	if err != nil {
 		return nil, errAt(ev.blame(err, args, callPos), "%s", strings.TrimPrefix(err.Error(), spec.Name+": "))
+	}
+	if a, ok := args["thickness"]; ok && math.Abs(p.Gradient) > maxGradient {
+		return nil, errAt(a.Pos, "thickness %s needs a gradient of %s for a bandwidth of %s, over the limit of 1 T/m; want a thicker slice",
+			a.Val, Quantity{math.Abs(p.Gradient), dimGradient}.format("T/m"), Quantity{p.Bandwidth, dimFrequency})
 	}
 	if n := p.Wave.Len(); n > maxPulseSamples {
 		at, what := callPos, "the shape's own sampling"
@@ -445,6 +452,42 @@ const (
 	minDwell        = 10e-9
 	maxPulseSamples = 1_000_000
 )
+
+// Slice bounds (typo guards): no MR gradient system reaches 1 T/m, a gradient
+// below 1 µT/m selects no slice worth the name, and slices run from 1 µm
+// (microscopy) to 10 m (beyond any magnet's bore).
+const (
+	minGradient  = 1e-6 // T/m
+	maxGradient  = 1    // T/m
+	minThickness = 1e-6 // m
+	maxThickness = 10   // m
+)
+
+// checkSlice refuses a gradient or thickness that is zero, negative (thickness)
+// or outside the bounds above, naming the argument and the bound.
+func checkSlice(args map[string]argVal, b *builder) error {
+	if a, ok := args["thickness"]; ok {
+		switch t := b.vals["thickness"]; {
+		case !(t > 0):
+			return errAt(a.Pos, "thickness must be positive, got %s", a.Val)
+		case t < minThickness:
+			return errAt(a.Pos, "thickness must be at least 1 µm, got %s", a.Val)
+		case t > maxThickness:
+			return errAt(a.Pos, "thickness must be at most 10 m, got %s", a.Val)
+		}
+	}
+	if a, ok := args["gradient"]; ok {
+		switch g := math.Abs(b.vals["gradient"]); {
+		case g == 0:
+			return errAt(a.Pos, "gradient must not be 0 (leave it out for a pulse without slice selection), got %s", a.Val)
+		case !(g >= minGradient):
+			return errAt(a.Pos, "gradient must be at least 1 µT/m in magnitude, got %s", a.Val)
+		case g > maxGradient:
+			return errAt(a.Pos, "gradient must be at most 1 T/m in magnitude, got %s", a.Val)
+		}
+	}
+	return nil
+}
 
 // Amplitude bounds (typo guards): peak B1 in T, flip in rad.
 const (
