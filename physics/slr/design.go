@@ -340,10 +340,10 @@ func lowpass(ctx context.Context, taps int, edge, tw, level, d1, d2 float64, sh 
 		ext = e
 		return hh, delta, err
 	}
-	c, tw, _, err := solve(coarse, edge, tw, 10)
+	c, tw, _, err := solve(coarse, edge, tw, 16)
 	if err == nil {
 		// One full-grid design; solve again on the full grid only if it moved.
-		c, tw, h, err = solve(fine, c, tw, 4)
+		c, tw, h, err = solve(fine, c, tw, 8)
 	}
 	method = "remez"
 	if errors.Is(err, ErrNoConvergence) {
