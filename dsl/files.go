@@ -140,9 +140,14 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 		}
 		return errAt(s.PathP, "cannot read %s: %v", s.Path, err)
 	}
-	smp, duration, err := readWaveformCSV(s.Path, string(data), ev.st.nucleus.GammaBar)
+	smp, duration, err := readWaveformCSV(s.Path, string(data), ev.st.nucleus.GammaBar, set.dwell > 0)
 	if err != nil {
 		return errAt(s.PathP, "%v", err)
+	}
+	// A time column sets the dwell; a dwell given as well would silently
+	// replace the file's times (one row alone has no dwell to keep).
+	if set.dwell > 0 && smp.Times != nil && (len(smp.Times) > 1 || duration > 0) {
+		return errAt(set.given["dwell"], "%s has a time column, which sets the dwell; drop `with dwell` (it applies to files of amplitudes alone)", s.Path)
 	}
 	c := shape.NewCommon()
 	if set.dwell > 0 {
@@ -167,10 +172,12 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 	return nil
 }
 
-// readWaveformCSV reads an export, or a plain two-column time/amplitude file.
+// readWaveformCSV reads an export, a plain two-column time/amplitude file, or
+// (when a dwell is given, amplitudesOnly) a plain one-column amplitude file in
+// tesla, one sample a row; a header may then name amplitude without time.
 // Comment lines start with #; an export's comment gives the duration. Faults name
 // the row (line of the file) and column.
-func readWaveformCSV(name, text string, gammaBar float64) (shape.Samples, float64, error) {
+func readWaveformCSV(name, text string, gammaBar float64, amplitudesOnly bool) (shape.Samples, float64, error) {
 	var smp shape.Samples
 	var cols []csvColumn
 	duration := 0.0
@@ -199,7 +206,7 @@ func readWaveformCSV(name, text string, gammaBar float64) (shape.Samples, float6
 		fields := splitCSV(line)
 		if cols == nil {
 			if _, err := strconv.ParseFloat(strings.TrimSpace(fields[0]), 64); err != nil {
-				c, err := headerColumns(name, row, fields)
+				c, err := headerColumns(name, row, fields, amplitudesOnly)
 				if err != nil {
 					return smp, 0, err
 				}
@@ -207,12 +214,17 @@ func readWaveformCSV(name, text string, gammaBar float64) (shape.Samples, float6
 				continue
 			}
 			switch len(fields) {
+			case 1:
+				if !amplitudesOnly {
+					return smp, 0, fmt.Errorf("%s row %d: one column holds amplitudes alone; give their dwell with `with dwell = ...`, or add a time column", name, row)
+				}
+				cols = []csvColumn{{key: "amplitude", factor: 1}}
 			case 2:
 				cols = []csvColumn{{key: "time", factor: 1}, {key: "amplitude", factor: 1}}
 			case 5:
 				cols = []csvColumn{{key: "time", factor: 1}, {key: "amplitude", factor: 1}, {key: "phase", factor: 1}, {key: "frequency", factor: 1}, {key: "gradient", factor: 1}}
 			default:
-				return smp, 0, fmt.Errorf("%s row %d: want 2 columns (time, amplitude) or the 5 of an export without a header, got %d", name, row, len(fields))
+				return smp, 0, fmt.Errorf("%s row %d: want 1 column (amplitude, with a dwell), 2 (time, amplitude) or the 5 of an export without a header, got %d", name, row, len(fields))
 			}
 		}
 		if len(fields) != len(cols) {
@@ -279,12 +291,23 @@ func splitCSV(line string) []string {
 	if strings.Contains(line, ";") {
 		return strings.Split(line, ";")
 	}
-	return strings.Fields(line)
+	// Space-separated: a unit in parentheses belongs to the name before it
+	// ("amplitude (uT)").
+	var out []string
+	for _, f := range strings.Fields(line) {
+		if strings.HasPrefix(f, "(") && len(out) > 0 {
+			out[len(out)-1] += " " + f
+			continue
+		}
+		out = append(out, f)
+	}
+	return out
 }
 
 // headerColumns reads a header row: names time, amplitude, phase, frequency,
-// gradient, each with an optional unit in parentheses.
-func headerColumns(name string, row int, fields []string) ([]csvColumn, error) {
+// gradient, each with an optional unit in parentheses; time may be left out when
+// amplitudesOnly (a dwell is given).
+func headerColumns(name string, row int, fields []string, amplitudesOnly bool) ([]csvColumn, error) {
 	defaults := map[string]string{"time": "s", "amplitude": "T", "phase": "rad", "frequency": "Hz", "gradient": "T/m"}
 	dims := map[string]Dim{"time": dimTime, "amplitude": dimField, "phase": dimAngle, "frequency": dimFrequency, "gradient": dimGradient}
 	var cols []csvColumn
@@ -322,7 +345,7 @@ func headerColumns(name string, row int, fields []string) ([]csvColumn, error) {
 		}
 		cols = append(cols, c)
 	}
-	if !seen["time"] || !seen["amplitude"] {
+	if !seen["amplitude"] || !seen["time"] && !amplitudesOnly {
 		return nil, fmt.Errorf("%s row %d: want at least the columns time and amplitude", name, row)
 	}
 	return cols, nil

@@ -18,7 +18,7 @@ var statementHelp = []struct{ Name, Syntax, Help string }{
 	{"sweep", "sweep NAME[, NAME...] over AXIS[, AXIS] [show QUANTITY, ...] [with SETTING = EXPR, ...]\nAXIS: KIND FROM to TO (points N | step S)", "simulate the pulses over one axis (curves; several pulses overlay) or two (a map of one quantity, the first axis horizontal). Axes: offset, b1, position, t1, t2, or any argument of the pulse's shape (the pulse is rebuilt at each point and pulse properties can be shown). Without `show`, the quantities follow the first pulse's role. `export sweep to \"file.csv\"` saves the data"},
 	{"print", "print EXPR[, EXPR...]", "show values; `EXPR in UNIT` converts (`1 kHz in uT` through the nucleus, `12 ppm in Hz` through the nucleus and field)"},
 	{"export", "export NAME to \"file.csv\"\nexport sweep to \"file.csv\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration and dwell. `export sweep to \"file.csv\"` writes the last sweep's data (axes, then one column per curve). A file that is not an export is never overwritten"},
-	{"import", "import NAME from \"file.csv\" [with dwell = EXPR]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), or a plain two-column time/amplitude file. Paths are relative to the notebook's folder"},
+	{"import", "import NAME from \"file.csv\" [with dwell = EXPR]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), a plain two-column time/amplitude file, or with `with dwell = EXPR` a plain one-column file of amplitudes (T), one sample a row; a file with a time column refuses dwell. Paths are relative to the notebook's folder"},
 	{"report", "report NAME[, NAME...] [as markdown | as latex]", "a methods-section table of the pulses: shape, duration, samples, peak in µT and Hz, flip, bandwidth, TBW, energy (with its caution), adiabatic threshold"},
 	{"help", "help [TOPIC]", "topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors, or any statement, shape, argument, quantity or unit name"},
 	{"reset", "reset", "forget every name; nucleus 1H, no field"},
@@ -48,8 +48,9 @@ const filesHelp = `Files
   gradient (T/m); one row per sample, time at the sample's start.
   import NAME from "file.csv" [with dwell = EXPR] reads the same columns (only time
   and amplitude required; units may be changed in the header, e.g. amplitude (uT)),
-  or a plain two-column time/amplitude file. A malformed file is refused with the
-  row and column of the fault. Paths are relative to the notebook's folder.`
+  or a plain two-column time/amplitude file. With dwell it reads a plain column
+  of amplitudes (T), one sample a row; a file with a time column refuses dwell.
+  A malformed file is refused with the row and column of the fault. Paths are relative to the notebook's folder.`
 
 const errorsHelp = `Errors
   An error names the line and column, repeats the line with a caret under the fault,
