@@ -50,7 +50,8 @@ const filesHelp = `Files
   and amplitude required; units may be changed in the header, e.g. amplitude (uT)),
   or a plain two-column time/amplitude file. With dwell it reads a plain column
   of amplitudes (T), one sample a row; a file with a time column refuses dwell.
-  A malformed file is refused with the row and column of the fault. Paths are relative to the notebook's folder.`
+  A malformed file is refused with the row and column of the fault. Paths are
+  relative to the notebook's folder.`
 
 const errorsHelp = `Errors
   An error names the line and column, repeats the line with a caret under the fault,
