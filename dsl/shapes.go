@@ -594,22 +594,42 @@ func (ev *evaluator) definePulse(name string, c *Call) (*pulseDef, error) {
 func (ev *evaluator) copyPulse(name string, old *pulseDef, c *Call) (*pulseDef, error) {
 	if old.Spec == nil {
 		if len(c.Args) > 0 {
-			return nil, errAt(c.Args[0].Value.Position(), "%s is %s pulse; its arguments cannot be changed", quoteText(old.Name), map[bool]string{true: "a train", false: "an imported"}[old.Kind == "train"])
+			return nil, errAt(c.Args[0].Value.Position(), "%s is an imported pulse; its arguments cannot be changed", quoteText(old.Name))
 		}
 		cp := *old
 		cp.Name = name
 		return &cp, nil
+	}
+	if old.Kind == "train" {
+		for _, a := range c.Args {
+			if a.Name == nil {
+				return nil, errAt(a.Value.Position(), "a copy of train %s changes its arguments (%s); write a new train to change its elements", old.Name, strings.Join(old.Spec.argNames(), ", "))
+			}
+		}
 	}
 	changes, err := ev.evalArgs(old.Spec, c)
 	if err != nil {
 		return nil, err
 	}
 	args := mergeArgs(old.Spec, old.Args, changes)
-	p, err := ev.build(old.Spec, args, c.Fun.P)
+	p, err := ev.rebuild(old, args, c.Fun.P)
 	if err != nil {
 		return nil, inheritedFault(err, name, old, args, changes, c)
 	}
-	return &pulseDef{Name: name, Spec: old.Spec, Kind: old.Kind, Args: args, Pulse: p, Nucleus: ev.st.nucleus}, nil
+	nuc := ev.st.nucleus
+	if old.Kind == "train" {
+		nuc = old.Nucleus
+	}
+	return &pulseDef{Name: name, Spec: old.Spec, Kind: old.Kind, Args: args, Elems: old.Elems, Pulse: p, Nucleus: nuc}, nil
+}
+
+// rebuild builds pulse d again with the given arguments (a copy or a point of a
+// sweep): a shape row, or a train over the same elements.
+func (ev *evaluator) rebuild(d *pulseDef, args map[string]argVal, callPos Pos) (*shape.Pulse, error) {
+	if d.Kind == "train" {
+		return ev.buildTrain(d.Elems, args, callPos)
+	}
+	return ev.build(d.Spec, args, callPos)
 }
 
 // inheritedFault moves an error that build placed on an argument the copy

@@ -119,7 +119,7 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 		found := false
 		for _, d := range defs {
 			if d.Spec == nil {
-				return nil, errAt(ax.Kind.P, "%s is %s pulse; only spin axes (%s) apply to it", quoteText(d.Name), map[bool]string{true: "a train", false: "an imported"}[d.Kind == "train"], strings.Join(spinAxisNames(), ", "))
+				return nil, errAt(ax.Kind.P, "%s is an imported pulse; only spin axes (%s) apply to it", quoteText(d.Name), strings.Join(spinAxisNames(), ", "))
 			}
 			as, ok := d.Spec.arg(a.kind)
 			if !ok {
@@ -430,7 +430,7 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 				}
 				r.args = mergeArgs(d.Spec, d.Args, changes)
 				r.callPos = axes[shapeIdx[0]].pos
-				p, err := ev.build(d.Spec, r.args, r.callPos)
+				p, err := ev.rebuild(d, r.args, r.callPos)
 				if err != nil {
 					var pe *posError
 					msg := err.Error()
@@ -541,7 +541,7 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 // runOne fills the cells of one build.
 func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, n1 int, curves []*curveData, prog *progress) error {
 	if r.p == nil {
-		p, err := ev.build(r.def.Spec, r.args, r.callPos)
+		p, err := ev.rebuild(r.def, r.args, r.callPos)
 		if err != nil {
 			return err
 		}

@@ -81,6 +81,23 @@ func (ev *evaluator) train(name string, c *Call) (*pulseDef, error) {
 	if len(elems) == 0 {
 		return nil, errAt(c.Rparen, "train needs at least one element (a pulse name or a shape call)")
 	}
+	g := elems[0].Def.Pulse.Gamma
+	for i, e := range elems {
+		if e.Def.Pulse.Gamma != g {
+			return nil, errAt(c.Args[i].Value.Position(), "element %d was built for %s, the first for %s: a train plays one nucleus", i+1, e.Def.Nucleus.Name, elems[0].Def.Nucleus.Name)
+		}
+	}
+	spec, _ := lookupShape("train")
+	p, err := ev.buildTrain(elems, named, c.Fun.P)
+	if err != nil {
+		return nil, err
+	}
+	return &pulseDef{Name: name, Spec: spec, Kind: "train", Args: named, Elems: elems, Pulse: p, Nucleus: elems[0].Def.Nucleus}, nil
+}
+
+// buildTrain plays the elements back to back with the train's named arguments;
+// a copy or a sweep of a train rebuilds it here with arguments changed.
+func (ev *evaluator) buildTrain(elems []trainElem, named map[string]argVal, callPos Pos) (*shape.Pulse, error) {
 	b := &builder{vals: map[string]float64{}, words: map[string]string{}}
 	for n, v := range named {
 		if v.Word != "" {
@@ -109,16 +126,12 @@ func (ev *evaluator) train(name string, c *Call) (*pulseDef, error) {
 	cm.Center = b.num("center", 0)
 	cm.Role, _ = shape.ParseRole(b.word("role", ""))
 	var se []shape.Element
-	g := elems[0].Def.Pulse.Gamma
-	for i, e := range elems {
-		if e.Def.Pulse.Gamma != g {
-			return nil, errAt(c.Args[i].Value.Position(), "element %d was built for %s, the first for %s: a train plays one nucleus", i+1, e.Def.Nucleus.Name, elems[0].Def.Nucleus.Name)
-		}
+	for _, e := range elems {
 		se = append(se, shape.Element{Pulse: e.Def.Pulse, Phase: e.Phase})
 	}
 	p, err := shape.Train(se, gap, cm)
 	if err != nil {
-		return nil, errAt(c.Fun.P, "%s", strings.TrimPrefix(err.Error(), "train: "))
+		return nil, errAt(callPos, "%s", strings.TrimPrefix(err.Error(), "train: "))
 	}
-	return &pulseDef{Name: name, Kind: "train", Args: named, Elems: elems, Pulse: p, Nucleus: elems[0].Def.Nucleus}, nil
+	return p, nil
 }
