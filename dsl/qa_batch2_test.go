@@ -134,3 +134,34 @@ func TestTrainGapSweep(t *testing.T) {
 		t.Errorf("mz over gap = %v, want values that change with the gap", m)
 	}
 }
+
+// An internal error (a recovered panic; here a statement no parser makes) shows
+// one line to the user and sends the stack to the log.
+func TestInternalErrorOneLine(t *testing.T) {
+	var log strings.Builder
+	saved := internalLog
+	internalLog = &log
+	defer func() { internalLog = saved }()
+	s := NewSession(t.TempDir())
+	src := "pulse x = rect(duration = 1 ms, flip = 90 deg)"
+	err := s.run(context.Background(), src, &PulseStmt{P: Pos{0, 1, 1}, Name: Ident{Name: "x"}}, Sink{})
+	ce, ok := err.(*CellError)
+	if !ok || len(ce.Errs) != 1 {
+		t.Fatalf("got %v, want one CellError", err)
+	}
+	msg := ce.Errs[0].Msg
+	if !strings.HasPrefix(msg, "internal error: ") || strings.Contains(msg, "\n") || strings.Contains(msg, "goroutine") {
+		t.Errorf("message %q, want one line without a stack", msg)
+	}
+	for _, l := range ce.Traceback() {
+		if strings.Contains(l, "goroutine") || strings.Contains(l, ".go:") {
+			t.Errorf("traceback line %q holds the stack", l)
+		}
+	}
+	if !strings.Contains(log.String(), "goroutine") || !strings.Contains(log.String(), "line 1:1") {
+		t.Errorf("log %q, want the statement's position and the stack", log.String())
+	}
+	if _, ok := s.state().names["x"]; ok {
+		t.Error("the failed statement defined x")
+	}
+}

@@ -30,6 +30,8 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
+	"os"
 	"runtime/debug"
 	"sort"
 	"strings"
@@ -93,6 +95,10 @@ func (s *Session) Exec(ctx context.Context, src string, sink Sink) (err error) {
 	return nil
 }
 
+// internalLog receives the stack of an internal error (a recovered panic), which
+// the cell's error gives in one line only: the process's stderr, the kernel's log.
+var internalLog io.Writer = os.Stderr
+
 // maxCell bounds the size of one cell.
 const maxCell = 1 << 20
 
@@ -114,8 +120,12 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 	}
 	defer func() {
 		if r := recover(); r != nil {
+			// One line for the user; the stack goes to the log (the kernel's
+			// stderr), not into the notebook.
 			p := st.Position()
-			err = &CellError{Errs: []*Error{{Pos: p, Msg: fmt.Sprintf("internal error: %v (please report this with the cell)\n%s", r, firstFrames(debug.Stack())), Line: lineOf(src, p.Offset)}}, Stmt: p.Offset}
+			fmt.Fprintf(internalLog, "nutate: internal error in the statement at line %d:%d: %v\n%s", p.Line, p.Col, r, debug.Stack())
+			msg := strings.Join(strings.Fields(fmt.Sprint(r)), " ")
+			err = &CellError{Errs: []*Error{{Pos: p, Msg: "internal error: " + msg + " (please report this with the cell)", Line: lineOf(src, p.Offset)}}, Stmt: p.Offset}
 		}
 		if err != nil {
 			s.used = usedBefore
@@ -145,14 +155,6 @@ func (s *Session) state() *state {
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	return s.st
-}
-
-func firstFrames(stack []byte) string {
-	lines := strings.Split(string(stack), "\n")
-	if len(lines) > 12 {
-		lines = lines[:12]
-	}
-	return strings.Join(lines, "\n")
 }
 
 func toCellError(src string, st Stmt, e error) *CellError {
