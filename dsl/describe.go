@@ -1,8 +1,10 @@
 package dsl
 
 import (
+	"errors"
 	"fmt"
 	"math"
+	"strings"
 
 	"nutate/display"
 	"nutate/physics/shape"
@@ -13,7 +15,17 @@ const energyCaution = "Energy and B1rms are relative, waveform-only estimates, n
 
 // measure runs shape.Measure for a pulse with the session's field and the tr given.
 func (ev *evaluator) measure(d *pulseDef, tr float64) (shape.Properties, error) {
-	return shape.Measure(ev.ctx, d.Pulse, shape.MeasureOptions{TR: tr, Field: ev.st.field})
+	pr, err := shape.Measure(ev.ctx, d.Pulse, shape.MeasureOptions{TR: tr, Field: ev.st.field})
+	return pr, withoutPrefix(err, "measure: ")
+}
+
+// withoutPrefix drops a package's prefix from an error shown to the user, keeping
+// any other error (a cancellation) as it is.
+func withoutPrefix(err error, prefix string) error {
+	if err == nil || !strings.HasPrefix(err.Error(), prefix) {
+		return err
+	}
+	return errors.New(strings.TrimPrefix(err.Error(), prefix))
 }
 
 func gammaBarOf(p *shape.Pulse) float64 { return math.Abs(p.Gamma) / (2 * math.Pi) }
@@ -49,6 +61,9 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 	}
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {
+			return err
+		}
+		if err := set.checkTR(d.Name, d.Pulse); err != nil {
 			return err
 		}
 		pr, err := ev.measure(d, set.tr)

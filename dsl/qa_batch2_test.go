@@ -165,3 +165,21 @@ func TestInternalErrorOneLine(t *testing.T) {
 		t.Error("the failed statement defined x")
 	}
 }
+
+// replaceNumber rewrites whole values only: not inside a longer number nor
+// before a longer unit.
+func TestReplaceNumber(t *testing.T) {
+	cases := []struct{ s, old, repl, want string }{
+		{"got -0.001 s", "-0.001 s", "-1 ms", "got -1 ms"},
+		{"got 10.001 s, then 0.001 s", "0.001 s", "1 ms", "got 10.001 s, then 1 ms"},
+		{"gradient 1 T/m, peak 1 T", "1 T", "1000 mT", "gradient 1 T/m, peak 1000 mT"},
+		{"dwell 0.003 s does not divide duration 0.001 s", "0.003 s", "3 ms", "dwell 3 ms does not divide duration 0.001 s"},
+	}
+	for _, c := range cases {
+		t.Run(c.s, func(t *testing.T) {
+			if got := replaceNumber(c.s, c.old, c.repl); got != c.want {
+				t.Errorf("got %q, want %q", got, c.want)
+			}
+		})
+	}
+}

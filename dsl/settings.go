@@ -3,6 +3,8 @@ package dsl
 import (
 	"math"
 	"strings"
+
+	"nutate/physics/shape"
 )
 
 // settingSpec is one `with` setting.
@@ -43,6 +45,26 @@ type settings struct {
 	given   map[string]Pos
 	b1Label string
 	written [][2]string // name and value as written, in order, for titles and JSON
+}
+
+// text is setting name as written ("0.5 ms"), or "".
+func (s *settings) text(name string) string {
+	for _, w := range s.written {
+		if w[0] == name {
+			return w[1]
+		}
+	}
+	return ""
+}
+
+// checkTR refuses a tr shorter than pulse p (named name): B1rms over one
+// repetition needs the whole pulse inside it. The error points at the tr value
+// and quotes it as written.
+func (s *settings) checkTR(name string, p *shape.Pulse) error {
+	if s.tr > 0 && s.tr < p.Duration() {
+		return errAt(s.given["tr"], "tr = %s is shorter than %s (%s): want tr at least the pulse's duration", s.text("tr"), name, Quantity{p.Duration(), dimTime})
+	}
+	return nil
 }
 
 // caption is " with NAME = VALUE, ..." for the settings given, or "": two sweeps

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 
 	"nutate/physics"
@@ -430,7 +431,7 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 	}
 	p, err := spec.Build(b)
 	if err != nil {
-		return nil, errAt(ev.blame(err, args, callPos), "%s", strings.TrimPrefix(err.Error(), spec.Name+": "))
+		return nil, errAt(ev.blame(err, args, callPos), "%s", asWritten(strings.TrimPrefix(err.Error(), spec.Name+": "), args, b))
 	}
 	if a, ok := args["thickness"]; ok && math.Abs(p.Gradient) > maxGradient {
 		return nil, errAt(a.Pos, "thickness %s needs a gradient of %s for a bandwidth of %s, over the limit of 1 T/m; want a thicker slice",
@@ -494,6 +495,58 @@ const (
 	maxPeak = 1e-3
 	maxFlip = 100 * 2 * math.Pi
 )
+
+// siUnits are the units package shape writes its values in (plain SI, %g).
+var siUnits = []struct {
+	dim  Dim
+	unit string
+}{{dimTime, "s"}, {dimFrequency, "Hz"}, {dimField, "T"}, {dimLength, "m"}, {dimAngle, "rad"}, {dimGradient, "T/m"}}
+
+// asWritten replaces, in a shape's message, each argument's value as package
+// shape writes it ("-0.001 s") by the value as the user wrote it ("-1 ms").
+func asWritten(msg string, args map[string]argVal, b *builder) string {
+	names := make([]string, 0, len(args))
+	for n := range args {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		a := args[n]
+		if a.Word != "" {
+			continue
+		}
+		for _, u := range siUnits {
+			if a.Val.Q.D != u.dim && !(u.dim == dimField && a.Val.Q.D == dimFrequency) && !(u.dim == dimFrequency && a.Val.Q.D == dimPPM) {
+				continue
+			}
+			msg = replaceNumber(msg, strconv.FormatFloat(b.vals[n], 'g', -1, 64)+" "+u.unit, a.Val.String())
+		}
+	}
+	return msg
+}
+
+// replaceNumber replaces whole occurrences of the value-and-unit old: not part of
+// a longer number before it, nor of a longer unit after it.
+func replaceNumber(s, old, repl string) string {
+	var out strings.Builder
+	for {
+		i := strings.Index(s, old)
+		if i < 0 {
+			out.WriteString(s)
+			return out.String()
+		}
+		end := i + len(old)
+		before := i > 0 && strings.ContainsRune("0123456789.-+e", rune(s[i-1]))
+		after := end < len(s) && (isWordByte(s[end]) || s[end] == '/' || s[end] == '²')
+		out.WriteString(s[:i])
+		if before || after {
+			out.WriteString(old)
+		} else {
+			out.WriteString(repl)
+		}
+		s = s[end:]
+	}
+}
 
 // blame places a shape's error at the argument it names, if any.
 func (ev *evaluator) blame(err error, args map[string]argVal, def Pos) Pos {

@@ -549,6 +549,12 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 		defer func() { r.p = nil }()
 	}
 	p := r.p
+	if err := set.checkTR(r.def.Name, p); err != nil {
+		if at := pointText(axes, r.fixed); at != "" {
+			return errAt(set.given["tr"], "at %s: %s", at, err.(*posError).msg)
+		}
+		return err
+	}
 	gb := gammaBarOf(p)
 	var spinAx []int
 	for i, a := range axes {
@@ -617,7 +623,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			if ev.ctx.Err() != nil {
 				return ev.ctx.Err()
 			}
-			return errAt(axes[0].pos, "measuring %s at %s: %v", r.def.Name, pointText(axes, r.fixed), err)
+			return errAt(axes[0].pos, "measuring %s at %s: %v", r.def.Name, pointText(axes, r.fixed), withoutPrefix(err, "measure: "))
 		}
 		if prog != nil {
 			prog.mu.Lock()
