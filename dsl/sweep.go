@@ -258,13 +258,23 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	// Quantities.
 	var qs []quantitySpec
+	mapNote := ""
 	if len(s.Show) == 0 {
-		for _, n := range defaultQuantities(defs[0].Pulse.Role) {
+		names := defaultQuantities(defs[0].Pulse.Role)
+		if len(axes) == 2 {
+			// A map shows one quantity: the role's first, or mz without a role
+			// (an mx map says little), and says which was picked.
+			names = names[:1]
+			why := "the default for role " + defs[0].Pulse.Role.String()
+			if defs[0].Pulse.Role == shape.RoleNone {
+				names = []string{"mz"}
+				why = "the default for a pulse without a role"
+			}
+			mapNote = "showing " + names[0] + ", " + why + "; choose another with `show` (mx, my, mz, mxy, phase, echo)"
+		}
+		for _, n := range names {
 			q, _ := lookupQuantity(n)
 			qs = append(qs, q)
-		}
-		if len(axes) == 2 {
-			qs = qs[:1]
 		}
 	}
 	for _, id := range s.Show {
@@ -331,7 +341,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	title += set.caption()
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1), set))
+			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return nil
@@ -967,7 +977,7 @@ func (a *sweepAxis) logScale() bool {
 }
 
 // mapOutput draws one quantity of one pulse over two axes.
-func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) display.Bundle {
+func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string) display.Bundle {
 	// Z[iy][ix] with the first axis horizontal.
 	z := make([][]float64, n1)
 	for iy := range z {
@@ -1019,6 +1029,9 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int) displa
 		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(len(c.values)), 4)) + " % of the map"})
 	}
 	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: energyNote([]*curveData{c})}
+	if note != "" {
+		m.Summary.Notes = append([]string{note}, m.Summary.Notes...)
+	}
 	return mapBundle(m)
 }
 
