@@ -92,7 +92,7 @@ func Help(topic string) (string, error) {
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "quantities":
 		var b strings.Builder
-		b.WriteString("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo; otherwise mx my mz)\n")
+		b.WriteString("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo; otherwise mx my mz, or mz on a map; a map shows the first)\n")
 		for _, q := range quantityTable {
 			fmt.Fprintf(&b, "  %-10s %s\n", q.Name, q.Help)
 		}
