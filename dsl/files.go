@@ -48,7 +48,7 @@ func (ev *evaluator) export(s *ExportStmt) error {
 		if err := os.WriteFile(path, t.csv(), 0o644); err != nil {
 			return errAt(s.PathP, "cannot write %s: %v", s.Path, err)
 		}
-		ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %d rows, columns %s", t.title, s.Path, len(t.rows), strings.Join(t.columns, ", "))))
+		ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %s, columns %s", t.title, s.Path, plural(len(t.rows), "row"), strings.Join(t.columns, ", "))))
 		return nil
 	}
 	d, err := ev.pulseNamed(s.Name)
@@ -80,7 +80,7 @@ func (ev *evaluator) export(s *ExportStmt) error {
 	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
 		return errAt(s.PathP, "cannot write %s: %v", s.Path, err)
 	}
-	ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %d samples, %d columns (%s)", d.Name, s.Path, n, len(exportColumns), strings.Join(exportColumns, ", "))))
+	ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %s, %d columns (%s)", d.Name, s.Path, plural(n, "sample"), len(exportColumns), strings.Join(exportColumns, ", "))))
 	return nil
 }
 

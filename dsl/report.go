@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"nutate/display"
+	"nutate/physics/shape"
 )
 
 // report runs `report NAME, ... [as markdown | as latex]`: a methods-section table
@@ -19,12 +20,22 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
 		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth", Unit: "Hz"},
 		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
-	adiabatic := false
+	adiabatic, slice, role := false, false, false
 	for _, d := range defs {
 		adiabatic = adiabatic || d.Pulse.Adiabatic
+		slice = slice || d.Pulse.Gradient != 0
+		role = role || d.Pulse.Role != shape.RoleNone
 	}
 	if adiabatic {
 		cols = append(cols, display.Column{Name: "adiabatic threshold", Unit: "µT"})
+	}
+	// A methods table of slice-selective pulses gives the gradient and the
+	// (design) slice thickness; roles say what each pulse is for.
+	if slice {
+		cols = append(cols, display.Column{Name: "gradient", Unit: "mT/m"}, display.Column{Name: "design slice thickness", Unit: "mm"})
+	}
+	if role {
+		cols = append(cols, display.Column{Name: "role"})
 	}
 	var rows [][]string
 	var warnings []string
@@ -70,6 +81,23 @@ func (ev *evaluator) report(s *ReportStmt) error {
 				th = fmtOpt(pr.Threshold, func(v float64) string { return formatNumber(roundSig(v*1e6, 4)) })
 			}
 			row = append(row, th)
+		}
+		if slice {
+			g, th := "—", "—"
+			if p.Gradient != 0 {
+				g = formatNumber(roundSig(p.Gradient*1e3, 5))
+				if p.Bandwidth != 0 {
+					th = formatNumber(roundSig(shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient)*1e3, 5))
+				}
+			}
+			row = append(row, g, th)
+		}
+		if role {
+			r := "—"
+			if p.Role != shape.RoleNone {
+				r = p.Role.String()
+			}
+			row = append(row, r)
 		}
 		rows = append(rows, row)
 	}
