@@ -63,7 +63,10 @@ func (e *languageExecutor) Inspect(code string, cursor int, detail int) (string,
 
 func (e *languageExecutor) IsComplete(code string) (string, string) { return dsl.IsComplete(code) }
 
-func (e *languageExecutor) Language() kernel.LanguageInfo {
+func (e *languageExecutor) Language() kernel.LanguageInfo { return languageInfo() }
+
+// languageInfo describes the language for kernel_info and notebook metadata.
+func languageInfo() kernel.LanguageInfo {
 	return kernel.LanguageInfo{
 		Name:          "nutate",
 		Version:       version,

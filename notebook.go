@@ -168,7 +168,7 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 		meta = map[string]any{}
 		nb["metadata"] = meta
 	}
-	lang := newExecutor("").Language()
+	lang := languageInfo()
 	meta["kernelspec"] = map[string]any{"name": "nutate", "display_name": "Nutate (RF pulses)", "language": "nutate"}
 	meta["language_info"] = map[string]any{"name": lang.Name, "version": lang.Version, "mimetype": lang.Mimetype, "file_extension": lang.FileExtension}
 	settings := []any{}
