@@ -19,35 +19,13 @@ func Chirp(c Common, gamma float64, bandwidth, ramp float64) (*Pulse, error) {
 	if !(ramp >= 0 && ramp <= 0.5) {
 		return nil, fmt.Errorf("%s: ramp must be a fraction from 0 to 0.5, got %g", name, ramp)
 	}
-	def, err := c.sweepSamples(bandwidth)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	n, dt, err := c.adiabaticTimes(def, false)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
 	T := c.Duration
-	f := func(t float64) float64 { return bandwidth * t / T }
-	ts := sampleTimes(n, dt)
-	u := make([]float64, n)
-	freq := make([]float64, n)
-	for j, t := range ts {
-		u[j] = 1
+	amp := func(t float64) float64 {
 		if s := T/2 - math.Abs(t); ramp > 0 && s < ramp*T {
-			u[j] = math.Sin(math.Pi / 2 * s / (ramp * T))
+			return math.Sin(math.Pi / 2 * s / (ramp * T))
 		}
-		freq[j] = f(t)
+		return 1
 	}
-	p, err := polar(name, c, gamma, u, integratePhase(f, ts), freq, dt)
-	if err != nil {
-		return nil, err
-	}
-	if p.Role == RoleNone {
-		p.Role = RoleInvert
-	}
-	p.Bandwidth = bandwidth
-	p.Sweep = bandwidth
-	p.TBW = bandwidth * T
-	return p, p.setSlice(c)
+	f := func(t float64) float64 { return bandwidth * t / T }
+	return sweptPulse(name, c, gamma, bandwidth, amp, f)
 }

@@ -46,35 +46,11 @@ func Hsec(c Common, gamma float64, order int, bandwidth, beta float64) (*Pulse, 
 	if err := checkBandwidth(name, bandwidth); err != nil {
 		return nil, err
 	}
-	def, err := c.sweepSamples(bandwidth)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	n, dt, err := c.adiabaticTimes(def, false)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
 	T := c.Duration
 	sweep := hsecSweep(order, beta)
+	amp := func(t float64) float64 { return sech(beta * math.Pow(math.Abs(2*t/T), float64(order))) }
 	f := func(t float64) float64 { return -bandwidth / 2 * sweep(2*t/T) }
-	ts := sampleTimes(n, dt)
-	u := make([]float64, n)
-	freq := make([]float64, n)
-	for j, t := range ts {
-		u[j] = sech(beta * math.Pow(math.Abs(2*t/T), float64(order)))
-		freq[j] = f(t)
-	}
-	p, err := polar(name, c, gamma, u, integratePhase(f, ts), freq, dt)
-	if err != nil {
-		return nil, err
-	}
-	if p.Role == RoleNone {
-		p.Role = RoleInvert
-	}
-	p.Bandwidth = bandwidth
-	p.Sweep = bandwidth
-	p.TBW = bandwidth * T
-	return p, p.setSlice(c)
+	return sweptPulse(name, c, gamma, bandwidth, amp, f)
 }
 
 func sech(x float64) float64 {

@@ -67,6 +67,41 @@ func integratePhase(f func(t float64) float64, ts []float64) []float64 {
 	return ph
 }
 
+// sweptPulse samples a frequency-swept inversion of the given bandwidth (Hz)
+// over c.Duration: unit-peak amplitude amp(t) and instantaneous frequency f(t)
+// (Hz), t from the middle of the pulse, on the sweepSamples default grid. The
+// frequency is integrated into the phase of B1 (integratePhase) and recorded in
+// Pulse.Freq; the role is RoleInvert unless c.Role is set, and Bandwidth and
+// Sweep are the bandwidth, TBW the bandwidth times c.Duration.
+func sweptPulse(name string, c Common, gamma, bandwidth float64, amp, f func(t float64) float64) (*Pulse, error) {
+	def, err := c.sweepSamples(bandwidth)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	n, dt, err := c.adiabaticTimes(def, false)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	ts := sampleTimes(n, dt)
+	u := make([]float64, n)
+	freq := make([]float64, n)
+	for j, t := range ts {
+		u[j] = amp(t)
+		freq[j] = f(t)
+	}
+	p, err := polar(name, c, gamma, u, integratePhase(f, ts), freq, dt)
+	if err != nil {
+		return nil, err
+	}
+	if p.Role == RoleNone {
+		p.Role = RoleInvert
+	}
+	p.Bandwidth = bandwidth
+	p.Sweep = bandwidth
+	p.TBW = bandwidth * c.Duration
+	return p, p.setSlice(c)
+}
+
 // polar builds a pulse from a unit-peak amplitude u, a phase (rad) and an
 // instantaneous frequency (Hz) per sample, scaled to c.Peak; then applies Phase,
 // Center and the slice gradient. The pulse is marked adiabatic with an undefined

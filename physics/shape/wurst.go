@@ -28,32 +28,8 @@ func Wurst(c Common, gamma float64, bandwidth float64, order float64) (*Pulse, e
 	if err := checkBandwidth(name, bandwidth); err != nil {
 		return nil, err
 	}
-	def, err := c.sweepSamples(bandwidth)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
-	n, dt, err := c.adiabaticTimes(def, false)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
 	T := c.Duration
+	amp := func(t float64) float64 { return 1 - math.Pow(math.Abs(math.Sin(math.Pi*t/T)), order) }
 	f := func(t float64) float64 { return bandwidth * t / T }
-	ts := sampleTimes(n, dt)
-	u := make([]float64, n)
-	freq := make([]float64, n)
-	for j, t := range ts {
-		u[j] = 1 - math.Pow(math.Abs(math.Sin(math.Pi*t/T)), order)
-		freq[j] = f(t)
-	}
-	p, err := polar(name, c, gamma, u, integratePhase(f, ts), freq, dt)
-	if err != nil {
-		return nil, err
-	}
-	if p.Role == RoleNone {
-		p.Role = RoleInvert
-	}
-	p.Bandwidth = bandwidth
-	p.Sweep = bandwidth
-	p.TBW = bandwidth * T
-	return p, p.setSlice(c)
+	return sweptPulse(name, c, gamma, bandwidth, amp, f)
 }
