@@ -34,12 +34,7 @@ const maxPixels = 640
 func (m Map) Bundle() Bundle {
 	svg := m.SVG()
 	t := m.table()
-	return Bundle{
-		"text/plain":       figurePlain(m.Title, t, m.caption()),
-		"text/html":        figureHTML(svg, t),
-		"image/svg+xml":    svg,
-		"application/json": m.json(),
-	}
+	return figureBundle(m.Title, svg, t, m.caption(), m.json())
 }
 
 func (m Map) caption() string {

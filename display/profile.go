@@ -1,6 +1,7 @@
 package display
 
 import (
+	"encoding/json"
 	"fmt"
 	"strings"
 )
@@ -28,11 +29,18 @@ const maxDots = 30
 func (p Profile) Bundle() Bundle {
 	svg := p.SVG()
 	t := p.table()
+	return figureBundle(p.Title, svg, t, p.caption(), p.json())
+}
+
+// figureBundle assembles a figure's bundle: the table with the title and caption
+// in text/plain, the SVG inline with the table in text/html, the SVG alone, and
+// the JSON.
+func figureBundle(title, svg string, t Table, caption string, data json.RawMessage) Bundle {
 	return Bundle{
-		"text/plain":       figurePlain(p.Title, t, p.caption()),
+		"text/plain":       figurePlain(title, t, caption),
 		"text/html":        figureHTML(svg, t),
 		"image/svg+xml":    svg,
-		"application/json": p.json(),
+		"application/json": data,
 	}
 }
 
