@@ -472,25 +472,19 @@ func (p *parser) nest() {
 }
 
 // sum := product {("+" | "-") product}
-func (p *parser) sum() Expr {
-	x := p.product()
-	for n := 0; p.tok().Kind == tPlus || p.tok().Kind == tMinus; n++ {
-		t := p.tok()
-		p.terms(n)
-		p.i++
-		x = &Binary{P: t.Pos, Op: t.Kind, X: x, Y: p.product()}
-	}
-	return x
-}
+func (p *parser) sum() Expr { return p.chain(p.product, tPlus, tMinus) }
 
 // product := unary {("*" | "/") unary}
-func (p *parser) product() Expr {
-	x := p.unary()
-	for n := 0; p.tok().Kind == tStar || p.tok().Kind == tSlash; n++ {
+func (p *parser) product() Expr { return p.chain(p.unary, tStar, tSlash) }
+
+// chain := operand {(op1 | op2) operand}, grouped from the left.
+func (p *parser) chain(operand func() Expr, op1, op2 tokKind) Expr {
+	x := operand()
+	for n := 0; p.tok().Kind == op1 || p.tok().Kind == op2; n++ {
 		t := p.tok()
 		p.terms(n)
 		p.i++
-		x = &Binary{P: t.Pos, Op: t.Kind, X: x, Y: p.unary()}
+		x = &Binary{P: t.Pos, Op: t.Kind, X: x, Y: operand()}
 	}
 	return x
 }
