@@ -3,8 +3,9 @@ package dsl
 import (
 	"errors"
 	"fmt"
+	"maps"
 	"math"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -505,11 +506,7 @@ var siUnits = []struct {
 // asWritten replaces, in a shape's message, each argument's value as package
 // shape writes it ("-0.001 s") by the value as the user wrote it ("-1 ms").
 func asWritten(msg string, args map[string]argVal, b *builder) string {
-	names := make([]string, 0, len(args))
-	for n := range args {
-		names = append(names, n)
-	}
-	sort.Strings(names)
+	names := slices.Sorted(maps.Keys(args))
 	for _, n := range names {
 		a := args[n]
 		if a.Word != "" {
@@ -551,11 +548,7 @@ func replaceNumber(s, old, repl string) string {
 // blame places a shape's error at the argument it names, if any.
 func (ev *evaluator) blame(err error, args map[string]argVal, def Pos) Pos {
 	msg := err.Error()
-	names := make([]string, 0, len(args))
-	for n := range args {
-		names = append(names, n)
-	}
-	sort.Strings(names)
+	names := slices.Sorted(maps.Keys(args))
 	best, bestAt := def, len(msg)+1
 	for _, n := range names {
 		if i := indexWord(msg, n); i >= 0 && i < bestAt {
@@ -698,11 +691,7 @@ func inheritedFault(err error, name string, old *pulseDef, args, changes map[str
 			return err
 		}
 	}
-	names := make([]string, 0, len(args))
-	for n := range args {
-		names = append(names, n)
-	}
-	sort.Strings(names)
+	names := slices.Sorted(maps.Keys(args))
 	for _, n := range names {
 		a := args[n]
 		if _, changed := changes[n]; changed || a.Pos != pe.pos {
