@@ -47,11 +47,5 @@ func Gauss(c Common, gamma float64, tbw, cutoff float64) (*Pulse, error) {
 	for j, t := range sampleTimes(n, dt) {
 		u[j] = math.Exp(-t * t / (2 * sigma * sigma))
 	}
-	p, err := amplitudeModulated(name, c, gamma, u, dt)
-	if err != nil {
-		return nil, err
-	}
-	p.TBW = tbw
-	p.Bandwidth = tbw / T
-	return p, p.setSlice(c)
+	return amplitudeModulated(name, c, gamma, u, dt, tbw)
 }

@@ -215,8 +215,10 @@ const maxSamples = 1 << 22
 
 // amplitudeModulated builds a pulse from a real unit-peak envelope u (one value per
 // sample), scaling it so that its nominal on-resonance flip γ·∫B1 dt equals c.Flip,
-// or its peak equals c.Peak; then applies Phase, Center and the gradient.
-func amplitudeModulated(name string, c Common, gamma float64, u []float64, dt float64) (*Pulse, error) {
+// or its peak equals c.Peak; then applies Phase and Center, records the
+// time-bandwidth product tbw and the bandwidth tbw/c.Duration, and sets the slice
+// gradient.
+func amplitudeModulated(name string, c Common, gamma float64, u []float64, dt, tbw float64) (*Pulse, error) {
 	area := 0.0
 	peak := 0.0
 	for _, v := range u {
@@ -240,7 +242,9 @@ func amplitudeModulated(name string, c Common, gamma float64, u []float64, dt fl
 		p.Wave.B1[j] = complex(scale*v, 0)
 	}
 	p.applyPhase(c.Phase, c.Center)
-	return p, nil
+	p.TBW = tbw
+	p.Bandwidth = tbw / c.Duration
+	return p, p.setSlice(c)
 }
 
 // applyPhase rotates the waveform by a constant phase and moves its band to
@@ -280,14 +284,9 @@ func Rect(c Common, gamma float64) (*Pulse, error) {
 	for j := range u {
 		u[j] = 1
 	}
-	p, err := amplitudeModulated("rect", c, gamma, u, dt)
-	if err != nil {
-		return nil, err
-	}
-	// Rectangular pulse main-lobe width: first nulls of a small-tip sinc profile at ±1/T.
-	p.Bandwidth = 1 / c.Duration
-	p.TBW = 1
-	return p, p.setSlice(c)
+	// Rectangular pulse main-lobe width: first nulls of a small-tip sinc profile at
+	// ±1/T, so tbw = 1.
+	return amplitudeModulated("rect", c, gamma, u, dt, 1)
 }
 
 // setSlice derives the slice-select gradient from thickness and bandwidth:

@@ -64,13 +64,7 @@ func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 		}
 		u[j] = v * window(win, t, T)
 	}
-	p, err := amplitudeModulated("sinc", c, gamma, u, dt)
-	if err != nil {
-		return nil, err
-	}
-	p.TBW = tbw
-	p.Bandwidth = tbw / T
-	return p, p.setSlice(c)
+	return amplitudeModulated("sinc", c, gamma, u, dt, tbw)
 }
 
 // SincLobes is Sinc with the width given as a number of lobes instead of tbw.
