@@ -41,6 +41,10 @@ func fmtField(b, gammaBar float64) string {
 // energyUnit shows ∫B1² dt in µT²·ms.
 func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
 
+// thresholdUnmet says what an adiabatic threshold of "not met" means (the search of
+// shape.Measure: octaves up to 32× the pulse's peak, target over ±¼ of the bandwidth).
+const thresholdUnmet = "the role's target is met over ±¼ of the bandwidth at no peak B1 up to 32× the pulse's own"
+
 func fmtOpt(v float64, f func(float64) string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "—"
@@ -157,7 +161,11 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		[]string{"ripple (pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct)},
 	)
 	if p.Adiabatic {
-		rows = append(rows, []string{"adiabatic threshold", fmtOpt(pr.Threshold, func(v float64) string { return fmtField(v, gb) })})
+		th := fmtOpt(pr.Threshold, func(v float64) string { return fmtField(v, gb) })
+		if math.IsNaN(pr.Threshold) {
+			th = "not met: " + thresholdUnmet
+		}
+		rows = append(rows, []string{"adiabatic threshold", th})
 	}
 	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
 	if tr > 0 {

@@ -39,6 +39,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	}
 	var rows [][]string
 	var warnings []string
+	unmet := false
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {
 			return err
@@ -79,6 +80,10 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			th := "—"
 			if p.Adiabatic {
 				th = fmtOpt(pr.Threshold, func(v float64) string { return formatNumber(roundSig(v*1e6, 4)) })
+				if math.IsNaN(pr.Threshold) {
+					th = "not met†"
+					unmet = true
+				}
 			}
 			row = append(row, th)
 		}
@@ -109,6 +114,9 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	notes := []string{
 		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
+	}
+	if unmet {
+		notes = append(notes, "† "+thresholdUnmet)
 	}
 	notes = append(notes, warnings...)
 	t := display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}
