@@ -91,25 +91,15 @@ func Help(topic string) (string, error) {
 		}
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "quantities":
-		var b strings.Builder
-		b.WriteString("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo; otherwise mx my mz, or mz on a map; a map shows the first)\n")
-		for _, q := range quantityTable {
-			fmt.Fprintf(&b, "  %-10s %s\n", q.Name, q.Help)
-		}
-		return strings.TrimRight(b.String(), "\n"), nil
+		return nameList("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo; otherwise mx my mz, or mz on a map; a map shows the first)",
+			10, len(quantityTable), func(i int) (string, string) { return quantityTable[i].Name, quantityTable[i].Help }), nil
 	case "settings":
-		var b strings.Builder
-		b.WriteString("Settings after `with`\n")
-		for _, s := range settingTable {
-			fmt.Fprintf(&b, "  %-7s %s\n", s.Name, s.Help)
-		}
-		return strings.TrimRight(b.String(), "\n"), nil
+		return nameList("Settings after `with`", 7, len(settingTable),
+			func(i int) (string, string) { return settingTable[i].Name, settingTable[i].Help }), nil
 	case "axes":
 		var b strings.Builder
-		b.WriteString("Sweep axes: KIND FROM to TO (points N | step S; the step goes from FROM toward TO whatever its sign)\n")
-		for _, a := range spinAxes {
-			fmt.Fprintf(&b, "  %-9s %s\n", a.Name, a.Help)
-		}
+		b.WriteString(nameList("Sweep axes: KIND FROM to TO (points N | step S; the step goes from FROM toward TO whatever its sign)", 9, len(spinAxes),
+			func(i int) (string, string) { return spinAxes[i].Name, spinAxes[i].Help }) + "\n")
 		b.WriteString("  or any argument of the pulse's shape (duration, flip, tbw, bandwidth, ...): the pulse is rebuilt at each point and pulse properties can be shown")
 		return b.String(), nil
 	case "units":
@@ -384,4 +374,16 @@ func helpWords() []string {
 	}
 	sort.Strings(out)
 	return out
+}
+
+// nameList is a help listing: a heading, then one "name  help" line per row with the
+// names padded to width.
+func nameList(heading string, width, n int, row func(int) (name, help string)) string {
+	var b strings.Builder
+	b.WriteString(heading)
+	for i := 0; i < n; i++ {
+		name, help := row(i)
+		fmt.Fprintf(&b, "\n  %-*s %s", width, name, help)
+	}
+	return b.String()
 }
