@@ -15,11 +15,11 @@ import (
 // nothing of the language; install stands alone. main wires them.
 func TestDependencyDirection(t *testing.T) {
 	allowed := map[string][]string{
-		"physics": {"nutate/physics", "gonum.org/v1/gonum"},
+		"physics": {"Nutate/physics", "gonum.org/v1/gonum"},
 		"display": {"gonum.org/v1/plot", "gonum.org/v1/gonum", "golang.org/x/image"},
-		"dsl":     {"nutate/physics", "nutate/display", "nutate/dsl", "gonum.org/v1/gonum"},
-		"kernel":  {"nutate/kernel", "github.com/go-zeromq/zmq4", "github.com/google/uuid"},
-		"install": {"nutate/install"},
+		"dsl":     {"Nutate/physics", "Nutate/display", "Nutate/dsl", "gonum.org/v1/gonum"},
+		"kernel":  {"Nutate/kernel", "github.com/go-zeromq/zmq4", "github.com/google/uuid"},
+		"install": {"Nutate/install"},
 	}
 	checked := 0
 	for top, ok := range allowed {

@@ -7,7 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
-	"nutate/install"
+	"Nutate/install"
 )
 
 // cmdInstall writes (or with --uninstall removes) the kernelspec "nutate".

@@ -7,7 +7,7 @@ import (
 	"io"
 	"os"
 
-	"nutate/kernel"
+	"Nutate/kernel"
 )
 
 // cmdKernel runs the Jupyter kernel on the sockets of a connection file; this is

@@ -13,8 +13,8 @@ import (
 	"path/filepath"
 	"strings"
 
-	"nutate/display"
-	"nutate/dsl"
+	"Nutate/display"
+	"Nutate/dsl"
 )
 
 // setFlags collects repeated --set NAME=VALUE options.

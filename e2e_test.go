@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"bytes"
 	"context"
+	"debug/elf"
 	"encoding/json"
 	"errors"
 	"net"
@@ -19,7 +20,7 @@ import (
 	"github.com/go-zeromq/zmq4"
 	"github.com/go-zeromq/zmq4/security/null"
 
-	"nutate/kernel"
+	"Nutate/kernel"
 )
 
 // End-to-end tests: build the binary, install its kernelspec into a temporary
@@ -114,6 +115,8 @@ func (e *e2eEnv) script(t *testing.T, name string, timeout time.Duration) map[st
 // TestBinary builds the binary once and runs every test that needs it.
 func TestBinary(t *testing.T) {
 	bin := buildKernel(t)
+	t.Run("static", func(t *testing.T) { testStaticBinary(t, bin) })
+	t.Run("prebind_init_order", func(t *testing.T) { testPrebindInitOrder(t, bin) })
 	t.Run("install", func(t *testing.T) { testInstallCommand(t, bin) })
 	t.Run("command_errors", func(t *testing.T) { testKernelCommandErrors(t, bin) })
 	t.Run("parent_death", func(t *testing.T) { testKernelExitsWhenParentDies(t, bin) })
@@ -211,6 +214,40 @@ func BenchmarkE2EKernel(b *testing.B) {
 	}
 }
 
+// testPrebindInitOrder checks that package prebind, which binds the kernel's
+// ports before the heavy package initialisers run, is initialised right after
+// os (its only non-trivial import) and before the plotting packages: that is
+// what lets Jupyter clients' first connections succeed.
+func testPrebindInitOrder(t *testing.T, bin string) {
+	cmd := exec.Command(bin, "version")
+	cmd.Env = append(os.Environ(), "GODEBUG=inittrace=1")
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	if err := cmd.Run(); err != nil {
+		t.Fatal(err)
+	}
+	order := map[string]int{}
+	n := 0
+	for _, line := range strings.Split(stderr.String(), "\n") {
+		if f := strings.Fields(line); len(f) > 2 && f[0] == "init" {
+			order[f[1]] = n
+			n++
+		}
+	}
+	pre, ok := order["Nutate/kernel/prebind"]
+	if !ok {
+		t.Fatalf("no init trace of Nutate/kernel/prebind in:\n%s", stderr.String())
+	}
+	if pre != order["os"]+1 {
+		t.Errorf("prebind initialised %d packages after os, want right after it", pre-order["os"])
+	}
+	for _, heavy := range []string{"gonum.org/v1/plot", "encoding/gob", "Nutate/display", "net"} {
+		if i, ok := order[heavy]; !ok || i < pre {
+			t.Errorf("%s initialised before prebind (or not at all: %v)", heavy, ok)
+		}
+	}
+}
+
 // Process-level tests of the kernel command with a Go client: signals and the
 // death of the parent process. They need no Python.
 
@@ -221,10 +258,30 @@ func buildKernel(t testing.TB) string {
 		t.Skip("tests of the built binary skipped in -short mode")
 	}
 	bin := filepath.Join(t.TempDir(), "nutate")
-	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
+	cmd := exec.Command("go", "build", "-o", bin, ".")
+	cmd.Env = append(os.Environ(), "CGO_ENABLED=0") // as the README builds it
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("CGO_ENABLED=0 go build: %v\n%s", err, out)
 	}
 	return bin
+}
+
+// testStaticBinary checks that the binary the README's build gives is one
+// static executable: no program interpreter, no shared libraries.
+func testStaticBinary(t *testing.T, bin string) {
+	f, err := elf.Open(bin)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	for _, p := range f.Progs {
+		if p.Type == elf.PT_INTERP || p.Type == elf.PT_DYNAMIC {
+			t.Errorf("the binary has a %v program header: dynamically linked", p.Type)
+		}
+	}
+	if libs, _ := f.ImportedLibraries(); len(libs) > 0 {
+		t.Errorf("the binary needs shared libraries %v", libs)
+	}
 }
 
 // freePorts returns n TCP ports free at the time of the call.

@@ -4,9 +4,9 @@ import (
 	"context"
 	"fmt"
 
-	"nutate/display"
-	"nutate/dsl"
-	"nutate/kernel"
+	"Nutate/display"
+	"Nutate/dsl"
+	"Nutate/kernel"
 )
 
 // languageExecutor adapts a dsl.Session to kernel.Executor.

@@ -4,7 +4,7 @@ import (
 	"context"
 	"testing"
 
-	"nutate/kernel"
+	"Nutate/kernel"
 )
 
 // TestProgressDisplayCleared: a long sweep shows a progress display, updates it in

@@ -1,4 +1,4 @@
-module nutate
+module Nutate
 
 go 1.26.8
 

@@ -7,7 +7,7 @@ import (
 	"os"
 	"strings"
 
-	"nutate/dsl"
+	"Nutate/dsl"
 )
 
 // version is the program version, stamped into notebook metadata.

@@ -10,7 +10,7 @@ import (
 	"sort"
 	"strings"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // nbformat 4 notebooks are kept as generic JSON so that fields this program does not

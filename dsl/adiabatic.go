@@ -5,8 +5,8 @@ import (
 	"fmt"
 	"math"
 
-	"nutate/physics"
-	"nutate/physics/shape"
+	"Nutate/physics"
+	"Nutate/physics/shape"
 )
 
 // thresholdTarget is the level shape.Measure's adiabatic threshold asks of each

@@ -4,7 +4,7 @@ import (
 	"sort"
 	"strings"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 func isWordRune(r rune) bool { return isIdentPart(r) || r == '°' || r == '/' }

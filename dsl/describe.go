@@ -6,8 +6,8 @@ import (
 	"math"
 	"strings"
 
-	"nutate/display"
-	"nutate/physics/shape"
+	"Nutate/display"
+	"Nutate/physics/shape"
 )
 
 // energyCaution goes wherever energy or B1rms is shown.

@@ -8,8 +8,8 @@ import (
 	"sort"
 	"strings"
 
-	"nutate/display"
-	"nutate/physics"
+	"Nutate/display"
+	"Nutate/physics"
 )
 
 // state is what persists from cell to cell. A statement works on a copy and the

@@ -5,8 +5,8 @@ import (
 	"fmt"
 	"os"
 
-	"nutate/display"
-	"nutate/dsl"
+	"Nutate/display"
+	"Nutate/dsl"
 )
 
 // A session runs cells; each statement answers with a display bundle whose

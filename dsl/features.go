@@ -4,7 +4,7 @@ import (
 	"math"
 	"strings"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // features summarize a long curve for the table under a plot.

@@ -4,7 +4,7 @@ import (
 	"math"
 	"testing"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 func TestCurveFeatures(t *testing.T) {

@@ -10,7 +10,7 @@ import (
 	"strconv"
 	"strings"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // maxImportBytes bounds the size of an imported file.

@@ -5,7 +5,7 @@ import (
 	"sort"
 	"strings"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 // statementHelp is the syntax and meaning of each statement.

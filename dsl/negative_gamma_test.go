@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 func execText(t *testing.T, s *Session, src string) string {

@@ -7,7 +7,7 @@ import (
 	"strings"
 	"testing"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // cellBundles runs one cell in a fresh session and returns its outputs.

@@ -1,6 +1,6 @@
 package dsl
 
-import "nutate/physics/shape"
+import "Nutate/physics/shape"
 
 // quantitySpec is one `show` quantity.
 type quantitySpec struct {

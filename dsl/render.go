@@ -5,7 +5,7 @@ import (
 	"fmt"
 	"strings"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // The functions here are the thin adapter between the language's outputs and

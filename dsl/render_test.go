@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // TestDescribeJSONDecimated checks that describe's application/json carries at

@@ -6,8 +6,8 @@ import (
 	"math"
 	"strings"
 
-	"nutate/display"
-	"nutate/physics/shape"
+	"Nutate/display"
+	"Nutate/physics/shape"
 )
 
 // report runs `report NAME, ... [as markdown | as latex]`: a methods-section table

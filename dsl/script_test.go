@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 var update = flag.Bool("update", false, "rewrite the expected sections of testdata scripts")

@@ -37,7 +37,7 @@ import (
 	"strings"
 	"sync"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // Sink receives a cell's outputs in order. Progress, when non-nil, is told of long

@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // snapshot describes the persistent state for comparisons.

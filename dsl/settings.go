@@ -4,7 +4,7 @@ import (
 	"math"
 	"strings"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // settingSpec is one `with` setting.

@@ -9,9 +9,9 @@ import (
 	"strconv"
 	"strings"
 
-	"nutate/physics"
-	"nutate/physics/shape"
-	"nutate/physics/slr"
+	"Nutate/physics"
+	"Nutate/physics/shape"
+	"Nutate/physics/slr"
 )
 
 // argKind says how an argument's value is read.

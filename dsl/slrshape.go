@@ -3,8 +3,8 @@ package dsl
 import (
 	"errors"
 
-	"nutate/physics/shape"
-	"nutate/physics/slr"
+	"Nutate/physics/shape"
+	"Nutate/physics/slr"
 )
 
 // buildSLR adapts the slr shape row to package slr: the role is required, the

@@ -6,9 +6,9 @@ import (
 	"strings"
 	"sync"
 
-	"nutate/display"
-	"nutate/physics"
-	"nutate/physics/shape"
+	"Nutate/display"
+	"Nutate/physics"
+	"Nutate/physics/shape"
 )
 
 // Limits of a sweep. The step budget is the engine's; the others keep outputs to a

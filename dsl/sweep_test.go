@@ -6,7 +6,7 @@ import (
 	"math"
 	"testing"
 
-	"nutate/display"
+	"Nutate/display"
 )
 
 // sweepJSON runs a cell whose last output is a sweep and returns its curves by

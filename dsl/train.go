@@ -5,7 +5,7 @@ import (
 	"math"
 	"strings"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // trainElem is one element of a train: the pulse and the phase it is played at.

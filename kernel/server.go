@@ -17,6 +17,8 @@ import (
 
 	"github.com/go-zeromq/zmq4"
 	"github.com/google/uuid"
+
+	"Nutate/kernel/prebind"
 )
 
 // ConnectionInfo is the content of a Jupyter connection file.
@@ -125,6 +127,7 @@ func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- str
 
 	var eps []*endpoint
 	fail := func(err error) (*Server, error) {
+		prebind.Release()
 		for _, e := range eps {
 			e.close()
 		}
@@ -164,12 +167,26 @@ func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- str
 	return s, nil
 }
 
+// listen returns a guarded listener on port, taking the socket bound at start
+// (package prebind) when there is one. A port prebind did not bind releases the
+// others it holds, so that no socket it bound can stand in the kernel's way.
 func (s *Server) listen(port int) (net.Listener, error) {
+	network, addr := "tcp", net.JoinHostPort(s.info.IP, strconv.Itoa(port))
 	if s.info.Transport == "ipc" {
-		path := s.info.IP + "-" + strconv.Itoa(port)
-		return GuardedTransport{Network: "unix"}.Listen(context.Background(), path)
+		network, addr = "unix", s.info.IP+"-"+strconv.Itoa(port)
 	}
-	return GuardedTransport{Network: "tcp"}.Listen(context.Background(), net.JoinHostPort(s.info.IP, strconv.Itoa(port)))
+	if f := prebind.Take(network, addr); f != nil {
+		ln, err := net.FileListener(f)
+		f.Close()
+		if err == nil {
+			if u, ok := ln.(*net.UnixListener); ok {
+				u.SetUnlinkOnClose(true)
+			}
+			return newGuardedListener(ln), nil
+		}
+	}
+	prebind.Release()
+	return GuardedTransport{Network: network}.Listen(context.Background(), addr)
 }
 
 // Info returns the connection information with the ports actually bound.

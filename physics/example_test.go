@@ -6,7 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 // A 90° hard pulse of 250 µs for protons, seen by spins on resonance and 1 kHz off.

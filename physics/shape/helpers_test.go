@@ -5,7 +5,7 @@ import (
 	"math"
 	"testing"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 // gammaH is the proton's γ (CODATA 2018, as pinned by package physics).

@@ -5,7 +5,7 @@ import (
 	"fmt"
 	"math"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 // MeasureOptions control Measure.

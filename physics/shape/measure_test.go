@@ -8,7 +8,7 @@ import (
 	"math/cmplx"
 	"testing"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 // Small-tip FWHM of a rectangular pulse is 1.206709/T (CHECKS.md, rectangular

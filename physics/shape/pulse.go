@@ -35,7 +35,7 @@ import (
 	"fmt"
 	"math"
 
-	"nutate/physics"
+	"Nutate/physics"
 )
 
 // Role is what a pulse is for; it picks the default quantity and the target

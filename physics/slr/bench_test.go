@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"testing"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // BenchmarkInversion256 designs a 256-sample inversion pulse with TBW 8 in each

@@ -3,9 +3,9 @@ package slr_test
 import (
 	"fmt"
 
-	"nutate/physics"
-	"nutate/physics/shape"
-	"nutate/physics/slr"
+	"Nutate/physics"
+	"Nutate/physics/shape"
+	"Nutate/physics/slr"
 )
 
 // A 4 ms inversion pulse with TBW 8 and 1 % ripples for protons.

@@ -6,7 +6,7 @@ import (
 	"fmt"
 	"math"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // Defaults of a Spec made by NewSpec, and the design's size limit.

@@ -9,8 +9,8 @@ import (
 	"strings"
 	"testing"
 
-	"nutate/physics"
-	"nutate/physics/shape"
+	"Nutate/physics"
+	"Nutate/physics/shape"
 )
 
 func simulate(t *testing.T, p *shape.Pulse, offs []float64) *physics.Result {

@@ -8,7 +8,7 @@ import (
 	"math/cmplx"
 	"testing"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // endBound is the largest |B1| allowed in the first and last samples, as a

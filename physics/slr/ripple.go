@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // DInf is the filter-length factor D∞(δ1, δ2) of an equiripple lowpass with

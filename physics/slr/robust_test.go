@@ -5,7 +5,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
-	"nutate/physics/shape"
+	"Nutate/physics/shape"
 )
 
 // User input never panics: awkward values give errors or pulses, never a panic

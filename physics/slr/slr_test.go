@@ -9,8 +9,8 @@ import (
 	"sync"
 	"testing"
 
-	"nutate/physics"
-	"nutate/physics/shape"
+	"Nutate/physics"
+	"Nutate/physics/shape"
 )
 
 func proton(t testing.TB) float64 {
