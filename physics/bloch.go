@@ -136,9 +136,8 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 	if math.IsNaN(gamma) || math.IsInf(gamma, 0) {
 		return nil, fmt.Errorf("gamma is %g, want a finite value", gamma)
 	}
-	if err := iso.validate(); err != nil {
-		return nil, err
-	}
+	// The size is checked before the values are read: a request too large to
+	// run costs nothing.
 	n := iso.Len()
 	if n > MaxIsochromats {
 		return nil, fmt.Errorf("simulation of %d isochromats exceeds the limit of %d", n, MaxIsochromats)
@@ -152,6 +151,9 @@ func Simulate(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats,
 	}
 	if steps := float64(n) * float64(w.Len()); steps > budget {
 		return nil, fmt.Errorf("simulation of %d isochromats × %d samples = %.3g steps exceeds the budget of %.3g", n, w.Len(), steps, budget)
+	}
+	if err := iso.validate(); err != nil {
+		return nil, err
 	}
 	for k, v := range opt.Start {
 		if math.IsNaN(v) || math.IsInf(v, 0) {

@@ -556,6 +556,31 @@ func TestBudget(t *testing.T) {
 	}
 }
 
+// The isochromat limit refuses before the values are read or the result is
+// allocated. The offsets slice is made but never written, so its pages stay
+// untouched; invalid values in it show the values were not read.
+func TestMaxIsochromats(t *testing.T) {
+	w := rect(1, 1e-3, 1000)
+	off := make([]float64, MaxIsochromats+1)
+	off[len(off)-1] = math.NaN() // would fail validation if it were read
+	var ms0, ms1 runtime.MemStats
+	runtime.ReadMemStats(&ms0)
+	_, err := Simulate(context.Background(), w, 1, &Isochromats{Offset: off}, Options{})
+	runtime.ReadMemStats(&ms1)
+	want := fmt.Sprintf("simulation of %d isochromats exceeds the limit of %d", MaxIsochromats+1, MaxIsochromats)
+	if err == nil || err.Error() != want {
+		t.Fatalf("err = %v, want %q", err, want)
+	}
+	if b := ms1.TotalAlloc - ms0.TotalAlloc; b > 4096 {
+		t.Errorf("refusal allocated %d bytes, want < 4096", b)
+	}
+	// At the limit the isochromat check passes and the steps budget refuses next.
+	_, err = Simulate(context.Background(), w, 1, &Isochromats{Offset: off[:MaxIsochromats]}, Options{MaxSteps: 1})
+	if err == nil || !strings.Contains(err.Error(), "exceeds the budget") {
+		t.Errorf("at the limit: err = %v, want the steps budget to refuse next", err)
+	}
+}
+
 // Bad input is an error naming the argument, never a panic.
 func TestInvalidInput(t *testing.T) {
 	good := rect(1000, 1e-3, 4)
