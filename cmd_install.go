@@ -1,11 +1,13 @@
 package main
 
 import (
+	"debug/elf"
 	"flag"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"Nutate/install"
 )
@@ -86,11 +88,46 @@ func cmdInstall(args []string) int {
 		fmt.Fprintf(os.Stderr, "nutate install: cannot locate this binary: %v\n", err)
 		return 1
 	}
+	if goRunBinary(bin) {
+		fmt.Fprintf(os.Stderr, "nutate install: %s is a temporary binary of `go run`, gone when it exits; build one to keep and install from it:\n  CGO_ENABLED=0 go build -o nutate . && ./nutate install\n", bin)
+		return 1
+	}
 	dir, err := install.Install(kernels, install.NewSpec(bin, version))
 	if err != nil {
 		fmt.Fprintf(os.Stderr, "nutate install: %v\n", err)
 		return 1
 	}
 	fmt.Printf("installed kernelspec %q in %s (kernel: %s)\n", install.Name, dir, bin)
+	if dynamicallyLinked(bin) {
+		fmt.Fprintln(os.Stderr, "note: this binary is dynamically linked (built with cgo); `CGO_ENABLED=0 go build -o nutate .` gives the single static binary, which also starts faster")
+	}
 	return 0
+}
+
+// goRunBinary tells whether bin is the temporary executable `go run` builds
+// (under a directory go-build<digits> in the temporary directory), which is deleted
+// when it exits.
+func goRunBinary(bin string) bool {
+	for d := filepath.Dir(bin); d != filepath.Dir(d); d = filepath.Dir(d) {
+		if n, ok := strings.CutPrefix(filepath.Base(d), "go-build"); ok && n != "" && strings.Trim(n, "0123456789") == "" {
+			return true
+		}
+	}
+	return false
+}
+
+// dynamicallyLinked tells whether the ELF executable at path asks for a
+// program interpreter (false for other formats or when it cannot be read).
+func dynamicallyLinked(path string) bool {
+	f, err := elf.Open(path)
+	if err != nil {
+		return false
+	}
+	defer f.Close()
+	for _, p := range f.Progs {
+		if p.Type == elf.PT_INTERP {
+			return true
+		}
+	}
+	return false
 }

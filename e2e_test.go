@@ -118,6 +118,7 @@ func TestBinary(t *testing.T) {
 	t.Run("static", func(t *testing.T) { testStaticBinary(t, bin) })
 	t.Run("prebind_init_order", func(t *testing.T) { testPrebindInitOrder(t, bin) })
 	t.Run("install", func(t *testing.T) { testInstallCommand(t, bin) })
+	t.Run("install_refuses_go_run_binary", func(t *testing.T) { testInstallRefusesGoRun(t, bin) })
 	t.Run("command_errors", func(t *testing.T) { testKernelCommandErrors(t, bin) })
 	t.Run("parent_death", func(t *testing.T) { testKernelExitsWhenParentDies(t, bin) })
 	t.Run("signals", func(t *testing.T) { testKernelSignals(t, bin) })
@@ -520,6 +521,36 @@ func testKernelCommandErrors(t *testing.T, bin string) {
 		if !errors.As(err, &ee) || ee.ExitCode() != tc.code {
 			t.Errorf("nutate %v: got %v, want exit status %d", tc.args, err, tc.code)
 		}
+	}
+}
+
+// testInstallRefusesGoRun installs from a copy of the binary placed where `go
+// run` puts its temporary executables: the kernelspec would outlive it, so
+// install refuses and says how to build a binary to keep.
+func testInstallRefusesGoRun(t *testing.T, bin string) {
+	dir := t.TempDir()
+	exe := filepath.Join(dir, "go-build2718281828", "b001", "exe", "nutate")
+	if err := os.MkdirAll(filepath.Dir(exe), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	data, err := os.ReadFile(bin)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(exe, data, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	prefix := filepath.Join(dir, "prefix")
+	out, err := exec.Command(exe, "install", "--prefix", prefix).CombinedOutput()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) || ee.ExitCode() != 1 {
+		t.Fatalf("install from a go run binary: err %v, want exit status 1\n%s", err, out)
+	}
+	if !strings.Contains(string(out), "temporary binary of `go run`") || !strings.Contains(string(out), "CGO_ENABLED=0 go build") {
+		t.Errorf("message does not explain: %s", out)
+	}
+	if _, err := os.Stat(filepath.Join(prefix, "share", "jupyter", "kernels", "nutate")); !os.IsNotExist(err) {
+		t.Errorf("a kernelspec was written anyway (stat: %v)", err)
 	}
 }
 

@@ -1,0 +1,39 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"testing"
+)
+
+func TestGoRunBinary(t *testing.T) {
+	for path, want := range map[string]bool{
+		"/tmp/go-build3141592/b001/exe/nutate":        true,
+		"/var/folders/x/T/go-build12/b001/exe/nutate": true,
+		"/usr/local/bin/nutate":                       false,
+		"/home/me/go-builds/nutate":                   false, // a folder the user named, not go's
+		"/home/me/src/nutate/nutate":                  false,
+	} {
+		if got := goRunBinary(filepath.FromSlash(path)); got != want {
+			t.Errorf("goRunBinary(%q) = %v, want %v", path, got, want)
+		}
+	}
+}
+
+// dynamicallyLinked reads ELF program headers: the system shell (a C program)
+// has an interpreter; a file that is not ELF is reported as not dynamic.
+func TestDynamicallyLinked(t *testing.T) {
+	if _, err := os.Stat("/bin/sh"); err != nil {
+		t.Skip("no /bin/sh")
+	}
+	if !dynamicallyLinked("/bin/sh") {
+		t.Error("/bin/sh was reported as static")
+	}
+	notELF := filepath.Join(t.TempDir(), "script")
+	if err := os.WriteFile(notELF, []byte("#!/bin/sh\n"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if dynamicallyLinked(notELF) {
+		t.Error("a shell script was reported as a dynamically linked ELF")
+	}
+}
