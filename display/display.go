@@ -61,9 +61,9 @@ type Axis struct {
 	Unit    string
 	Values  []float64
 	Reverse bool
-	// Log draws a profile's X axis on a logarithmic scale (T1, T2 or durations
-	// spanning decades); points at or below zero are then left out of the figure
-	// (not of the JSON). Maps ignore it.
+	// Log draws the axis on a logarithmic scale (T1, T2 or durations spanning
+	// decades). On a profile, points at or below zero are then left out of the
+	// figure (not of the JSON); a map draws such an axis linearly.
 	Log bool
 }
 
