@@ -155,7 +155,23 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 			}
 		}
 	}
+	if s.t1 > 0 && s.t2 > 2*s.t1 {
+		// T2 ≤ 2·T1 for any relaxing spin ensemble (common practice: Abragam,
+		// The Principles of Nuclear Magnetism, 1961; from memory).
+		return nil, errAt(s.given["t2"], "t2 = %s with t1 = %s: want t2 ≤ 2·t1 = %s (beyond it the Bloch equations let |M| exceed M0)",
+			s.writtenValue("t2"), s.writtenValue("t1"), Quantity{2 * s.t1, dimTime})
+	}
 	return s, nil
+}
+
+// writtenValue is the value of a setting as evaluated and shown ("10 ms").
+func (s *settings) writtenValue(name string) string {
+	for _, w := range s.written {
+		if w[0] == name {
+			return w[1]
+		}
+	}
+	return ""
 }
 
 func exprText(e Expr, w string) string {
