@@ -92,6 +92,10 @@ type Mark struct {
 // on one line share one label ("p1, p2 band edge"). Phase curves (unit "deg")
 // get ticks at multiples of 90° and are not joined across a wrap.
 //
+// The x axis spans every finite value of X (every positive one on a log axis),
+// so points without a value (NaN: left out of a sweep) show as a gap in the
+// curves, not as a shorter axis.
+//
 // Y ranges: a quantity without a unit whose values lie within [−1, 1] is
 // magnetization in M0 units and is drawn on [0, 1] (never negative) or [−1, 1];
 // other quantities are drawn over at least 20 % of their largest magnitude (a

@@ -524,3 +524,15 @@ func TestLogMap(t *testing.T) {
 		t.Errorf("linear axis labelled at 100, which a 0…2000 axis with nice steps does not")
 	}
 }
+
+// Points left out of a sweep (NaN at the start of every curve) leave a gap: the
+// x axis still spans every swept value, so its first decade is labelled.
+func TestProfileGapKeepsAxis(t *testing.T) {
+	x := []float64{1, 3, 10, 30, 100, 300, 1000}
+	nan := math.NaN()
+	p := Profile{X: Axis{Label: "t1", Unit: "ms", Values: x, Log: true},
+		Curves: []Curve{{Quantity: "mxy", Y: []float64{nan, nan, nan, 0.9, 0.95, 0.97, 0.98}}}}
+	if pos := textX(t, p.SVG()); pos["1"] == 0 {
+		t.Errorf("no tick label 1 at the start of the swept range: %v", pos)
+	}
+}

@@ -155,7 +155,7 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 			}
 		}
 	}
-	if s.t1 > 0 && s.t2 > 2*s.t1 {
+	if s.t1 > 0 && s.t2 > 0 && beyondRelaxLimit(s.t1, s.t2) {
 		// T2 ≤ 2·T1 for any relaxing spin ensemble (common practice: Abragam,
 		// The Principles of Nuclear Magnetism, 1961; from memory).
 		return nil, errAt(s.given["t2"], "t2 = %s with t1 = %s: want t2 ≤ 2·t1 = %s (beyond it the Bloch equations let |M| exceed M0)",

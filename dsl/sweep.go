@@ -371,7 +371,18 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	skip, left := relaxMask(axes, set)
 	if left > 0 && left == len(skip) {
-		return errAt(axisPos(axes, "t1", "t2"), "t2 exceeds 2·t1 at every point of the sweep; want t2 ≤ 2·t1 somewhere (beyond it the Bloch equations let |M| exceed M0)")
+		var over []string
+		for _, name := range []string{"t1", "t2"} {
+			for _, a := range axes {
+				if a.kind == name {
+					over = append(over, name+" "+a.value(0).String()+" to "+a.value(a.n-1).String())
+				}
+			}
+			if _, ok := set.given[name]; ok {
+				over = append(over, name+" = "+set.writtenValue(name))
+			}
+		}
+		return errAt(axisPos(axes, "t1", "t2"), "t2 exceeds 2·t1 at every point of the sweep (%s); want t2 ≤ 2·t1 somewhere (beyond it the Bloch equations let |M| exceed M0)", strings.Join(over, ", "))
 	}
 	runs, total, err := ev.planSweep(defs, axes, qs, set)
 	if err != nil {
@@ -1186,7 +1197,7 @@ func relaxMask(axes []*sweepAxis, set *settings) (skip []bool, left int) {
 				t2 = v
 			}
 		}
-		if t1 > 0 && t2 > 0 && t2 > 2*t1 {
+		if t1 > 0 && t2 > 0 && beyondRelaxLimit(t1, t2) {
 			skip[k] = true
 			left++
 		}
@@ -1196,6 +1207,10 @@ func relaxMask(axes []*sweepAxis, set *settings) (skip []bool, left int) {
 	}
 	return skip, left
 }
+
+// beyondRelaxLimit reports t2 > 2·t1; values equal but for rounding (a t2 axis
+// stepping onto 2·t1) count as equal, so that the limit itself is simulated.
+func beyondRelaxLimit(t1, t2 float64) bool { return t2 > 2*t1*(1+1e-12) }
 
 // keepSpins drops the spins marked in skip from iso.
 func keepSpins(iso *physics.Isochromats, skip []bool) *physics.Isochromats {
