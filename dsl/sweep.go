@@ -28,8 +28,8 @@ var spinAxes = []struct{ Name, Help string }{
 	{"offset", "frequency offset from the pulse carrier (Hz units, or ppm once `field` is set; ppm axes run high to low)"},
 	{"b1", "B1 scale: a factor (0.5 to 1.5), a percent (50% to 150%), or an absolute peak (0 uT to 25 uT, or Hz)"},
 	{"position", "position along the slice gradient (length units; the pulse needs a gradient or thickness)"},
-	{"t1", "longitudinal relaxation time during the pulse"},
-	{"t2", "transverse relaxation time during the pulse"},
+	{"t1", "longitudinal relaxation time during the pulse; over a decade: log scale, `points` spaced geometrically (`step` stays even)"},
+	{"t2", "transverse relaxation time during the pulse; scale as t1; points with t2 > 2·t1 are left out (T2 ≤ 2·T1)"},
 }
 
 func spinAxisNames() []string {
