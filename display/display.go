@@ -61,9 +61,9 @@ type Axis struct {
 	Unit    string
 	Values  []float64
 	Reverse bool
-	// Log draws a profile's X axis on a logarithmic scale (T1, T2 or durations
-	// spanning decades); points at or below zero are then left out of the figure
-	// (not of the JSON). Maps ignore it.
+	// Log draws the axis on a logarithmic scale (T1, T2 or durations spanning
+	// decades). On a profile, points at or below zero are then left out of the
+	// figure (not of the JSON); a map draws such an axis linearly.
 	Log bool
 }
 
@@ -91,6 +91,10 @@ type Mark struct {
 // are dashed vertical lines on every panel, labelled above the top one; marks
 // on one line share one label ("p1, p2 band edge"). Phase curves (unit "deg")
 // get ticks at multiples of 90° and are not joined across a wrap.
+//
+// The x axis spans every finite value of X (every positive one on a log axis),
+// so points without a value (NaN: left out of a sweep) show as a gap in the
+// curves, not as a shorter axis.
 //
 // Y ranges: a quantity without a unit whose values lie within [−1, 1] is
 // magnetization in M0 units and is drawn on [0, 1] (never negative) or [−1, 1];

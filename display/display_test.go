@@ -29,6 +29,7 @@ func samples() map[string]Bundle {
 		"waveform_gradient": wg.Bundle(wgt),
 		"profile_notes":     sampleRMSProfile().Bundle(),
 		"map_notes":         sampleNotedMap().Bundle(),
+		"map_log":           sampleLogMap().Bundle(),
 	}
 }
 

@@ -124,3 +124,36 @@ func sampleNotedMap() Map {
 	m.Label = "mxy after the pulse"
 	return m
 }
+
+// geomspace is n values from a to b (both positive) in equal ratios.
+func geomspace(a, b float64, n int) []float64 {
+	v := make([]float64, n)
+	for i := range v {
+		v[i] = a * math.Pow(b/a, float64(i)/float64(n-1))
+	}
+	return v
+}
+
+// sampleLogMap is a 30 × 30 T1 × T2 map on log axes (values spaced
+// geometrically), blank where T2 > 2·T1, with z linear in log10(T1·T2) so its
+// contour z = 0.5 is the line T1·T2 = 10^4.15 ms².
+func sampleLogMap() Map {
+	x := geomspace(10, 2000, 30)
+	y := geomspace(10, 1000, 30)
+	z := make([][]float64, len(y))
+	for j, t2 := range y {
+		z[j] = make([]float64, len(x))
+		for i, t1 := range x {
+			z[j][i] = (math.Log10(t1*t2) - 2) / 4.3
+			if t2 > 2*t1 {
+				z[j][i] = math.NaN()
+			}
+		}
+	}
+	return Map{
+		Title: "sweep p over t1 and t2", X: Axis{Label: "t1", Unit: "ms", Values: x, Log: true},
+		Y: Axis{Label: "t2", Unit: "ms", Values: y, Log: true}, Pulse: "p", Quantity: "mxy",
+		Z: z, Contour: 0.5, HasContour: true, ZMin: 0, ZMax: 1,
+		Notes: []string{"t1 and t2 points spaced geometrically; points with t2 > 2·t1 left out"},
+	}
+}

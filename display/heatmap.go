@@ -30,7 +30,10 @@ const maxPixels = 640
 // coloured with this package's own perceptually uniform scale (see rampAnchors);
 // NaN cells are left transparent. The contour, when HasContour, is traced on the
 // full-resolution grid by marching squares and drawn black on a white halo so it
-// shows over dark and light colours alike.
+// shows over dark and light colours alike. An axis with Log set (and only
+// positive values) is drawn logarithmically: cells span geometric midpoints,
+// ticks fall at 1, 2, 5 × powers of ten as on a profile, and the contour is
+// interpolated in the logarithm of the axis values.
 func (m Map) Bundle() Bundle {
 	svg := m.SVG()
 	t := m.table()
@@ -128,10 +131,15 @@ func (m Map) SVG() string {
 
 	xs, xnote := drawable(m.X.Values[:nx])
 	ys, ynote := drawable(m.Y.Values[:ny])
+	// Cells and contours are laid out in log10 of the values on a log axis, so
+	// that cell edges fall at geometric midpoints and the contour is
+	// interpolated along the drawn distance.
+	xl := newMapScale(xs, m.X.Log && xnote == "")
+	yl := newMapScale(ys, m.Y.Log && ynote == "")
 	var legend []legendItem
 	var lines contourLines
 	if m.HasContour && nx > 0 && finite(m.Contour) {
-		lines = contour(xs, ys, m.Z[:ny], m.Contour)
+		lines = mapContour(xl, yl, m.Z[:ny], m.Contour)
 	}
 	if m.HasContour {
 		name := fmt.Sprintf("%s = %s", orDefault(m.Quantity, "z"), minus(strings.TrimSpace(Num(m.Contour, 4)+" "+m.Unit)))
@@ -163,14 +171,10 @@ func (m Map) SVG() string {
 	p := newPlot()
 	p.X.Label.Text = axisLabel(orDefault(m.X.Label, "x"), m.X.Unit) + xnote
 	p.Y.Label.Text = axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit) + ynote
-	if m.X.Reverse {
-		p.X.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
-	}
-	if m.Y.Reverse {
-		p.Y.Scale = plot.InvertedScale{Normalizer: plot.LinearScale{}}
-	}
+	xl.setAxis(&p.X, m.X.Reverse)
+	yl.setAxis(&p.Y, m.Y.Reverse)
 	if nx > 0 {
-		r := &raster{x: xs, y: ys, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
+		r := &raster{x: xl, y: yl, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
 		p.Add(r)
 		if len(lines) > 0 {
 			p.Add(lines)
@@ -250,28 +254,102 @@ var (
 	contourHalo  = draw.LineStyle{Color: color.White, Width: 3}
 )
 
+// mapScale is one axis of a map: the drawable values in layout coordinates
+// (log10 of the values on a logarithmic axis, else the values), in which cells
+// and contours are computed, and the way back to data coordinates.
+type mapScale struct {
+	layout []float64
+	log    bool
+}
+
+// newMapScale lays out the values v, on a log scale when log is asked for and
+// every value is positive (else linearly, as a profile falls back).
+func newMapScale(v []float64, log bool) mapScale {
+	if log {
+		for _, x := range v {
+			if !(x > 0) {
+				log = false
+				break
+			}
+		}
+	}
+	if !log || len(v) == 0 {
+		return mapScale{layout: v}
+	}
+	l := make([]float64, len(v))
+	for i, x := range v {
+		l[i] = math.Log10(x)
+	}
+	return mapScale{layout: l, log: true}
+}
+
+// data turns a layout coordinate back into a data value.
+func (s mapScale) data(u float64) float64 {
+	if s.log {
+		return math.Pow(10, u)
+	}
+	return u
+}
+
+// edges are the cell edges in data coordinates, ascending: midpoints in layout
+// coordinates, so geometric midpoints on a log axis.
+func (s mapScale) edges() []float64 {
+	e := cellEdges(s.layout)
+	for i := range e {
+		e[i] = s.data(e[i])
+	}
+	return e
+}
+
+// setAxis gives the plot axis its scale and ticks.
+func (s mapScale) setAxis(a *plot.Axis, reverse bool) {
+	var n plot.Normalizer = plot.LinearScale{}
+	if s.log {
+		n = plot.LogScale{}
+		a.Tick.Marker = logTicks{}
+	}
+	if reverse {
+		n = plot.InvertedScale{Normalizer: n}
+	}
+	a.Scale = n
+}
+
+// mapContour traces the level in layout coordinates and returns it in data
+// coordinates: on a log axis the crossing of a cell edge is interpolated in the
+// logarithm, where the axis draws the edge straight.
+func mapContour(x, y mapScale, z [][]float64, level float64) contourLines {
+	lines := contour(x.layout, y.layout, z, level)
+	for _, l := range lines {
+		for i := range l {
+			l[i] = [2]float64{x.data(l[i][0]), y.data(l[i][1])}
+		}
+	}
+	return lines
+}
+
 // raster draws the map cells as one image spanning the cells' outer edges.
 type raster struct {
-	x, y     []float64
+	x, y     mapScale
 	z        [][]float64
 	nx       int
 	zlo, zhi float64
 }
 
 func (r *raster) DataRange() (xmin, xmax, ymin, ymax float64) {
-	xe, ye := cellEdges(r.x), cellEdges(r.y)
+	xe, ye := r.x.edges(), r.y.edges()
 	return xe[0], xe[len(xe)-1], ye[0], ye[len(ye)-1]
 }
 
 func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
-	xe, ye := cellEdges(r.x), cellEdges(r.y)
-	x0, x1 := trX(xe[0]), trX(xe[len(xe)-1])
-	y0, y1 := trY(ye[0]), trY(ye[len(ye)-1])
+	// Pixels are even in layout coordinates, which the axes draw evenly.
+	xe, ye := cellEdges(r.x.layout), cellEdges(r.y.layout)
+	x0, x1 := trX(r.x.data(xe[0])), trX(r.x.data(xe[len(xe)-1]))
+	y0, y1 := trY(r.y.data(ye[0])), trY(r.y.data(ye[len(ye)-1]))
 	xs := pixelCells(xe, max(int(math.Abs(float64(x1-x0))*2), 1))
 	ys := pixelCells(ye, max(int(math.Abs(float64(y1-y0))*2), 1))
-	toInput(xs, r.x)
-	toInput(ys, r.y)
+	toInput(xs, r.x.layout)
+	toInput(ys, r.y.layout)
 	// Pixels run left to right and top to bottom; cells run along the axes.
 	if x0 > x1 {
 		reverseRanges(xs)

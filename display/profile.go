@@ -114,6 +114,7 @@ func (p Profile) SVG() string {
 		marks:   p.Marks,
 		logX:    p.X.Log,
 		notes:   p.Notes,
+		xs:      p.X.Values,
 	}
 	if len(p.X.Values) <= maxDots {
 		s.xpad = 0.025

@@ -460,3 +460,79 @@ func TestMarkAtRangeEnd(t *testing.T) {
 		})
 	}
 }
+
+// A map with logarithmic axes: cell edges at geometric midpoints, one image
+// pixel per cell for geometrically spaced values (even in log10), decades drawn
+// equally wide, and the contour of z = (log10(x·y) − 2)/4.3 at 0.5, which is
+// linear in log10 x and log10 y, traced exactly on the line x·y = 10^4.15
+// (marching squares is exact for a field linear in the layout coordinates).
+func TestLogMap(t *testing.T) {
+	m := sampleLogMap()
+	xl := newMapScale(m.X.Values, true)
+	if !xl.log {
+		t.Fatal("positive values on a Log axis: want a log layout")
+	}
+	e := xl.edges()
+	for i := 1; i < len(m.X.Values); i++ {
+		want := math.Sqrt(m.X.Values[i-1] * m.X.Values[i])
+		if math.Abs(e[i]-want) > 1e-9*want {
+			t.Fatalf("edge %d at %v, want the geometric midpoint %v", i, e[i], want)
+		}
+	}
+	if r := pixelCells(cellEdges(xl.layout), 1000); len(r) != len(m.X.Values) {
+		t.Errorf("geometric values: %d pixels, want one per cell (%d)", len(r), len(m.X.Values))
+	}
+	if lin := newMapScale([]float64{-1, 1, 10}, true); lin.log {
+		t.Error("a Log axis with a value ≤ 0 drew logarithmically; want the linear fallback")
+	}
+
+	yl := newMapScale(m.Y.Values, true)
+	lines := mapContour(xl, yl, m.Z, m.Contour)
+	if len(lines) == 0 {
+		t.Fatal("no contour")
+	}
+	for _, l := range lines {
+		for _, p := range l {
+			if got := math.Log10(p[0] * p[1]); math.Abs(got-4.15) > 1e-9 {
+				t.Fatalf("contour point %v: log10(x·y) = %v, want 4.15", p, got)
+			}
+		}
+	}
+
+	svg := m.SVG()
+	checkXML(t, svg)
+	// The x axis is drawn first: keep each label's first position (the y
+	// axis repeats the same labels).
+	pos := map[string]float64{}
+	for _, s := range regexp.MustCompile(`<text x="([^"]*)"[^>]*>([^<]*)</text>`).FindAllStringSubmatch(svg, -1) {
+		if _, seen := pos[s[2]]; !seen {
+			pos[s[2]], _ = strconv.ParseFloat(s[1], 64)
+		}
+	}
+	a, b, c := pos["10"], pos["100"], pos["1000"]
+	if a == 0 || b == 0 || c == 0 {
+		t.Fatalf("decade labels missing: %v", pos)
+	}
+	w := func(s string) float64 { return float64(textStyle(tickSize).Width(s)) / 2 }
+	d1, d2 := (b+w("100"))-(a+w("10")), (c+w("1000"))-(b+w("100"))
+	if math.Abs(d1-d2) > 0.01*d1 {
+		t.Errorf("decades 10–100 and 100–1000 span %v and %v pt, want equal", d1, d2)
+	}
+	// Without Log the same map draws linearly: 10 and 100 crowd together.
+	m.X.Log, m.Y.Log = false, false
+	if pos := textX(t, m.SVG()); pos["100"] != 0 {
+		t.Errorf("linear axis labelled at 100, which a 0…2000 axis with nice steps does not")
+	}
+}
+
+// Points left out of a sweep (NaN at the start of every curve) leave a gap: the
+// x axis still spans every swept value, so its first decade is labelled.
+func TestProfileGapKeepsAxis(t *testing.T) {
+	x := []float64{1, 3, 10, 30, 100, 300, 1000}
+	nan := math.NaN()
+	p := Profile{X: Axis{Label: "t1", Unit: "ms", Values: x, Log: true},
+		Curves: []Curve{{Quantity: "mxy", Y: []float64{nan, nan, nan, 0.9, 0.95, 0.97, 0.98}}}}
+	if pos := textX(t, p.SVG()); pos["1"] == 0 {
+		t.Errorf("no tick label 1 at the start of the swept range: %v", pos)
+	}
+}

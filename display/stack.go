@@ -98,6 +98,9 @@ type stack struct {
 	xpad float64
 	// logX draws x on a logarithmic scale.
 	logX bool
+	// xs, when set, are the swept x values: the x range spans them even where
+	// no curve has a value (points left out show as a gap, not as a shorter axis).
+	xs []float64
 	// notes are drawn in small text under the panels.
 	notes []string
 }
@@ -128,6 +131,13 @@ func (s stack) plots() ([]*plot.Plot, []Mark) {
 		for _, l := range pn.lines {
 			a, b, _, _ := l.DataRange()
 			xlo, xhi = math.Min(xlo, a), math.Max(xhi, b)
+		}
+	}
+	if xlo <= xhi {
+		for _, x := range s.xs {
+			if finite(x) && (!s.logX || x > 0) {
+				xlo, xhi = math.Min(xlo, x), math.Max(xhi, x)
+			}
 		}
 	}
 	if s.fromZero && xlo > 0 && xlo < 0.05*(xhi-xlo) {

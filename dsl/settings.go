@@ -18,7 +18,7 @@ var settingTable = []settingSpec{
 	{"offset", "frequency offset of the spins from the carrier (Hz, or ppm once `field` is set); default 0"},
 	{"b1", "B1 scale: a factor (0.9), a percent (90%), or an absolute peak (T units or Hz); default 1"},
 	{"t1", "longitudinal relaxation time during the pulse; default none"},
-	{"t2", "transverse relaxation time during the pulse; default none"},
+	{"t2", "transverse relaxation time during the pulse; default none; at most 2·t1 (T2 ≤ 2·T1)"},
 	{"start", "initial magnetization: z (default), -z, x, y"},
 	{"tr", "repetition time, for the time-averaged B1 (b1rms)"},
 	{"dwell", "sample length of an imported waveform (import only)"},
@@ -155,7 +155,23 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 			}
 		}
 	}
+	if s.t1 > 0 && s.t2 > 0 && beyondRelaxLimit(s.t1, s.t2) {
+		// T2 ≤ 2·T1 for any relaxing spin ensemble (common practice: Abragam,
+		// The Principles of Nuclear Magnetism, 1961; from memory).
+		return nil, errAt(s.given["t2"], "t2 = %s with t1 = %s: want t2 ≤ 2·t1 = %s (beyond it the Bloch equations let |M| exceed M0)",
+			s.writtenValue("t2"), s.writtenValue("t1"), Quantity{2 * s.t1, dimTime})
+	}
 	return s, nil
+}
+
+// writtenValue is the value of a setting as evaluated and shown ("10 ms").
+func (s *settings) writtenValue(name string) string {
+	for _, w := range s.written {
+		if w[0] == name {
+			return w[1]
+		}
+	}
+	return ""
 }
 
 func exprText(e Expr, w string) string {

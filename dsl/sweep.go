@@ -3,6 +3,7 @@ package dsl
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"sync"
 
@@ -27,8 +28,8 @@ var spinAxes = []struct{ Name, Help string }{
 	{"offset", "frequency offset from the pulse carrier (Hz units, or ppm once `field` is set; ppm axes run high to low)"},
 	{"b1", "B1 scale: a factor (0.5 to 1.5), a percent (50% to 150%), or an absolute peak (0 uT to 25 uT, or Hz)"},
 	{"position", "position along the slice gradient (length units; the pulse needs a gradient or thickness)"},
-	{"t1", "longitudinal relaxation time during the pulse"},
-	{"t2", "transverse relaxation time during the pulse"},
+	{"t1", "longitudinal relaxation time during the pulse; over a decade: log scale, `points` spaced geometrically (`step` stays even)"},
+	{"t2", "transverse relaxation time during the pulse; scale as t1; points with t2 > 2·t1 are left out (T2 ≤ 2·T1)"},
 }
 
 func spinAxisNames() []string {
@@ -50,10 +51,19 @@ type sweepAxis struct {
 	n       int
 	unit    string // display unit ("" plain, "%" percent)
 	reverse bool
+	// logScale draws the axis logarithmically; geometric spaces its points in
+	// equal ratios, from FROM by ratio to TO (see decideSpacing).
+	logScale  bool
+	geometric bool
+	ratio     float64
 }
 
 func (a *sweepAxis) value(i int) Value {
 	v := a.from
+	if a.geometric {
+		v.Q.V = a.from.Q.V * math.Pow(a.ratio, float64(i)/float64(a.n-1))
+		return v
+	}
 	v.Q.V = a.from.Q.V + a.step*float64(i)
 	return v
 }
@@ -203,7 +213,46 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 		}
 	}
 	a.reverse = from.Q.D == dimPPM
+	a.decideSpacing(ax.Points != nil, to.Q.V)
 	return a, nil
+}
+
+// decideSpacing is where a relaxation-time axis's scale and spacing are
+// chosen. A t1 or t2 axis spanning more than a decade is drawn on a log
+// scale; written with `points N` its points are then spaced geometrically
+// (equal ratios, FROM and TO included), so every decade holds its share of
+// them. An axis written with `step S` keeps the values as written. The values
+// are positive (see evalAxis).
+func (a *sweepAxis) decideSpacing(byPoints bool, to float64) {
+	if a.kind != "t1" && a.kind != "t2" || a.n < 2 {
+		return
+	}
+	lo, hi := a.value(0).Q.V, a.value(a.n-1).Q.V
+	if lo > hi {
+		lo, hi = hi, lo
+	}
+	a.logScale = lo > 0 && hi/lo > 10
+	if a.logScale && byPoints {
+		a.geometric, a.ratio = true, to/a.from.Q.V
+	}
+}
+
+// spacingNote says which axes are spaced geometrically ("" when none).
+func spacingNote(axes []*sweepAxis) string {
+	var names []string
+	for _, a := range axes {
+		if a.geometric {
+			names = append(names, a.kind)
+		}
+	}
+	if len(names) == 0 {
+		return ""
+	}
+	why := "the axis spans more than a decade and is drawn"
+	if len(names) > 1 {
+		why = "each axis spans more than a decade and is drawn"
+	}
+	return strings.Join(names, " and ") + " points spaced geometrically (equal ratios), as " + why + " on a log scale; `step` keeps even spacing."
 }
 
 // curveData is one quantity of one pulse over the sweep, indexed i0*n1 + i1.
@@ -320,6 +369,21 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 			}
 		}
 	}
+	skip, left := relaxMask(axes, set)
+	if left > 0 && left == len(skip) {
+		var over []string
+		for _, name := range []string{"t1", "t2"} {
+			for _, a := range axes {
+				if a.kind == name {
+					over = append(over, name+" "+a.value(0).String()+" to "+a.value(a.n-1).String())
+				}
+			}
+			if _, ok := set.given[name]; ok {
+				over = append(over, name+" = "+set.writtenValue(name))
+			}
+		}
+		return errAt(axisPos(axes, "t1", "t2"), "t2 exceeds 2·t1 at every point of the sweep (%s); want t2 ≤ 2·t1 somewhere (beyond it the Bloch equations let |M| exceed M0)", strings.Join(over, ", "))
+	}
 	runs, total, err := ev.planSweep(defs, axes, qs, set)
 	if err != nil {
 		return err
@@ -327,7 +391,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	if total > physics.DefaultMaxSteps {
 		return errAt(s.P, "sweep needs %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
 	}
-	curves, err := ev.runSweep(runs, axes, qs, set, n0, n1, total, "sweep "+joinNames(s.Names))
+	curves, err := ev.runSweep(runs, axes, qs, set, skip, n0, n1, total, "sweep "+joinNames(s.Names))
 	if err != nil {
 		return err
 	}
@@ -339,14 +403,19 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		title += " and " + axes[1].kind
 	}
 	title += set.caption()
+	leftCells := 0
+	if left > 0 {
+		leftCells = left * n0 * n1 / len(skip) // every build leaves out the same spins
+	}
+	notes := axisNotes(axes, leftCells, n0*n1)
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote), set))
+			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote, notes, leftCells), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return nil
 	}
-	ev.emit(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start), set))
+	ev.emit(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start, notes), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 	return nil
 }
@@ -512,7 +581,7 @@ func (p *progress) report(done float64) {
 }
 
 // runSweep simulates and measures every run and fills the curves.
-func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, n0, n1 int, total float64, task string) ([]*curveData, error) {
+func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, skip []bool, n0, n1 int, total float64, task string) ([]*curveData, error) {
 	var prog *progress
 	if total > progressSteps && ev.sink.Progress != nil {
 		prog = &progress{sink: ev.sink.Progress, task: task, total: total, last: -1}
@@ -538,7 +607,7 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 		if err := ev.checkCtx(); err != nil {
 			return nil, err
 		}
-		if err := ev.runOne(r, axes, qs, set, n1, byPulse[r.pi], prog); err != nil {
+		if err := ev.runOne(r, axes, qs, set, skip, n1, byPulse[r.pi], prog); err != nil {
 			return nil, err
 		}
 	}
@@ -548,8 +617,9 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 	return curves, nil
 }
 
-// runOne fills the cells of one build.
-func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, n1 int, curves []*curveData, prog *progress) error {
+// runOne fills the cells of one build; spins marked in skip (see relaxMask) are
+// not simulated and their cells are NaN.
+func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, skip []bool, n1 int, curves []*curveData, prog *progress) error {
 	if r.p == nil {
 		p, err := ev.rebuild(r.def, r.args, r.callPos)
 		if err != nil {
@@ -603,6 +673,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 		if err != nil {
 			return err
 		}
+		iso = keepSpins(iso, skip)
 		opt := physics.Options{Start: set.start}
 		base := 0.0
 		if prog != nil {
@@ -644,24 +715,31 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 	}
 	for qi, q := range qs {
 		c := curves[qi]
+		ri := 0 // index into the simulated spins
 		for k := 0; k < r.spins; k++ {
+			if skip != nil && skip[k] {
+				c.values[cell(k)] = math.NaN()
+				continue
+			}
+			j := ri
+			ri++
 			var v float64
 			switch q.Name {
 			case "mx":
-				v = res.Mx[k]
+				v = res.Mx[j]
 			case "my":
-				v = res.My[k]
+				v = res.My[j]
 			case "mz":
-				v = res.Mz[k]
+				v = res.Mz[j]
 			case "mxy":
-				v = math.Hypot(res.Mx[k], res.My[k])
+				v = math.Hypot(res.Mx[j], res.My[j])
 			case "phase":
-				v = math.Atan2(res.My[k], res.Mx[k]) * 180 / math.Pi
+				v = math.Atan2(res.My[j], res.Mx[j]) * 180 / math.Pi
 			case "echo":
 				if res.Beta == nil {
 					return errAt(axes[0].pos, "echo is defined without relaxation; drop t1 and t2")
 				}
-				b := res.Beta[k]
+				b := res.Beta[j]
 				v = real(b)*real(b) + imag(b)*imag(b)
 			case "peak":
 				v = p.Peak() * 1e6
@@ -766,19 +844,20 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 }
 
 // profileOutput draws the curves of a one-axis sweep with its summary.
-func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64) display.Bundle {
+func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64, notes []string) display.Bundle {
 	x := a.display()
 	prof := display.Profile{
 		Title: title,
-		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse, Log: a.logScale()},
+		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse, Log: a.logScale},
 	}
 	for _, c := range curves {
 		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Y: c.values})
 	}
 	prof.Marks = bandMarks(a, defs, st)
 	prof.Summary = summaryTable(title, a, x, curves, defs, start)
+	prof.Summary.Notes = append(slices.Clone(notes), prof.Summary.Notes...)
 	// The caution travels inside the image, which is what gets saved or pasted.
-	prof.Notes = energyNote(curves)
+	prof.Notes = append(slices.Clone(notes), energyNote(curves)...)
 	return profileBundle(prof)
 }
 
@@ -876,7 +955,8 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 					mag = m.values
 				}
 			}
-			slope, dev, x0, x1 := phaseFeatures(x, c.values, mag)
+			px, py, pm := finitePoints(x, c.values, mag)
+			slope, dev, x0, x1 := phaseFeatures(px, py, pm)
 			row := []string{c.pulse, c.quantity.Name, "—", "—", "—", "—", "—", "—", fmtCellOpt(slope), fmtCellOpt(dev)}
 			t.Rows = append(t.Rows, row)
 			if !math.IsNaN(slope) {
@@ -889,7 +969,8 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 			continue
 		}
 		base, target := curveLevels(c.quantity.Name, a.kind, start, p)
-		f := curveFeatures(x, c.values, base, target)
+		fx, fy, _ := finitePoints(x, c.values, nil)
+		f := curveFeatures(fx, fy, base, target)
 		row := []string{c.pulse, c.quantity.Name,
 			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
 			fmtCellOpt(f.width), f.crossings, fmtCellOpt(f.passRipple), fmtCellOpt(f.stopRipple)}
@@ -901,6 +982,26 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 	t.Notes = append([]string{"half level: midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's, e.g. mz = cos flip or −1 for inversion; otherwise the curve's extreme, so half maximum for mxy and echo); width at half: distance between the crossings around the band, \"—\" when the curve does not pass the half level and come back on both sides inside the window; ripples are peak-to-peak inside the central half of that band and the largest excursion from the baseline outside it."}, notes...)
 	t.Notes = append(t.Notes, energyNote(curves)...)
 	return t
+}
+
+// finitePoints keeps the points where y is not NaN (points left out of a sweep,
+// t2 > 2·t1), with the matching x and also (when not nil); the inputs are
+// returned as they are when nothing is left out.
+func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
+	if !slices.ContainsFunc(y, math.IsNaN) {
+		return x, y, also
+	}
+	var fx, fy, fa []float64
+	for i, v := range y {
+		if math.IsNaN(v) {
+			continue
+		}
+		fx, fy = append(fx, x[i]), append(fy, v)
+		if also != nil {
+			fa = append(fa, also[i])
+		}
+	}
+	return fx, fy, fa
 }
 
 func energyNote(curves []*curveData) []string {
@@ -963,21 +1064,9 @@ func colourRange(q string) (lo, hi float64) {
 	return 0, 0
 }
 
-// logScale reports whether a relaxation-time axis spans more than a decade, where
-// a logarithmic scale reads best (its values are all positive: see evalAxis).
-func (a *sweepAxis) logScale() bool {
-	if a.kind != "t1" && a.kind != "t2" || a.n < 2 {
-		return false
-	}
-	lo, hi := a.value(0).Q.V, a.value(a.n-1).Q.V
-	if lo > hi {
-		lo, hi = hi, lo
-	}
-	return lo > 0 && hi/lo > 10
-}
-
-// mapOutput draws one quantity of one pulse over two axes.
-func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string) display.Bundle {
+// mapOutput draws one quantity of one pulse over two axes; leftOut cells were not
+// simulated (t2 > 2·t1).
+func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) display.Bundle {
 	// Z[iy][ix] with the first axis horizontal.
 	z := make([][]float64, n1)
 	for iy := range z {
@@ -988,14 +1077,14 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 	}
 	m := display.Map{
 		Title:    title + ": " + c.pulse + " " + c.quantity.Name,
-		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse, Log: axes[0].logScale()},
-		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse, Log: axes[1].logScale()},
+		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse, Log: axes[0].logScale},
+		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse, Log: axes[1].logScale},
 		Pulse:    c.pulse,
 		Quantity: c.quantity.Name,
 		Label:    c.label,
 		Unit:     unitLabel(c.quantity.Unit),
 		Z:        z,
-		Notes:    energyNote([]*curveData{c}),
+		Notes:    append(slices.Clone(axisNotes), energyNote([]*curveData{c})...),
 	}
 	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
@@ -1026,9 +1115,13 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 		{"max", fmtCell(hi) + " at " + at(hiAt)},
 	}
 	if ok {
-		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(len(c.values)), 4)) + " % of the map"})
+		of, n := " % of the map", len(c.values)
+		if leftOut > 0 {
+			of, n = " % of the simulated points", n-leftOut
+		}
+		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(n), 4)) + of})
 	}
-	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: energyNote([]*curveData{c})}
+	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: append(slices.Clone(axisNotes), energyNote([]*curveData{c})...)}
 	if note != "" {
 		m.Summary.Notes = append([]string{note}, m.Summary.Notes...)
 	}
@@ -1068,4 +1161,90 @@ func tieTol(v float64) float64 {
 		return 0
 	}
 	return 1e-9 * math.Max(1, math.Abs(v))
+}
+
+// relaxMask marks the spins of a sweep (in the order isochromats lays them out:
+// spin axes as a grid, first axis slowest) whose T2 exceeds 2·T1, with t1 and t2
+// taken from the axes or the settings; left counts them. It is nil when a t1 or
+// t2 is missing (no relaxation of that kind) or no spin is marked. Such spins
+// are not simulated: T2 ≤ 2·T1 holds for any relaxing spin ensemble, and beyond
+// it the Bloch equations let |M| grow past M0 (common practice; Abragam, The
+// Principles of Nuclear Magnetism, 1961, from memory).
+func relaxMask(axes []*sweepAxis, set *settings) (skip []bool, left int) {
+	var spinAx []*sweepAxis
+	n := 1
+	relaxAxis := false
+	for _, a := range axes {
+		if a.spin {
+			spinAx = append(spinAx, a)
+			n *= a.n
+			relaxAxis = relaxAxis || a.kind == "t1" || a.kind == "t2"
+		}
+	}
+	if !relaxAxis {
+		return nil, 0 // fixed t1 and t2 alone are checked with the settings
+	}
+	skip = make([]bool, n)
+	for k := range skip {
+		t1, t2 := set.t1, set.t2
+		stride := n
+		for _, a := range spinAx {
+			stride /= a.n
+			switch v := a.value((k / stride) % a.n).Q.V; a.kind {
+			case "t1":
+				t1 = v
+			case "t2":
+				t2 = v
+			}
+		}
+		if t1 > 0 && t2 > 0 && beyondRelaxLimit(t1, t2) {
+			skip[k] = true
+			left++
+		}
+	}
+	if left == 0 {
+		return nil, 0
+	}
+	return skip, left
+}
+
+// beyondRelaxLimit reports t2 > 2·t1; values equal but for rounding (a t2 axis
+// stepping onto 2·t1) count as equal, so that the limit itself is simulated.
+func beyondRelaxLimit(t1, t2 float64) bool { return t2 > 2*t1*(1+1e-12) }
+
+// keepSpins drops the spins marked in skip from iso.
+func keepSpins(iso *physics.Isochromats, skip []bool) *physics.Isochromats {
+	if skip == nil {
+		return iso
+	}
+	keep := func(a []float64) []float64 {
+		if a == nil {
+			return nil
+		}
+		var out []float64
+		for k, v := range a {
+			if !skip[k] {
+				out = append(out, v)
+			}
+		}
+		return out
+	}
+	return &physics.Isochromats{Offset: keep(iso.Offset), B1Scale: keep(iso.B1Scale), Position: keep(iso.Position), T1: keep(iso.T1), T2: keep(iso.T2)}
+}
+
+// relaxLimitNote names the relation behind the points left out of a sweep.
+const relaxLimitNote = "T2 ≤ 2·T1 for any relaxing spin ensemble; beyond it the Bloch equations let |M| exceed M0 (common practice: Abragam, The Principles of Nuclear Magnetism, 1961; from memory)"
+
+// axisNotes are the notes a sweep's figure and table carry about its axes: the
+// geometric spacing of relaxation axes and the points left out where
+// t2 > 2·t1 (left of cells).
+func axisNotes(axes []*sweepAxis, left, cells int) []string {
+	var notes []string
+	if s := spacingNote(axes); s != "" {
+		notes = append(notes, s)
+	}
+	if left > 0 {
+		notes = append(notes, fmt.Sprintf("%d of %d points, where t2 > 2·t1, left out (not simulated; blank in the figure, \"—\" in tables, null in the JSON): %s.", left, cells, relaxLimitNote))
+	}
+	return notes
 }
