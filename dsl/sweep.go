@@ -925,6 +925,14 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		}
 		if c.quantity.Name == "phase" || c.quantity.Name == "echophase" {
 			slope, dev, x0, x1 := phaseFeatures(x, c.values, c.mag)
+			// A phase constant to rounding (a time-symmetric pulse's echo) reads 0,
+			// not 1e-13.
+			if math.Abs(slope*(x1-x0)) < 1e-9 {
+				slope = 0
+			}
+			if dev < 1e-9 {
+				dev = 0
+			}
 			row := []string{c.pulse, c.quantity.Name, "—", "—", "—", "—", "—", "—", fmtCellOpt(slope), fmtCellOpt(dev)}
 			t.Rows = append(t.Rows, row)
 			if !math.IsNaN(slope) {
