@@ -194,7 +194,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 
 // rippleNote names the regions of describe's ripple (shape.Measure), which differ
 // from those of a sweep's feature table.
-const rippleNote = "ripple (pass / stop), on the role's profile from +z (|Mxy| for excite or no role, (1 − Mz)/2 invert, echo |β|² refocus, 1 − |Mz| saturate): pass is the largest deviation from the centre value, relative to it, within the half-maximum band edges moved inward by one 90 %–10 % transition width; stop is the largest value, relative to the centre value, beyond the edges moved outward by one transition width. A sweep's feature table uses other regions (its note says which)."
+const rippleNote = "ripple (pass / stop) of the role's profile (|Mxy| for excite or no role, (1 − Mz)/2 invert, echo |β|² refocus, 1 − |Mz| saturate), relative to its centre value: pass is the largest deviation within the FWHM band edges moved inward by one 90 %–10 % transition width, stop the largest value beyond the edges moved outward by one transition width. A sweep's feature table uses other regions (its note says which)."
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
 
