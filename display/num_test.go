@@ -1,6 +1,7 @@
 package display
 
 import (
+	"fmt"
 	"math"
 	"slices"
 	"testing"
@@ -61,6 +62,42 @@ func TestNumColumn(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			if got := NumColumn(tc.v, tc.sig); !slices.Equal(got, tc.want) {
 				t.Errorf("NumColumn(%v, %d): got %q, want %q", tc.v, tc.sig, got, tc.want)
+			}
+		})
+	}
+}
+
+// Phase axes are labelled at multiples of 90° up to one and a half turns, then at
+// half and whole turns, with at most about seven labels (common practice for
+// readable axes: labels must not overlap).
+func TestDegreeTicks(t *testing.T) {
+	cases := []struct {
+		lo, hi float64
+		step   float64
+	}{
+		{-180, 180, 90},
+		{-400, 300, 180},
+		{-720, 720, 360},
+		{-5000, 5000, 1800},
+	}
+	for _, c := range cases {
+		t.Run(fmt.Sprintf("%g to %g", c.lo, c.hi), func(t *testing.T) {
+			var labelled []float64
+			for _, tk := range (degreeTicks{}).Ticks(c.lo, c.hi) {
+				if tk.Label != "" {
+					labelled = append(labelled, tk.Value)
+				}
+			}
+			if len(labelled) < 2 || len(labelled) > 8 {
+				t.Fatalf("labels at %v: want 2 to 8", labelled)
+			}
+			for i, v := range labelled {
+				if math.Mod(v, c.step) != 0 {
+					t.Errorf("label at %g, want multiples of %g", v, c.step)
+				}
+				if i > 0 && v-labelled[i-1] != c.step {
+					t.Errorf("labels %g and %g, want %g apart", labelled[i-1], v, c.step)
+				}
 			}
 		})
 	}

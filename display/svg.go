@@ -305,13 +305,18 @@ func (n noLabels) Ticks(lo, hi float64) []plot.Tick {
 }
 
 // degreeTicks labels phase axes at multiples of 90° (45° or 30° for narrower
-// ranges), falling back to the default ticker for small ranges.
+// ranges; for an unwrapped phase spanning turns, whole or half turns, at most
+// about seven labels), falling back to the default ticker for small ranges.
 type degreeTicks struct{}
 
 func (degreeTicks) Ticks(lo, hi float64) []plot.Tick {
 	span := hi - lo
 	var step float64
 	switch {
+	case span >= 1080:
+		step = 360 * math.Ceil(span/(360*6))
+	case span >= 540:
+		step = 180
 	case span >= 270:
 		step = 90
 	case span >= 135:

@@ -188,9 +188,13 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		Title:   "pulse " + d.Name,
 		Columns: []display.Column{{Name: "property"}, {Name: "value"}},
 		Rows:    rows,
-		Notes:   []string{energyCaution},
+		Notes:   []string{rippleNote, energyCaution},
 	}
 }
+
+// rippleNote names the regions of describe's ripple (shape.Measure), which differ
+// from those of a sweep's feature table.
+const rippleNote = "ripple (pass / stop) of the role's profile (|Mxy| for excite or no role, (1 − Mz)/2 invert, echo |β|² refocus, 1 − |Mz| saturate), relative to its centre value: pass is the largest deviation within the FWHM band edges moved inward by one 90 %–10 % transition width, stop the largest value beyond the edges moved outward by one transition width. A sweep's feature table uses other regions (its note says which)."
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
 

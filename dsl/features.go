@@ -20,18 +20,16 @@ type features struct {
 // is the start state; and target, the pass-band value where the design fixes it
 // (mz of a pulse of nominal flip θ from ±z: Mz0·cos θ; inversion −Mz0; saturation 0),
 // NaN to take the curve's extreme farthest from base. base is NaN where the axis
-// has no such baseline (t1, t2, shape arguments) or the quantity is not
-// magnetization.
+// has no such baseline (t1, t2, shape arguments), for mx and my (they oscillate
+// across an offset axis as the phase runs, so a half level, width or ripple of
+// theirs would be noise: only their extremes are given) and where the quantity is
+// not magnetization.
 func curveLevels(q, axis string, start [3]float64, p *shape.Pulse) (base, target float64) {
 	base, target = math.NaN(), math.NaN()
 	if axis != "offset" && axis != "b1" && axis != "position" {
 		return base, target
 	}
 	switch q {
-	case "mx":
-		base = start[0]
-	case "my":
-		base = start[1]
 	case "mz":
 		base = start[2]
 		if start[0] != 0 || start[1] != 0 || p == nil || imported(p) {
@@ -191,6 +189,11 @@ func phaseFeatures(x, phase, mag []float64) (slope, dev, x0, x1 float64) {
 	if hi-lo+1 < 3 {
 		return
 	}
+	for i := lo; i <= hi; i++ {
+		if math.IsNaN(phase[i]) {
+			return // a phase left out inside the band (its magnitude is tiny)
+		}
+	}
 	// Unwrap: successive points differ by at most half a turn.
 	u := make([]float64, 0, hi-lo+1)
 	prev := phase[lo]
@@ -227,4 +230,36 @@ func phaseFeatures(x, phase, mag []float64) (slope, dev, x0, x1 float64) {
 		dev = math.Max(dev, math.Abs(v-(mu+slope*(x[lo+k]-mx))))
 	}
 	return slope, dev, x[lo], x[hi]
+}
+
+// unwrapDefined unwraps a phase curve (deg) in place along the axis, within each
+// run of defined (non-NaN) points separately: successive points differ by at most
+// half a turn. Each run is then shifted by whole turns so that its value where mag
+// is largest lies in (−180, 180], which keeps the stretch a user reads first (the
+// band) at its wrapped value.
+func unwrapDefined(phase, mag []float64) {
+	n := len(phase)
+	for lo := 0; lo < n; {
+		if math.IsNaN(phase[lo]) {
+			lo++
+			continue
+		}
+		hi := lo
+		for hi+1 < n && !math.IsNaN(phase[hi+1]) {
+			hi++
+		}
+		top := lo
+		for i := lo + 1; i <= hi; i++ {
+			d := phase[i] - phase[i-1]
+			phase[i] -= 360 * math.Round(d/360)
+			if len(mag) == n && mag[i] > mag[top] {
+				top = i
+			}
+		}
+		shift := 360 * math.Ceil((phase[top]-180)/360)
+		for i := lo; i <= hi; i++ {
+			phase[i] -= shift
+		}
+		lo = hi + 1
+	}
 }

@@ -115,6 +115,10 @@ func TestCurveLevels(t *testing.T) {
 		{"echo", "position", z, hard, 0, math.NaN()},
 		{"mz", "t2", z, hard, math.NaN(), math.NaN()},
 		{"mz", "duration", z, hard, math.NaN(), math.NaN()},
+		// mx and my oscillate across an offset axis as the phase runs (Rabi, Phys.
+		// Rev. 51:652, 1937: Mx = a·c·(1 − cos ΩT)): no half level, extremes only.
+		{"mx", "offset", z, hard, math.NaN(), math.NaN()},
+		{"my", "b1", [3]float64{0, 1, 0}, hard, math.NaN(), math.NaN()},
 	} {
 		t.Run(c.q+" over "+c.axis, func(t *testing.T) {
 			base, target := curveLevels(c.q, c.axis, c.start, c.p)
@@ -158,5 +162,10 @@ func TestPhaseFeatures(t *testing.T) {
 	_, _, x0, x1 = phaseFeatures(x, ph, mag)
 	if math.Abs(x0+1.17) > 1e-9 || math.Abs(x1-1.17) > 1e-9 {
 		t.Errorf("band %g to %g, want -1.17 to 1.17", x0, x1)
+	}
+	// A phase left out inside the band (its magnitude below the floor) gives no fit.
+	ph[500] = math.NaN()
+	if slope, _, _, _ := phaseFeatures(x, ph, mag); !math.IsNaN(slope) {
+		t.Errorf("slope %g with a phase left out in the band, want NaN", slope)
 	}
 }

@@ -35,7 +35,8 @@ const conventionsHelp = `Conventions
   Printed amplitudes give both µT and Hz (|γ̄|B1, γ̄ = γ/2π).
   Simulation: each sample is an exact rotation (with relaxation, the exact solution of
   the linear step). Echo is the crushed spin-echo response |β|² of the Cayley–Klein
-  parameters (Pauly et al., IEEE TMI 10:53, 1991).
+  parameters (Pauly et al., IEEE TMI 10:53, 1991); echophase is its phase arg(−β²),
+  the phase of the refocused Mxy for Mxy along +x before the pulse.
   Gyromagnetic ratios: 1H CODATA 2018; others IUPAC, Harris et al., Pure Appl. Chem.
   73:1795 (2001).
   Energy and B1rms are relative, waveform-only estimates, never SAR: defer to the
@@ -91,7 +92,7 @@ func Help(topic string) (string, error) {
 		}
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "quantities":
-		return nameList("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo; otherwise mx my mz, or mz on a map; a map shows the first)",
+		return nameList("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo, with echophase on one axis; otherwise mx my mz, or mz on a map; a map shows the first)",
 			10, len(quantityTable), func(i int) (string, string) { return quantityTable[i].Name, quantityTable[i].Help }), nil
 	case "settings":
 		return nameList("Settings after `with`", 7, len(settingTable),

@@ -18,7 +18,8 @@ var quantityTable = []quantitySpec{
 	{Name: "mz", Help: "longitudinal magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "mxy", Help: "transverse magnitude |Mx + iMy| after the pulse", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "phase", Unit: "deg", Help: "phase of Mx + iMy after the pulse, atan2(My, Mx)", Method: "exact piecewise-constant Bloch rotation"},
-	{Name: "echo", Help: "crushed spin-echo response of a refocusing pulse: the magnitude |β|² of Mxy+ = −β²·Mxy* (for Mxy* of unit size)", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
+	{Name: "echo", Help: "crushed spin-echo response of a refocusing pulse: the magnitude |β|² of Mxy+ = −β²·Mxy* (for Mxy* of unit size); a one-axis sweep draws echophase below it", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
+	{Name: "echophase", Unit: "deg", Help: "phase of the crushed spin echo, arg(−β²) (twice the pulse's phase for a hard pulse; linear across offset shifts the echo in time, curvature dephases it); left out where echo is below 0.001; unwrapped along a one-axis sweep, within (−180, 180] on a map", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
 	{Name: "peak", Property: true, Unit: "uT", Help: "peak B1 of the pulse", Method: "largest |B1| sample"},
 	{Name: "energy", Property: true, Unit: "µT²·ms", Help: "∫B1² dt: a relative, waveform-only estimate (not SAR)", Method: "sum of |B1|²·dwell"},
 	{Name: "b1rms", Property: true, Unit: "uT", Help: "time-averaged B1, √(energy/TR); needs `with tr = ...`; relative, waveform-only", Method: "√(∫B1² dt / TR)"},
@@ -26,7 +27,7 @@ var quantityTable = []quantitySpec{
 	{Name: "bandwidth", Property: true, Unit: "Hz", Help: "full width at half maximum of the pulse's own simulated profile", Method: "simulated profile of the role's quantity, half-level crossings"},
 	{Name: "tbw", Property: true, Help: "time-bandwidth product: measured bandwidth × duration", Method: "bandwidth × duration"},
 	{Name: "transition", Property: true, Unit: "Hz", Help: "90 %–10 % transition width of the profile, mean of both edges", Method: "simulated profile"},
-	{Name: "ripple", Property: true, Unit: "%", Help: "pass-band ripple of the profile, relative to its on-band value", Method: "simulated profile"},
+	{Name: "ripple", Property: true, Unit: "%", Help: "pass-band ripple of the profile: the largest deviation from its centre value, relative to it, within the half-maximum band edges moved inward by one transition width (as describe)", Method: "simulated profile"},
 	{Name: "threshold", Property: true, Unit: "uT", Help: "adiabatic threshold: the peak B1 above which the profile meets its target", Method: "B1 scan of simulated profiles"},
 }
 

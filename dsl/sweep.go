@@ -260,6 +260,7 @@ type curveData struct {
 	pulse    string
 	quantity quantitySpec
 	values   []float64
+	mag      []float64 // phase and echophase: the magnitude (|Mxy|, |β|²) the phase belongs to
 	role     shape.Role
 	label    string // the quantity named on axes and in tables ("b1rms at TR 10 ms")
 }
@@ -319,7 +320,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 				names = []string{"mz"}
 				why = "the default for a pulse without a role"
 			}
-			mapNote = "showing " + names[0] + ", " + why + "; choose another with `show` (mx, my, mz, mxy, phase, echo)"
+			mapNote = "showing " + names[0] + ", " + why + "; choose another with `show` (mx, my, mz, mxy, phase, echo, echophase)"
 		}
 		for _, n := range names {
 			q, _ := lookupQuantity(n)
@@ -337,8 +338,8 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		if q.Name == "b1rms" && set.tr == 0 {
 			return errAt(id.P, "b1rms needs the repetition time: add `with tr = ...`")
 		}
-		if q.Name == "echo" && (set.t1 > 0 || set.t2 > 0 || axisNamed(axes, "t1") || axisNamed(axes, "t2")) {
-			return errAt(id.P, "echo is defined without relaxation; drop t1 and t2")
+		if isEcho(q.Name) && (set.t1 > 0 || set.t2 > 0 || axisNamed(axes, "t1") || axisNamed(axes, "t2")) {
+			return errAt(id.P, "%s is defined without relaxation; drop t1 and t2", q.Name)
 		}
 		for _, p := range qs {
 			if p.Name == q.Name {
@@ -349,6 +350,9 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	if len(axes) == 2 && len(qs) > 1 {
 		return errAt(s.Show[1].P, "a map over two axes shows one quantity, got %d", len(qs))
+	}
+	if len(axes) == 1 {
+		qs = withEchoPhase(qs)
 	}
 	n0, n1 := axes[0].n, 1
 	if len(axes) == 2 {
@@ -363,9 +367,9 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		}
 	}
 	for _, q := range qs {
-		if q.Name == "echo" {
+		if isEcho(q.Name) {
 			if axisNamed(axes, "t1") || axisNamed(axes, "t2") {
-				return errAt(axisPos(axes, "t1", "t2"), "echo is defined without relaxation; sweep t1 or t2 with mz, mxy ...")
+				return errAt(axisPos(axes, "t1", "t2"), "%s is defined without relaxation; sweep t1 or t2 with mz, mxy ...", q.Name)
 			}
 		}
 	}
@@ -397,6 +401,9 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	for _, c := range curves {
 		c.label = quantityLabel(c.quantity.Name, set.tr)
+		if len(axes) == 1 && c.quantity.Name == "echophase" {
+			unwrapDefined(c.values, c.mag)
+		}
 	}
 	title := "sweep " + joinNames(s.Names) + " over " + axes[0].kind
 	if len(axes) == 2 {
@@ -419,6 +426,37 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 	return nil
 }
+
+// isEcho reports whether q is the crushed echo or its phase, which need the
+// Cayley–Klein parameters (no relaxation).
+func isEcho(q string) bool { return q == "echo" || q == "echophase" }
+
+// withEchoPhase puts echophase after echo when only echo is asked for: a one-axis
+// sweep of the echo shows its magnitude and its phase, which a refocusing design
+// needs as much (linear across offset shifts the echo, curvature dephases it).
+func withEchoPhase(qs []quantitySpec) []quantitySpec {
+	at := -1
+	for i, q := range qs {
+		switch q.Name {
+		case "echophase":
+			return qs
+		case "echo":
+			at = i
+		}
+	}
+	if at < 0 {
+		return qs
+	}
+	ph, _ := lookupQuantity("echophase")
+	out := append([]quantitySpec{}, qs[:at+1]...)
+	out = append(out, ph)
+	return append(out, qs[at+1:]...)
+}
+
+// echoPhaseFloor is the echo magnitude (M0 units) below which its phase is left out
+// (NaN): there the phase says nothing a designer can use, and near a zero of β it is
+// rounding noise.
+const echoPhaseFloor = 1e-3
 
 func joinNames(ids []Ident) string {
 	var s []string
@@ -599,6 +637,9 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 		}
 		for _, q := range qs {
 			c := &curveData{pulse: r.def.Name, quantity: q, values: make([]float64, n0*n1), role: r.def.Pulse.Role}
+			if q.Name == "phase" || q.Name == "echophase" {
+				c.mag = make([]float64, n0*n1)
+			}
 			byPulse[r.pi] = append(byPulse[r.pi], c)
 			curves = append(curves, c)
 		}
@@ -735,12 +776,20 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 				v = math.Hypot(res.Mx[j], res.My[j])
 			case "phase":
 				v = math.Atan2(res.My[j], res.Mx[j]) * 180 / math.Pi
-			case "echo":
+				c.mag[cell(k)] = math.Hypot(res.Mx[j], res.My[j])
+			case "echo", "echophase":
 				if res.Beta == nil {
-					return errAt(axes[0].pos, "echo is defined without relaxation; drop t1 and t2")
+					return errAt(axes[0].pos, "%s is defined without relaxation; drop t1 and t2", q.Name)
 				}
 				b := res.Beta[j]
 				v = real(b)*real(b) + imag(b)*imag(b)
+				if q.Name == "echophase" {
+					c.mag[cell(k)] = v
+					v = math.NaN()
+					if c.mag[cell(k)] >= echoPhaseFloor {
+						v = physics.EchoPhase(b) * 180 / math.Pi
+					}
+				}
 			case "peak":
 				v = p.Peak() * 1e6
 			case "energy":
@@ -933,9 +982,14 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
 			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple"}, {Name: "stop ripple"}},
 	}
-	hasPhase := false
+	hasPhase, hasLevels, hasXY := false, false, false
 	for _, c := range curves {
-		hasPhase = hasPhase || c.quantity.Name == "phase"
+		switch c.quantity.Name {
+		case "phase", "echophase":
+			hasPhase = true
+		case "mx", "my":
+			hasXY = true
+		}
 	}
 	if hasPhase {
 		t.Columns = append(t.Columns, display.Column{Name: "phase slope", Unit: "deg/" + unitLabel(a.unit)}, display.Column{Name: "phase off linear", Unit: "deg"})
@@ -948,27 +1002,29 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 				p = d.Pulse
 			}
 		}
-		if c.quantity.Name == "phase" {
-			var mag []float64
-			for _, m := range curves {
-				if m.pulse == c.pulse && m.quantity.Name == "mxy" {
-					mag = m.values
-				}
+		if c.quantity.Name == "phase" || c.quantity.Name == "echophase" {
+			slope, dev, x0, x1 := phaseFeatures(x, c.values, c.mag)
+			// A phase constant to rounding (a time-symmetric pulse's echo) reads 0,
+			// not 1e-13.
+			if math.Abs(slope*(x1-x0)) < 1e-9 {
+				slope = 0
 			}
-			px, py, pm := finitePoints(x, c.values, mag)
-			slope, dev, x0, x1 := phaseFeatures(px, py, pm)
+			if dev < 1e-9 {
+				dev = 0
+			}
 			row := []string{c.pulse, c.quantity.Name, "—", "—", "—", "—", "—", "—", fmtCellOpt(slope), fmtCellOpt(dev)}
 			t.Rows = append(t.Rows, row)
 			if !math.IsNaN(slope) {
-				band := "the whole axis (show mxy as well to fit over the band only)"
-				if mag != nil {
-					band = "the band where mxy is at least half its maximum"
+				band := "the band where mxy is at least half its maximum"
+				if c.quantity.Name == "echophase" {
+					band = "the band where echo is at least half its maximum"
 				}
-				notes = append(notes, fmt.Sprintf("%s phase: unwrapped, fitted by a line over %s, %s to %s %s; \"off linear\" is the largest deviation from that line.", c.pulse, band, formatNumber(roundSig(x0, 5)), formatNumber(roundSig(x1, 5)), unitLabel(a.unit)))
+				notes = append(notes, fmt.Sprintf("%s %s: unwrapped, fitted by a line over %s, %s to %s %s; \"off linear\" is the largest deviation from that line.", c.pulse, c.quantity.Name, band, formatNumber(roundSig(x0, 5)), formatNumber(roundSig(x1, 5)), unitLabel(a.unit)))
 			}
 			continue
 		}
 		base, target := curveLevels(c.quantity.Name, a.kind, start, p)
+		hasLevels = hasLevels || !math.IsNaN(base)
 		fx, fy, _ := finitePoints(x, c.values, nil)
 		f := curveFeatures(fx, fy, base, target)
 		row := []string{c.pulse, c.quantity.Name,
@@ -979,7 +1035,17 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		}
 		t.Rows = append(t.Rows, row)
 	}
-	t.Notes = append([]string{"half level: midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's, e.g. mz = cos flip or −1 for inversion; otherwise the curve's extreme, so half maximum for mxy and echo); width at half: distance between the crossings around the band, \"—\" when the curve does not pass the half level and come back on both sides inside the window; ripples are peak-to-peak inside the central half of that band and the largest excursion from the baseline outside it."}, notes...)
+	var head []string
+	if hasLevels {
+		head = append(head, halfLevelNote)
+	}
+	if hasXY {
+		head = append(head, "mx and my: extremes only; they oscillate across an offset axis as the phase runs, so a half level, width or ripple of theirs says nothing (show phase for the slope of that phase).")
+	}
+	if hasPhase {
+		head = append(head, "phase and echophase: no extremes (a phase's range depends on where it is unwrapped); a line is fitted to the unwrapped phase over the band where its magnitude (mxy or echo) is at least half its maximum.")
+	}
+	t.Notes = append(head, notes...)
 	t.Notes = append(t.Notes, energyNote(curves)...)
 	return t
 }
@@ -1003,6 +1069,11 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 	}
 	return fx, fy, fa
 }
+
+// halfLevelNote explains the half level, the width and the ripples of a sweep's
+// feature table, naming the regions the ripples cover; describe's ripple
+// (shape.Measure) uses other regions, and the note says so.
+const halfLevelNote = "half level: midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's, e.g. mz = cos flip or −1 for inversion; otherwise the curve's extreme, so half maximum for mxy and echo); width at half: distance between the crossings around the band, \"—\" when the curve does not pass the half level and come back on both sides inside the window. pass ripple: peak to peak, in the quantity's units, over the central 50 % of the band between the half-level crossings; stop ripple: the largest distance from the far-from-band level beyond the crossings widened by a quarter of the band width on each side. (describe's ripple uses other regions: inside and beyond the half-maximum band edges moved by one 90 %–10 % transition width, relative to the centre value.)"
 
 func energyNote(curves []*curveData) []string {
 	for _, c := range curves {
@@ -1050,7 +1121,7 @@ func roundSig(v float64, sig int) float64 {
 
 // colourRange is the fixed colour scale of a magnetization map, so that maps of
 // different pulses or settings compare at a glance: −1…1 for the components,
-// 0…1 for the magnitudes |Mxy| and |β|², −180…180 deg for the phase. Pulse
+// 0…1 for the magnitudes |Mxy| and |β|², −180…180 deg for the phases. Pulse
 // properties get (0, 0): the data's own range.
 func colourRange(q string) (lo, hi float64) {
 	switch q {
@@ -1058,7 +1129,7 @@ func colourRange(q string) (lo, hi float64) {
 		return -1, 1
 	case "mxy", "echo":
 		return 0, 1
-	case "phase":
+	case "phase", "echophase":
 		return -180, 180
 	}
 	return 0, 0

@@ -28,6 +28,13 @@ func Rotate(alpha, beta complex128, m [3]float64) (mx, my, mz float64) {
 // pulse: −β². Its magnitude is |β|² (Pauly et al., IEEE TMI 10:53, 1991).
 func Echo(beta complex128) complex128 { return -beta * beta }
 
+// EchoPhase is the phase of the crushed spin echo, arg(−β²) in radians in
+// (−π, π]: the phase the refocused Mxy takes for Mxy = 1 (along +x) before the
+// pulse. A hard pulse of phase φ gives 2φ at every offset (the Rabi closed form in
+// Cayley–Klein terms); a phase that runs linearly across offset shifts the echo in
+// time, curvature dephases it. It is meaningless where |β|² is at rounding level.
+func EchoPhase(beta complex128) float64 { return cmplx.Phase(Echo(beta)) }
+
 // EchoOf is the crushed spin echo for a given transverse magnetization before the
 // pulse: Mxy⁺ = −β²·Mxy* (Pauly et al. 1991).
 func EchoOf(beta, mxy complex128) complex128 { return -beta * beta * cmplx.Conj(mxy) }
