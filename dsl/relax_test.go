@@ -4,6 +4,8 @@ import (
 	"context"
 	"encoding/json"
 	"math"
+	"strconv"
+	"strings"
 	"testing"
 
 	"Nutate/display"
@@ -148,6 +150,59 @@ func TestRelaxMask(t *testing.T) {
 	for i, t1 := range px.Values {
 		if left, want := curves[0].Y[i] == nil, 20 > 2*t1*(1+1e-9); left != want {
 			t.Errorf("t1 %g ms with t2 = 20 ms: left out %v, want %v", t1, left, want)
+		}
+	}
+}
+
+// With t1 and no t2, T2 is taken as 2·t1 (the longest T2 consistent with T1,
+// see TestRelaxLimitKeepsM): a sweep over t1 alone gives the same numbers as
+// the same pulse run point by point with t2 = 2·t1 written out, keeps |M| ≤ 1
+// from a transverse start, and says so in a note.
+func TestT2DefaultsToTwiceT1(t *testing.T) {
+	run := func(src string) (map[string]json.RawMessage, string) {
+		t.Helper()
+		var last display.Bundle
+		if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { last = b }}); err != nil {
+			t.Fatalf("%s: %v", src, err)
+		}
+		raw, _ := json.Marshal(last["application/json"])
+		var out map[string]json.RawMessage
+		if err := json.Unmarshal(raw, &out); err != nil {
+			t.Fatal(err)
+		}
+		text, _ := last["text/plain"].(string)
+		return out, text
+	}
+	const pulse = "pulse p = rect(duration = 20 ms, flip = 30 deg)\n"
+	values := func(out map[string]json.RawMessage) []float64 {
+		var curves []struct{ Y []float64 }
+		if err := json.Unmarshal(out["curves"], &curves); err != nil || len(curves) != 1 {
+			t.Fatalf("curves: %v (%d)", err, len(curves))
+		}
+		return curves[0].Y
+	}
+	var mags []float64
+	qs := []string{"mx", "my", "mz"}
+	for _, q := range qs {
+		out, text := run(pulse + "sweep p over t1 5 ms to 45 ms step 20 ms show " + q + " with start = x")
+		if !strings.Contains(text, "t2 not given: taken as 2·t1") {
+			t.Errorf("%s: no note on t2:\n%s", q, text)
+		}
+		got := values(out)
+		for i, t1 := range []float64{5, 25, 45} {
+			ref, _ := run(pulse + "sweep p over offset 0 Hz to 0 Hz points 1 show " + q + " with start = x, t1 = " + strconv.FormatFloat(t1, 'g', -1, 64) + " ms, t2 = " + strconv.FormatFloat(2*t1, 'g', -1, 64) + " ms")
+			if w := values(ref)[0]; math.Abs(got[i]-w) > 1e-12 {
+				t.Errorf("%s at t1 = %g ms: %.15g, want %.15g as with t2 = 2·t1", q, t1, got[i], w)
+			}
+			if len(mags) <= i {
+				mags = append(mags, 0)
+			}
+			mags[i] += got[i] * got[i]
+		}
+	}
+	for i, m2 := range mags {
+		if m := math.Sqrt(m2); m > 1+1e-12 {
+			t.Errorf("point %d: |M| = %.15g, want ≤ 1", i, m)
 		}
 	}
 }

@@ -18,7 +18,7 @@ var settingTable = []settingSpec{
 	{"offset", "frequency offset of the spins from the carrier (Hz, or ppm once `field` is set); default 0"},
 	{"b1", "B1 scale: a factor (0.9), a percent (90%), or an absolute peak (T units or Hz); default 1"},
 	{"t1", "longitudinal relaxation time during the pulse; default none"},
-	{"t2", "transverse relaxation time during the pulse; default none; at most 2·t1 (T2 ≤ 2·T1)"},
+	{"t2", "transverse relaxation time during the pulse; at most 2·t1 (T2 ≤ 2·T1); default none, or 2·t1 when t1 is given"},
 	{"start", "initial magnetization: z (default), -z, x, y"},
 	{"tr", "repetition time, for the time-averaged B1 (b1rms)"},
 	{"dwell", "sample length of an imported waveform (import only)"},

@@ -28,7 +28,7 @@ var spinAxes = []struct{ Name, Help string }{
 	{"offset", "frequency offset from the pulse carrier (Hz units, or ppm once `field` is set; ppm axes run high to low)"},
 	{"b1", "B1 scale: a factor (0.5 to 1.5), a percent (50% to 150%), or an absolute peak (0 uT to 25 uT, or Hz)"},
 	{"position", "position along the slice gradient (length units; the pulse needs a gradient or thickness)"},
-	{"t1", "longitudinal relaxation time during the pulse; over a decade: log scale, `points` spaced geometrically (`step` stays even)"},
+	{"t1", "longitudinal relaxation time during the pulse; over a decade: log scale, `points` spaced geometrically (`step` stays even); without t2, T2 = 2·t1"},
 	{"t2", "transverse relaxation time during the pulse; scale as t1; points with t2 > 2·t1 are left out (T2 ≤ 2·T1)"},
 }
 
@@ -415,6 +415,9 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		leftCells = left * n0 * n1 / len(skip) // every build leaves out the same spins
 	}
 	notes := axisNotes(axes, leftCells, n0*n1)
+	if t2FromT1(axes, set) {
+		notes = append(notes, t2FromT1Note)
+	}
 	if len(axes) == 2 {
 		for _, c := range curves {
 			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote, notes, leftCells), set))
@@ -889,8 +892,25 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 			iso.T2 = arr
 		}
 	}
+	if iso.T1 != nil && iso.T2 == nil {
+		// t1 without t2: T2 = 2·T1, the longest a relaxing ensemble can have
+		// (see relaxMask); no transverse decay at all would let |M| exceed M0.
+		iso.T2 = make([]float64, n)
+		for k, t1 := range iso.T1 {
+			iso.T2[k] = 2 * t1
+		}
+	}
 	return iso, nil
 }
+
+// t2FromT1 tells whether a sweep relaxes with t1 but was given no t2 (as a
+// setting or an axis), so that T2 is taken as 2·T1 (see isochromats).
+func t2FromT1(axes []*sweepAxis, set *settings) bool {
+	return (set.t1 > 0 || axisNamed(axes, "t1")) && !(set.t2 > 0 || axisNamed(axes, "t2"))
+}
+
+// t2FromT1Note says so in the sweep's notes.
+const t2FromT1Note = "t2 not given: taken as 2·t1 at every point, the longest T2 consistent with T1 (T2 ≤ 2·T1; with no transverse decay at all |M| would exceed M0); give t2 for a real sample's value."
 
 // profileOutput draws the curves of a one-axis sweep with its summary.
 func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64, notes []string) display.Bundle {
