@@ -136,7 +136,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	if imported(p) {
 		// The file's samples carry no design flip; γ|∫B1 dt| is only the
 		// area at the carrier (the rotation is the simulated one below).
-		rows = append(rows, []string{"area at the carrier (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
+		rows = append(rows, []string{importedArea(p) + " (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
 	} else if !math.IsNaN(p.Flip) {
 		rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
 	}
@@ -193,6 +193,19 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 }
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
+
+// importedArea names where an imported pulse's area γ|∫B1 dt| is taken: at the
+// carrier, at the file's constant frequency offset (its centre), or in the frame
+// that follows its frequency modulation (shape.FromSamples).
+func importedArea(p *shape.Pulse) string {
+	switch {
+	case p.Freq != nil:
+		return "area following its frequency"
+	case p.Center != 0:
+		return "area at its centre " + Quantity{p.Center, dimFrequency}.String()
+	}
+	return "area at the carrier"
+}
 
 // imported reports whether p was read from a file (shape.FromSamples).
 func imported(p *shape.Pulse) bool { return p.Shape == "import" }

@@ -19,7 +19,8 @@ type MeasureOptions struct {
 	// stays within 800 000.
 	Points int
 	// Span (Hz) is the half-width of the simulated profile about the pulse's
-	// centre; 0: twice the design bandwidth, at least half the sweep and 4/T. It
+	// centre; 0: twice the design bandwidth or twice the sweep (an imported swept
+	// pulse has a sweep but no design bandwidth), at least 4/T. It
 	// widens (by 4× steps, up to 64×) until the profile falls below half of its
 	// on-band value on both sides.
 	Span float64
@@ -165,7 +166,7 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	}
 	span := opt.Span
 	if span == 0 {
-		span = math.Max(math.Max(2*p.Bandwidth, p.Sweep/2), 4/T)
+		span = math.Max(2*math.Max(p.Bandwidth, p.Sweep), 4/T)
 	}
 	if !(span > 0) || math.IsInf(span, 0) {
 		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
