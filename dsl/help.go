@@ -135,6 +135,9 @@ func Help(topic string) (string, error) {
 			fmt.Fprintf(&b, "  %-15s %s\n", d, strings.Join(byDim[d], " "))
 		}
 		b.WriteString("  Quantities combine with + - * / and parentheses; dimensions are checked.\n")
+		b.WriteString("  A shift in ppm meeting a frequency or a time is its offset γ̄·B0·δ in Hz (signed like γ;\n")
+		b.WriteString("  needs `field`): `3.5 ppm / bw` is a ratio, `3.5 ppm + 100 Hz` a frequency. ppm alone,\n")
+		b.WriteString("  ppm ± ppm, ppm × number and ppm / ppm stay in ppm (or plain numbers).\n")
 		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.")
 		return b.String(), nil
 	case "nuclei":
