@@ -13,10 +13,43 @@ import (
 // energyCaution goes wherever energy or B1rms is shown.
 const energyCaution = "Energy and B1rms are relative, waveform-only estimates, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer."
 
-// measure runs shape.Measure for a pulse with the session's field and the tr given.
-func (ev *evaluator) measure(d *pulseDef, tr float64) (shape.Properties, error) {
-	pr, err := shape.Measure(ev.ctx, d.Pulse, shape.MeasureOptions{TR: tr, Field: ev.st.field})
+// measure runs shape.Measure for a pulse with the session's field and the tr
+// given, telling prog (when not nil) of its progress.
+func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Properties, error) {
+	opt := shape.MeasureOptions{TR: tr, Field: ev.st.field}
+	if prog != nil {
+		// The cost is an estimate: stop short of the pulse's share until it is
+		// done (prog adds the shares of the pulses before).
+		most := 0.99 * shape.MeasureCost(d.Pulse)
+		opt.Progress = func(steps float64) { prog.report(math.Min(steps, most)) }
+	}
+	pr, err := shape.Measure(ev.ctx, d.Pulse, opt)
+	if prog != nil && err == nil {
+		prog.mu.Lock()
+		prog.base += shape.MeasureCost(d.Pulse)
+		prog.mu.Unlock()
+	}
 	return pr, withoutPrefix(err, "measure: ")
+}
+
+// measureProgress starts a progress display for measuring the pulses of defs
+// when the work is long (over progressSteps isochromat-steps, as for sweeps; a
+// sinc of about 40 000 samples and up), nil otherwise. done ends it at 100 %.
+func (ev *evaluator) measureProgress(task string, defs []*pulseDef) (prog *progress, done func()) {
+	total := 0.0
+	for _, d := range defs {
+		total += shape.MeasureCost(d.Pulse)
+	}
+	if total <= progressSteps || ev.sink.Progress == nil {
+		return nil, func() {}
+	}
+	prog = &progress{sink: ev.sink.Progress, task: task, total: total, last: -1}
+	prog.report(0)
+	return prog, func() {
+		if prog.last < 100 {
+			prog.sink(prog.task, 100, 100)
+		}
+	}
 }
 
 // withoutPrefix drops a package's prefix from an error shown to the user, keeping
@@ -63,6 +96,8 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 	if err != nil {
 		return err
 	}
+	prog, done := ev.measureProgress("describe "+joinNames(s.Names), defs)
+	defer done()
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {
 			return err
@@ -70,7 +105,7 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 		if err := set.checkTR(d.Name, d.Pulse); err != nil {
 			return err
 		}
-		pr, err := ev.measure(d, set.tr)
+		pr, err := ev.measure(d, set.tr, prog)
 		if err != nil {
 			return err
 		}
@@ -80,9 +115,43 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 		} else if w != "" {
 			t.Notes = append([]string{"warning: " + w}, t.Notes...)
 		}
-		ev.emit(waveformBundle(waveformOf(d), t))
+		b, err := ev.buildBundle(func() display.Bundle { return waveformBundle(waveformOf(d), t) })
+		if err != nil {
+			return err
+		}
+		ev.emit(b)
 	}
 	return nil
+}
+
+// buildBundle makes a display bundle on a goroutine of its own, so that an interrupt
+// need not wait for the plot of a long waveform (about a second for 10⁶ samples):
+// the evaluator returns ctx.Err() at once and the abandoned build, which touches
+// no session state, finishes in the background and is dropped. A panic in f is
+// raised again on the evaluator's goroutine, where the session recovers it.
+func (ev *evaluator) buildBundle(f func() display.Bundle) (display.Bundle, error) {
+	type result struct {
+		b     display.Bundle
+		panic any
+	}
+	ch := make(chan result, 1)
+	go func() {
+		var r result
+		defer func() {
+			r.panic = recover()
+			ch <- r
+		}()
+		r.b = f()
+	}()
+	select {
+	case r := <-ch:
+		if r.panic != nil {
+			panic(r.panic)
+		}
+		return r.b, nil
+	case <-ev.ctx.Done():
+		return nil, ev.ctx.Err()
+	}
 }
 
 // thresholdWarning warns when an adiabatic pulse's peak is below its measured
