@@ -204,7 +204,15 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	}
 	if imported(p) {
 		// The file's samples carry no design flip; γ|∫B1 dt| is only the
-		// area at the carrier (the rotation is the simulated one below).
+		// area where the file says the pulse plays (the rotation is the
+		// simulated one below).
+		if p.Center != 0 {
+			from := "centre (the file's frequency offset)"
+			if p.Freq != nil {
+				from = "centre (middle of the file's frequency sweep)"
+			}
+			rows = append(rows, []string{from, Quantity{p.Center, dimFrequency}.String()})
+		}
 		rows = append(rows, []string{importedArea(p) + " (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
 	} else if !math.IsNaN(p.Flip) {
 		rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
@@ -271,7 +279,7 @@ func importedArea(p *shape.Pulse) string {
 	case p.Freq != nil:
 		return "area following its frequency"
 	case p.Center != 0:
-		return "area at its centre " + Quantity{p.Center, dimFrequency}.String()
+		return "area at its centre"
 	}
 	return "area at the carrier"
 }
