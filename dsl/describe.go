@@ -17,6 +17,13 @@ const energyCaution = "Energy and B1rms are relative, waveform-only estimates, n
 // given, telling prog (when not nil) of its progress.
 func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Properties, error) {
 	opt := shape.MeasureOptions{TR: tr, Field: ev.st.field}
+	if p := d.Pulse; imported(p) && p.Sweep > 0 {
+		// A file's sweep has no design bandwidth beside it; the designed
+		// swept shapes (hsec, chirp, wurst) have bandwidth = sweep, and their
+		// profile is looked at over twice it: do the same, so that an export
+		// read back is measured on the original's span.
+		opt.Span = math.Max(2*p.Sweep, 4/p.Duration())
+	}
 	if prog != nil {
 		// The cost is an estimate: stop short of the pulse's share until it is
 		// done (prog adds the shares of the pulses before).

@@ -4,8 +4,6 @@ import (
 	"context"
 	"math"
 	"testing"
-
-	"Nutate/physics/shape"
 )
 
 // An export read back by import keeps the pulse's meaning: the carrier offset
@@ -31,19 +29,21 @@ func TestExportImportRoundTrip(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			s := NewSession(t.TempDir())
 			execText(t, s, "field 3 T\npulse p = "+tc.pulse+"\nexport p to \"p.csv\"\nimport q from \"p.csv\"")
-			p, q := s.state().names["p"].pulse.Pulse, s.state().names["q"].pulse.Pulse
+			pd, qd := s.state().names["p"].pulse, s.state().names["q"].pulse
+			p, q := pd.Pulse, qd.Pulse
 			if math.Abs(q.Center-tc.center) > 1e-9*math.Max(1, math.Abs(tc.center)) {
 				t.Errorf("imported centre = %.9g Hz, want %.9g Hz", q.Center, tc.center)
 			}
 			if q.Role != p.Role || q.Gradient != p.Gradient {
 				t.Errorf("imported role, gradient = %v, %g T/m, want %v, %g T/m", q.Role, q.Gradient, p.Role, p.Gradient)
 			}
-			ctx := context.Background()
-			a, err := shape.Measure(ctx, p, shape.MeasureOptions{Field: 3})
+			// describe's own measurement (ev.measure), at the session's field.
+			ev := &evaluator{ctx: context.Background(), sess: s, st: s.state()}
+			a, err := ev.measure(pd, 0, nil)
 			if err != nil {
 				t.Fatal(err)
 			}
-			b, err := shape.Measure(ctx, q, shape.MeasureOptions{Field: 3})
+			b, err := ev.measure(qd, 0, nil)
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -19,8 +19,7 @@ type MeasureOptions struct {
 	// stays within 800 000.
 	Points int
 	// Span (Hz) is the half-width of the simulated profile about the pulse's
-	// centre; 0: twice the design bandwidth or twice the sweep (an imported swept
-	// pulse has a sweep but no design bandwidth), at least 4/T. It
+	// centre; 0: twice the design bandwidth, at least half the sweep and 4/T. It
 	// widens (by 4× steps, up to 64×) until the profile falls below half of its
 	// on-band value on both sides.
 	Span float64
@@ -31,9 +30,9 @@ type MeasureOptions struct {
 	Offset float64
 	// Progress, when non-nil, is told of the work done so far, in
 	// isochromat-steps (isochromats × samples), during and after each
-	// simulation. It may be called from several goroutines at once (never with
-	// a smaller value from the same simulation). How many steps a measurement
-	// takes depends on the profile found; MeasureCost estimates it.
+	// simulation. It may be called from several goroutines at once, so a
+	// call may bring a value smaller than one already seen. How many steps a
+	// measurement takes depends on the profile found; MeasureCost estimates it.
 	Progress func(steps float64)
 }
 
@@ -188,7 +187,7 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	}
 	span := opt.Span
 	if span == 0 {
-		span = math.Max(2*math.Max(p.Bandwidth, p.Sweep), 4/T)
+		span = math.Max(math.Max(2*p.Bandwidth, p.Sweep/2), 4/T)
 	}
 	if !(span > 0) || math.IsInf(span, 0) {
 		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
