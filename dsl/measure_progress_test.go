@@ -91,3 +91,35 @@ func TestCancelMeasure(t *testing.T) {
 		})
 	}
 }
+
+// buildBundle returns at an interrupt without waiting for the bundle (the plot
+// of a long waveform), and a panic while building is raised on the caller's
+// goroutine, where the session's recover sees it.
+func TestBuildBundleInterrupt(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	ev := &evaluator{ctx: ctx}
+	release := make(chan struct{})
+	defer close(release)
+	started := make(chan struct{})
+	go func() {
+		<-started
+		cancel()
+	}()
+	_, err := ev.buildBundle(func() display.Bundle {
+		close(started)
+		<-release // a build that would never end before the interrupt
+		return nil
+	})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("error %v, want context.Canceled", err)
+	}
+
+	ev = &evaluator{ctx: context.Background()}
+	defer func() {
+		if r := recover(); r != "bundle fault" {
+			t.Errorf("recovered %v, want the build's panic", r)
+		}
+	}()
+	ev.buildBundle(func() display.Bundle { panic("bundle fault") })
+	t.Errorf("buildBundle returned after its build panicked")
+}
