@@ -13,10 +13,50 @@ import (
 // energyCaution goes wherever energy or B1rms is shown.
 const energyCaution = "Energy and B1rms are relative, waveform-only estimates, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer."
 
-// measure runs shape.Measure for a pulse with the session's field and the tr given.
-func (ev *evaluator) measure(d *pulseDef, tr float64) (shape.Properties, error) {
-	pr, err := shape.Measure(ev.ctx, d.Pulse, shape.MeasureOptions{TR: tr, Field: ev.st.field})
+// measure runs shape.Measure for a pulse with the session's field and the tr
+// given, telling prog (when not nil) of its progress.
+func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Properties, error) {
+	opt := shape.MeasureOptions{TR: tr, Field: ev.st.field}
+	if p := d.Pulse; imported(p) && p.Sweep > 0 {
+		// A file's sweep has no design bandwidth beside it; the designed
+		// swept shapes (hsec, chirp, wurst) have bandwidth = sweep, and their
+		// profile is looked at over twice it: do the same, so that an export
+		// read back is measured on the original's span.
+		opt.Span = math.Max(2*p.Sweep, 4/p.Duration())
+	}
+	if prog != nil {
+		// The cost is an estimate: stop short of the pulse's share until it is
+		// done (prog adds the shares of the pulses before).
+		most := 0.99 * shape.MeasureCost(d.Pulse)
+		opt.Progress = func(steps float64) { prog.report(math.Min(steps, most)) }
+	}
+	pr, err := shape.Measure(ev.ctx, d.Pulse, opt)
+	if prog != nil && err == nil {
+		prog.mu.Lock()
+		prog.base += shape.MeasureCost(d.Pulse)
+		prog.mu.Unlock()
+	}
 	return pr, withoutPrefix(err, "measure: ")
+}
+
+// measureProgress starts a progress display for measuring the pulses of defs
+// when the work is long (over progressSteps isochromat-steps, as for sweeps; a
+// sinc of about 40 000 samples and up), nil otherwise. done ends it at 100 %.
+func (ev *evaluator) measureProgress(task string, defs []*pulseDef) (prog *progress, done func()) {
+	total := 0.0
+	for _, d := range defs {
+		total += shape.MeasureCost(d.Pulse)
+	}
+	if total <= progressSteps || ev.sink.Progress == nil {
+		return nil, func() {}
+	}
+	prog = &progress{sink: ev.sink.Progress, task: task, total: total, last: -1}
+	prog.report(0)
+	return prog, func() {
+		if prog.last < 100 {
+			prog.sink(prog.task, 100, 100)
+		}
+	}
 }
 
 // withoutPrefix drops a package's prefix from an error shown to the user, keeping
@@ -63,6 +103,8 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 	if err != nil {
 		return err
 	}
+	prog, done := ev.measureProgress("describe "+joinNames(s.Names), defs)
+	defer done()
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {
 			return err
@@ -70,7 +112,7 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 		if err := set.checkTR(d.Name, d.Pulse); err != nil {
 			return err
 		}
-		pr, err := ev.measure(d, set.tr)
+		pr, err := ev.measure(d, set.tr, prog)
 		if err != nil {
 			return err
 		}
@@ -80,9 +122,43 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 		} else if w != "" {
 			t.Notes = append([]string{"warning: " + w}, t.Notes...)
 		}
-		ev.emit(waveformBundle(waveformOf(d), t))
+		b, err := ev.buildBundle(func() display.Bundle { return waveformBundle(waveformOf(d), t) })
+		if err != nil {
+			return err
+		}
+		ev.emit(b)
 	}
 	return nil
+}
+
+// buildBundle makes a display bundle on a goroutine of its own, so that an interrupt
+// need not wait for the plot of a long waveform (about a second for 10⁶ samples):
+// the evaluator returns ctx.Err() at once and the abandoned build, which touches
+// no session state, finishes in the background and is dropped. A panic in f is
+// raised again on the evaluator's goroutine, where the session recovers it.
+func (ev *evaluator) buildBundle(f func() display.Bundle) (display.Bundle, error) {
+	type result struct {
+		b     display.Bundle
+		panic any
+	}
+	ch := make(chan result, 1)
+	go func() {
+		var r result
+		defer func() {
+			r.panic = recover()
+			ch <- r
+		}()
+		r.b = f()
+	}()
+	select {
+	case r := <-ch:
+		if r.panic != nil {
+			panic(r.panic)
+		}
+		return r.b, nil
+	case <-ev.ctx.Done():
+		return nil, ev.ctx.Err()
+	}
 }
 
 // thresholdWarning warns when an adiabatic pulse's peak is below its measured
@@ -135,8 +211,16 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	}
 	if imported(p) {
 		// The file's samples carry no design flip; γ|∫B1 dt| is only the
-		// area at the carrier (the rotation is the simulated one below).
-		rows = append(rows, []string{"area at the carrier (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
+		// area where the file says the pulse plays (the rotation is the
+		// simulated one below).
+		if p.Center != 0 {
+			from := "centre (the file's frequency offset)"
+			if p.Freq != nil {
+				from = "centre (middle of the file's frequency sweep)"
+			}
+			rows = append(rows, []string{from, Quantity{p.Center, dimFrequency}.String()})
+		}
+		rows = append(rows, []string{importedArea(p) + " (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
 	} else if !math.IsNaN(p.Flip) {
 		rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
 	}
@@ -197,6 +281,19 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 const rippleNote = "ripple (pass / stop) of the role's profile (|Mxy| for excite or no role, (1 − Mz)/2 invert, echo |β|² refocus, 1 − |Mz| saturate), relative to its centre value: pass is the largest deviation within the FWHM band edges moved inward by one 90 %–10 % transition width, stop the largest value beyond the edges moved outward by one transition width. A sweep's feature table uses other regions (its note says which)."
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
+
+// importedArea names where an imported pulse's area γ|∫B1 dt| is taken: at the
+// carrier, at the file's constant frequency offset (its centre), or in the frame
+// that follows its frequency modulation (shape.FromSamples).
+func importedArea(p *shape.Pulse) string {
+	switch {
+	case p.Freq != nil:
+		return "area following its frequency"
+	case p.Center != 0:
+		return "area at its centre"
+	}
+	return "area at the carrier"
+}
 
 // imported reports whether p was read from a file (shape.FromSamples).
 func imported(p *shape.Pulse) bool { return p.Shape == "import" }

@@ -62,12 +62,19 @@ func (ev *evaluator) export(s *ExportStmt) error {
 	if uniform(p.Wave.Dwell) {
 		dwell = strconv.FormatFloat(p.Wave.Dwell[0], 'g', -1, 64) + " s"
 	}
-	fmt.Fprintf(&buf, "%s: pulse %s, nucleus %s, duration %s s, dwell %s, samples %d\n", exportMarker, d.Name, d.Nucleus.Name, strconv.FormatFloat(p.Duration(), 'g', -1, 64), dwell, n)
+	role := ""
+	if p.Role != shape.RoleNone {
+		role = ", role " + p.Role.String()
+	}
+	fmt.Fprintf(&buf, "%s: pulse %s, nucleus %s, duration %s s, dwell %s, samples %d%s\n", exportMarker, d.Name, d.Nucleus.Name, strconv.FormatFloat(p.Duration(), 'g', -1, 64), dwell, n, role)
 	buf.WriteString(strings.Join(exportColumns, ",") + "\n")
 	t := 0.0
 	g := func(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 	for j, b := range p.Wave.B1 {
-		f, gr := 0.0, 0.0
+		// The phase is B1's own, in the carrier frame (any offset's ramp
+		// included); the frequency column says where the pulse plays: its
+		// carrier offset, or its instantaneous frequency when swept.
+		f, gr := p.Center, 0.0
 		if p.Freq != nil {
 			f = p.Freq[j]
 		}
@@ -150,6 +157,7 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 		return errAt(set.given["dwell"], "%s has a time column, which sets the dwell; drop `with dwell` (it applies to files of amplitudes alone)", s.Path)
 	}
 	c := shape.NewCommon()
+	c.Role = exportRole(string(data))
 	if set.dwell > 0 {
 		smp.Dwell = set.dwell
 		smp.Times = nil
@@ -273,6 +281,24 @@ func readWaveformCSV(name, text string, gammaBar float64, amplitudesOnly bool) (
 		smp.Freq = nil
 	}
 	return smp, duration, nil
+}
+
+// exportRole reads the role an export's comment line states; none when the
+// file is not an export or states no role.
+func exportRole(text string) shape.Role {
+	for _, line := range strings.SplitN(text, "\n", 8) {
+		line = strings.TrimSpace(line)
+		if !strings.HasPrefix(line, exportMarker) {
+			continue
+		}
+		if i := strings.Index(line, ", role "); i >= 0 {
+			if f := strings.Fields(line[i+len(", role "):]); len(f) > 0 {
+				r, _ := shape.ParseRole(strings.TrimSuffix(f[0], ","))
+				return r
+			}
+		}
+	}
+	return shape.RoleNone
 }
 
 func allZero(v []float64) bool {

@@ -14,12 +14,12 @@ var statementHelp = []struct{ Name, Syntax, Help string }{
 	{"field", "field EXPR", "set the main field B0 (e.g. `field 7 T`); needed for ppm"},
 	{"let", "let NAME = EXPR", "name a quantity, e.g. `let te = 20 ms`; `nutate run --set NAME=VALUE` replaces the value"},
 	{"pulse", "pulse NAME = SHAPE(ARG = EXPR, ...)\npulse NAME = OTHER(ARG = EXPR, ...)", "define a pulse from a shape, or as a copy of pulse OTHER with some arguments changed (rebuilt for the current nucleus and field); a redefined pulse replaces the old one"},
-	{"describe", "describe NAME[, NAME...] [with tr = EXPR]", "plot each pulse's waveform (amplitude, phase, frequency, gradient) and list its properties: duration, samples, peak in µT and Hz, flip, bandwidth, TBW, transition, ripple, energy, slice"},
+	{"describe", "describe NAME[, NAME...] [with tr = EXPR]", "plot each pulse's waveform (amplitude, phase, frequency, gradient) and list its properties: duration, samples, peak in µT and Hz, flip, bandwidth, TBW, transition, ripple, energy, slice. The properties come from a simulated profile; for a long pulse (tens of thousands of samples and up) this takes a while and shows its progress, and an interrupt stops it"},
 	{"sweep", "sweep NAME[, NAME...] over AXIS[, AXIS] [show QUANTITY, ...] [with SETTING = EXPR, ...]\nAXIS: KIND FROM to TO (points N | step S)", "simulate the pulses over one axis (curves; several pulses overlay) or two (a map of one quantity, the first axis horizontal). Axes: offset, b1, position, t1, t2, or any argument of the pulse's shape (the pulse is rebuilt at each point and pulse properties can be shown). Without `show`, the quantities follow the first pulse's role. `export sweep to \"file.csv\"` saves the data"},
 	{"print", "print EXPR[, EXPR...]", "show values; `EXPR in UNIT` converts (`1 kHz in uT` through the nucleus, `12 ppm in Hz` through the nucleus and field)"},
-	{"export", "export NAME to \"file.csv\"\nexport sweep to \"file.csv\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration and dwell. `export sweep to \"file.csv\"` writes the last sweep's data (axes, then one column per curve). A file that is not an export is never overwritten"},
-	{"import", "import NAME from \"file.csv\" [with dwell = EXPR]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), a plain two-column time/amplitude file, or with `with dwell = EXPR` a plain one-column file of amplitudes (T), one sample a row; a file with a time column refuses dwell. Paths are relative to the notebook's folder"},
-	{"report", "report NAME[, NAME...] [as markdown | as latex]", "a methods-section table of the pulses: shape, duration, samples, peak in µT and Hz, flip, bandwidth, TBW, energy (with its caution), adiabatic threshold"},
+	{"export", "export NAME to \"file.csv\"\nexport sweep to \"file.csv\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration, dwell and role (if any). The phase is B1's own in the carrier frame (any offset's ramp included); the frequency offset is the pulse's centre, or its instantaneous frequency when swept (see `help files`). `export sweep to \"file.csv\"` writes the last sweep's data (axes, then one column per curve). A file that is not an export is never overwritten"},
+	{"import", "import NAME from \"file.csv\" [with dwell = EXPR]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), a plain two-column time/amplitude file, or with `with dwell = EXPR` a plain one-column file of amplitudes (T), one sample a row; a file with a time column refuses dwell. A constant frequency offset column is the pulse's centre, a varying one a frequency modulation (see `help files`). Paths are relative to the notebook's folder"},
+	{"report", "report NAME[, NAME...] [as markdown | as latex]", "a methods-section table of the pulses: shape, duration, samples, peak in µT and Hz, flip, bandwidth, TBW, energy (with its caution), adiabatic threshold. Like describe, it shows its progress for long pulses"},
 	{"help", "help [TOPIC]", "topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors, or any statement, shape, argument, quantity or unit name"},
 	{"reset", "reset", "forget every name; nucleus 1H, no field"},
 }
@@ -44,13 +44,29 @@ const conventionsHelp = `Conventions
   safety officer.`
 
 const filesHelp = `Files
-  export NAME to "file.csv" writes a comment line (nucleus, duration, dwell) and a
-  header row: time (s), amplitude (T), phase (rad), frequency offset (Hz),
-  gradient (T/m); one row per sample, time at the sample's start.
+  export NAME to "file.csv" writes a comment line (nucleus, duration, dwell, and the
+  role if any) and a header row: time (s), amplitude (T), phase (rad), frequency
+  offset (Hz), gradient (T/m); one row per sample, time at the sample's start.
+  The columns:
+    amplitude  |B1| of the sample;
+    phase      B1's phase in the carrier's frame, everything included: the
+               pulse's phase, the ramp of an off-centre pulse, a sweep's phase;
+    frequency  where the pulse plays, relative to the carrier: the centre of a
+    offset     fixed-frequency pulse (the same on every row), or the
+               instantaneous frequency of a swept one. It says what the phase
+               already holds; never add it to the phase a second time;
+    gradient   the slice-select gradient, 0 without one.
   import NAME from "file.csv" [with dwell = EXPR] reads the same columns (only time
   and amplitude required; units may be changed in the header, e.g. amplitude (uT)),
-  or a plain two-column time/amplitude file. With dwell it reads a plain column
-  of amplitudes (T), one sample a row; a file with a time column refuses dwell.
+  or a plain two-column time/amplitude file. A frequency offset that is the same on
+  every row is the pulse's centre (describe measures its band there; without a
+  phase column its ramp is applied); one that varies is a frequency modulation
+  (without a phase column it is integrated into the phase). A gradient that is the
+  same on every row is the pulse's gradient; an export's role is kept. So an
+  export read back is measured around the same centre as the original and gives the
+  same bandwidth, rotation and ripples (design figures such as the TBW or an
+  adiabatic threshold are not carried). With dwell it reads a plain column of
+  amplitudes (T), one sample a row; a file with a time column refuses dwell.
   A malformed file is refused with the row and column of the fault. Paths are
   relative to the notebook's folder.`
 
@@ -122,6 +138,9 @@ func Help(topic string) (string, error) {
 			fmt.Fprintf(&b, "  %-15s %s\n", d, strings.Join(byDim[d], " "))
 		}
 		b.WriteString("  Quantities combine with + - * / and parentheses; dimensions are checked.\n")
+		b.WriteString("  A shift in ppm meeting a frequency or a time is its offset γ̄·B0·δ in Hz (signed like γ;\n")
+		b.WriteString("  needs `field`): `3.5 ppm / bw` is a ratio, `3.5 ppm + 100 Hz` a frequency. ppm alone,\n")
+		b.WriteString("  ppm ± ppm, ppm × number and ppm / ppm stay in ppm (or plain numbers).\n")
 		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.")
 		return b.String(), nil
 	case "nuclei":

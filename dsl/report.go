@@ -40,11 +40,13 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	var rows [][]string
 	var warnings []string
 	unmet := false
+	prog, done := ev.measureProgress("report "+joinNames(s.Names), defs)
+	defer done()
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {
 			return err
 		}
-		pr, err := ev.measure(d, 0)
+		pr, err := ev.measure(d, 0, prog)
 		if err != nil {
 			return err
 		}

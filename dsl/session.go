@@ -41,7 +41,8 @@ import (
 )
 
 // Sink receives a cell's outputs in order. Progress, when non-nil, is told of long
-// work (a sweep): a task label, the units done and the total.
+// work (a sweep; describe or report of a long pulse): a task label, the units done
+// and the total.
 type Sink struct {
 	Display  func(display.Bundle)
 	Progress func(task string, done, total int)

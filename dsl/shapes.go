@@ -743,7 +743,10 @@ func pulseSummary(d *pulseDef) string {
 		fmt.Sprintf("peak %s (%s)", Quantity{p.Peak(), dimField}.format("uT"), Quantity{p.Peak() * gb, dimFrequency}.format("Hz")),
 	}
 	if imported(p) {
-		parts = append(parts, "area at the carrier "+Quantity{p.Flip, dimAngle}.format("deg"))
+		if p.Center != 0 {
+			parts = append(parts, "centre "+Quantity{p.Center, dimFrequency}.String())
+		}
+		parts = append(parts, importedArea(p)+" "+Quantity{p.Flip, dimAngle}.format("deg"))
 	} else if !math.IsNaN(p.Flip) && !p.Adiabatic {
 		parts = append(parts, "flip "+Quantity{p.Flip, dimAngle}.format("deg"))
 	} else if a, ok := d.Args["flip"]; ok && d.Spec != nil {

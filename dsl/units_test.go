@@ -146,7 +146,7 @@ func TestB1rmsCheckValue(t *testing.T) {
 		t.Fatal(err)
 	}
 	ev := &evaluator{ctx: context.Background(), sess: s, st: s.st}
-	pr, err := ev.measure(s.st.names["h"].pulse, 10e-3)
+	pr, err := ev.measure(s.st.names["h"].pulse, 10e-3, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

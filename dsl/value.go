@@ -72,6 +72,9 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 		if err != nil {
 			return b, err
 		}
+		if a, b, err = ev.shiftsToOffsets(x, a, b); err != nil {
+			return Value{}, err
+		}
 		switch x.Op {
 		case tPlus, tMinus:
 			if a.Q.D != b.Q.D {
@@ -123,6 +126,35 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 		return Value{}, errAt(x.Fun.P, "%s(...) is a pulse shape, not a quantity; define it with `pulse NAME = %s(...)`", x.Fun.Name, x.Fun.Name)
 	}
 	return Value{}, errAt(e.Position(), "expected a value")
+}
+
+// shiftsToOffsets turns a chemical shift that meets a frequency or a time in x
+// into its frequency offset (Δf = γ̄·B0·δ, signed like γ; see convert), so that
+// `3.5 ppm / bw` is a plain ratio, `3.5 ppm + 100 Hz` a frequency and
+// `3.5 ppm * 2 ms` the cycles of phase the shift gathers. A shift alone, with
+// another shift, with a plain number or with any other dimension (`0.3 mm / ppm`,
+// a displacement per ppm) stays in ppm. Without the main field there is no
+// offset: that is an error naming the field.
+func (ev *evaluator) shiftsToOffsets(x *Binary, a, b Value) (Value, Value, error) {
+	meets := func(shift, other Value) bool {
+		return shift.Q.D == dimPPM && (other.Q.D == dimFrequency || other.Q.D == dimTime)
+	}
+	aPPM, bPPM := meets(a, b), meets(b, a)
+	if !aPPM && !bPPM {
+		return a, b, nil
+	}
+	if ev.st.field == 0 {
+		what := map[tokKind]string{tPlus: "add %s and %s", tMinus: "subtract %s and %s", tStar: "multiply %s by %s", tSlash: "divide %s by %s"}[x.Op]
+		return a, b, errAt(x.P, "cannot "+what+" without the main field: a shift in ppm becomes an offset in Hz only once the field is set, e.g. `field 3 T`", describeValue(a), describeValue(b))
+	}
+	to := func(v Value) Value {
+		q, _ := convert(v.Q, dimFrequency, ev.st.nucleus.GammaBar, ev.st.field, ev.st.nucleus.Name)
+		return Value{Q: q, Unit: "Hz"}
+	}
+	if aPPM {
+		return to(a), b, nil
+	}
+	return a, to(b), nil
 }
 
 // productUnit keeps the unit hint when one side is a plain number.

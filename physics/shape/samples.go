@@ -19,12 +19,18 @@ type Samples struct {
 	Amplitude []float64
 	// Phase (rad) per sample, optional.
 	Phase []float64
-	// Freq is the instantaneous RF frequency (Hz) per sample, optional. With Phase
-	// it is only recorded (the phase already carries it); without Phase it is
-	// integrated into the phase, referenced to zero at the middle of the pulse.
+	// Freq is the instantaneous RF frequency (Hz) per sample, relative to the
+	// carrier, optional. With Phase it is only recorded (the phase already
+	// carries it); without Phase it is integrated into the phase, referenced to
+	// zero at the middle of the pulse. The same value at every sample is the
+	// carrier offset of a fixed-frequency pulse: it becomes Pulse.Center and
+	// Pulse.Freq stays nil. A Freq that varies is a frequency modulation:
+	// Pulse.Freq records it, Pulse.Sweep is its range (widened by half a sample
+	// at each end, as the values are at sample midpoints) and Pulse.Center the
+	// middle of that range.
 	Freq []float64
 	// Gradient (T/m) per sample, optional; Common.Gradient and Thickness then
-	// must not be given.
+	// must not be given. The same value at every sample is also Pulse.Gradient.
 	Gradient []float64
 }
 
@@ -174,15 +180,25 @@ func FromSamples(s Samples, c Common, gamma float64) (*Pulse, error) {
 		Flip: math.Abs(gamma) * scale * cabs(area)}
 	p.Wave.Dwell = dwell
 	p.Wave.B1 = b1
-	if s.Freq != nil {
+	lo, hi := span(s.Freq)
+	if s.Freq != nil && lo != hi {
 		p.Freq = append([]float64(nil), s.Freq...)
+		// The values are at sample midpoints: a sweep over the whole pulse
+		// reaches half a sample further at each end (exact for a linear one).
+		p.Sweep = (hi - lo) * float64(n) / float64(n-1)
 	}
 	p.applyPhase(c.Phase, c.Center)
+	// The data's own frequency (constant, or the middle of its sweep) moves the
+	// centre on top of Common.Center (applyPhase has already moved Freq).
+	p.Center = c.Center + (lo+hi)/2
 	if s.Gradient != nil {
 		if c.Gradient != 0 || c.Thickness != 0 {
 			return nil, fmt.Errorf("%s: the data carry a gradient; do not give gradient or thickness", name)
 		}
 		p.Wave.Gradient = append([]float64(nil), s.Gradient...)
+		if glo, ghi := span(s.Gradient); glo == ghi {
+			p.Gradient = glo
+		}
 		return p, nil
 	}
 	return p, p.setSlice(c)
@@ -203,4 +219,17 @@ func integrateSampledPhase(f, dwell []float64) []float64 {
 		ph[j] -= ref
 	}
 	return ph
+}
+
+// span gives the smallest and largest of v; 0, 0 for none.
+func span(v []float64) (lo, hi float64) {
+	for j, x := range v {
+		if j == 0 || x < lo {
+			lo = x
+		}
+		if j == 0 || x > hi {
+			hi = x
+		}
+	}
+	return lo, hi
 }

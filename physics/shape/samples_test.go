@@ -40,6 +40,10 @@ func TestFromSamplesRoundTrip(t *testing.T) {
 				}
 			}
 			near(t, "Freq[0]", p.Freq[0], src.Freq[0], 0)
+			// A linear sweep sampled at midpoints spans (n−1)/n of its range;
+			// the import widens it back by half a sample at each end.
+			near(t, "Sweep (Hz)", p.Sweep, src.Sweep, 1e-6)
+			near(t, "Center (Hz)", p.Center, src.Center, 1e-6)
 		})
 	}
 	// Without the phase, the frequency is integrated: the same sweep up to the
@@ -77,7 +81,12 @@ func TestFromSamplesFrequencyAndFlip(t *testing.T) {
 	r := simulate(t, p, []float64{f0}, nil)
 	hold := math.Sin(math.Pi*f0*dt) / (math.Pi * f0 * dt)
 	near(t, "rotation at f0 (deg)", 2*math.Asin(cmplx.Abs(r.Beta[0]))/deg, 20*hold, 1e-4)
-	pr, err := Measure(context.Background(), p, MeasureOptions{Offset: f0})
+	// A constant frequency is the pulse's centre, so Measure looks there.
+	near(t, "Pulse.Center (Hz)", p.Center, f0, 0)
+	if p.Freq != nil || p.Sweep != 0 {
+		t.Errorf("constant frequency kept as a modulation: Freq %d values, Sweep %g Hz; want none", len(p.Freq), p.Sweep)
+	}
+	pr, err := Measure(context.Background(), p, MeasureOptions{})
 	mustOK(t, err)
 	near(t, "band middle (Hz)", (pr.Edges[0]+pr.Edges[1])/2, f0, 1)
 }
