@@ -131,6 +131,7 @@ func testJupyterClients(t *testing.T, bin string) {
 	t.Run("client", func(t *testing.T) { e.script(t, "client.py", 3*time.Minute) })
 	t.Run("adversarial", func(t *testing.T) { e.script(t, "adversarial.py", 5*time.Minute) })
 	t.Run("nbclient", func(t *testing.T) { e.script(t, "notebook.py", 3*time.Minute) })
+	t.Run("console", func(t *testing.T) { testJupyterConsole(t, e) })
 	t.Run("nbconvert", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "executed.ipynb")
 		ctx, cancel := context.WithTimeout(context.Background(), 3*time.Minute)
@@ -187,6 +188,46 @@ func testJupyterClients(t *testing.T, bin string) {
 			t.Fatalf("executed notebook: %d code cells, svg=%v; want 3 and an SVG", n, svg)
 		}
 	})
+}
+
+// testJupyterConsole types cells into jupyter console (its plain prompt reads
+// standard input): results and errors come back in order, the error shows its
+// caret, the session survives it, and the console shuts the kernel down at the
+// end of input.
+func testJupyterConsole(t *testing.T, e *e2eEnv) {
+	console, err := exec.LookPath("jupyter-console")
+	if err != nil {
+		if os.Getenv("CI") == "true" {
+			t.Fatalf("CI=true and jupyter-console is missing: %v", err)
+		}
+		t.Skipf("jupyter-console not available: %v", err)
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, console, "--kernel", "nutate", "--simple-prompt")
+	cmd.Env = e.env
+	cmd.Stdin = strings.NewReader("pulse q = nosuch(duration = 1 ms)\nprint 1 kHz in uT\npulse p = rect(duration = 1 ms, flip = 90 deg)\n")
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		t.Fatalf("jupyter console: %v\n%s", err, out)
+	}
+	text := string(out)
+	want := []string{
+		"Nutate " + version, // the banner
+		"unknown shape or pulse `nosuch`",
+		"            ^", // the caret under the name
+		"23.4866 µT",    // 1 kHz / (γ/2π) for 1H (CODATA 2018)
+		"pulse p: rect, 1 ms",
+		"Shutting down kernel",
+	}
+	at := 0
+	for _, w := range want {
+		i := strings.Index(text[at:], w)
+		if i < 0 {
+			t.Fatalf("console output lacks %q after byte %d:\n%s", w, at, text)
+		}
+		at += i + len(w)
+	}
 }
 
 // BenchmarkE2EKernel reports figures measured under jupyter_client
