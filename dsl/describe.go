@@ -23,6 +23,7 @@ func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Pro
 		// profile is looked at over twice it: do the same, so that an export
 		// read back is measured on the original's span.
 		opt.Span = math.Max(2*p.Sweep, 4/p.Duration())
+		opt.Band = p.Sweep // the threshold is judged over the sweep's central half
 	}
 	if prog != nil {
 		// The cost is an estimate: stop short of the pulse's share until it is

@@ -175,8 +175,12 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 		return errAt(s.PathP, "%s: %v", s.Path, err)
 	}
 	def := &pulseDef{Name: s.Name.Name, Kind: "imported", Pulse: p, Nucleus: ev.st.nucleus, Source: s.Path}
+	warning, err := ev.definitionWarning(def, s.Name.P)
+	if err != nil {
+		return err
+	}
 	ev.st.define(s.Name.Name, &binding{pulse: def})
-	ev.emit(textBundle(pulseSummary(def) + ", from " + s.Path))
+	ev.emit(textBundle(pulseSummary(def) + ", from " + s.Path + warning))
 	return nil
 }
 

@@ -66,6 +66,17 @@ func TestExportImportRoundTrip(t *testing.T) {
 			abs("pass ripple", a.PassRipple, b.PassRipple, 1e-3)
 			abs("stop ripple", a.StopRipple, b.StopRipple, 1e-3)
 			abs("thickness (m)", a.Thickness, b.Thickness, 1e-3*math.Abs(a.Thickness))
+			// A swept pulse read back is still swept, so its adiabatic threshold
+			// is searched over the same offsets (the central half of its sweep).
+			if p.Adiabatic != q.Adiabatic {
+				t.Errorf("imported adiabatic = %v, original %v", q.Adiabatic, p.Adiabatic)
+			}
+			switch {
+			case math.IsNaN(a.Threshold) != math.IsNaN(b.Threshold):
+				t.Errorf("adiabatic threshold: imported %g, original %g", b.Threshold, a.Threshold)
+			case p.Adiabatic && !math.IsNaN(a.Threshold):
+				rel("adiabatic threshold", a.Threshold, b.Threshold, 0.002)
+			}
 			if !math.IsNaN(p.Flip) && !p.Adiabatic {
 				rel("flip (area at the centre)", p.Flip, q.Flip, 1e-9)
 			}

@@ -595,17 +595,27 @@ func (ev *evaluator) pulse(s *PulseStmt) error {
 	if err := ev.checkCtx(); err != nil {
 		return err
 	}
-	met, err := meetsAdiabaticTarget(ev.ctx, def.Pulse)
+	warning, err := ev.definitionWarning(def, s.Name.P)
 	if err != nil {
-		return errAt(s.Name.P, "checking %s against its adiabatic threshold: %v", s.Name.Name, err)
+		return err
 	}
 	ev.st.define(s.Name.Name, &binding{pulse: def})
-	line := pulseSummary(def)
-	if !met {
-		line += "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + roleVerb(def.Pulse.Role) + " its band (`describe " + def.Name + "` gives the threshold)"
-	}
-	ev.emit(textBundle(line))
+	ev.emit(textBundle(pulseSummary(def) + warning))
 	return nil
+}
+
+// definitionWarning is the line a new pulse's summary gets when the pulse is
+// adiabatic with a role and misses its target at its own peak (see
+// meetsAdiabaticTarget), else "".
+func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
+	met, err := meetsAdiabaticTarget(ev.ctx, def.Pulse)
+	if err != nil {
+		return "", errAt(at, "checking %s against its adiabatic threshold: %v", def.Name, err)
+	}
+	if met {
+		return "", nil
+	}
+	return "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + roleVerb(def.Pulse.Role) + " its band (`describe " + def.Name + "` gives the threshold)", nil
 }
 
 // definePulse builds a pulse from a shape call, a copy of a named pulse, or a train.

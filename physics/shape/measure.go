@@ -34,6 +34,11 @@ type MeasureOptions struct {
 	// call may bring a value smaller than one already seen. How many steps a
 	// measurement takes depends on the profile found; MeasureCost estimates it.
 	Progress func(steps float64)
+	// Band (Hz) is the band over whose central half (±Band/4 about the centre)
+	// an adiabatic pulse must meet its role's target for the threshold; 0: the
+	// design bandwidth. A swept waveform read from a file has no design
+	// bandwidth; its sweep is the natural band.
+	Band float64
 }
 
 // MeasureCost estimates the isochromat-steps Measure takes for p with the
@@ -143,7 +148,10 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	if math.IsNaN(opt.Offset) || math.IsInf(opt.Offset, 0) {
 		return pr, fmt.Errorf("measure: offset must be finite, got %g Hz", opt.Offset)
 	}
-	m := &meter{ctx: ctx, p: p, gammaBar: math.Abs(p.Gamma) / (2 * math.Pi), workers: opt.Workers, center: p.Center + opt.Offset, progress: opt.Progress}
+	m := &meter{ctx: ctx, p: p, gammaBar: math.Abs(p.Gamma) / (2 * math.Pi), workers: opt.Workers, center: p.Center + opt.Offset, band: p.Bandwidth, progress: opt.Progress}
+	if opt.Band > 0 {
+		m.band = opt.Band
+	}
 	m.w = p.Wave
 	m.w.Gradient = nil
 	m.role = p.Role
@@ -244,6 +252,7 @@ type meter struct {
 	gammaBar float64
 	workers  int
 	center   float64 // Hz, where the band is sought
+	band     float64 // Hz, over whose central half the threshold is judged
 	off, val []float64
 	mid      int // index of the centre in off
 	progress func(steps float64)
@@ -473,7 +482,7 @@ func (m *meter) met(scales []float64) ([]bool, error) {
 }
 
 func (m *meter) thresholdOffsets() []float64 {
-	c, bw := m.center, m.p.Bandwidth
+	c, bw := m.center, m.band
 	if !(bw > 0) {
 		return []float64{c}
 	}

@@ -186,6 +186,10 @@ func FromSamples(s Samples, c Common, gamma float64) (*Pulse, error) {
 		// The values are at sample midpoints: a sweep over the whole pulse
 		// reaches half a sample further at each end (exact for a linear one).
 		p.Sweep = (hi - lo) * float64(n) / float64(n-1)
+		// A frequency-swept waveform is taken as the designed swept shapes are
+		// (hsec, chirp, wurst): its effect comes by passage, so Measure searches
+		// its adiabatic threshold when it has a role.
+		p.Adiabatic = true
 	}
 	p.applyPhase(c.Phase, c.Center)
 	// The data's own frequency (constant, or the middle of its sweep) moves the
