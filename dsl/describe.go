@@ -83,8 +83,9 @@ func fmtField(b, gammaBar float64) string {
 func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
 
 // thresholdUnmet says what an adiabatic threshold of "not met" means (the search of
-// shape.Measure: octaves up to 32× the pulse's peak, target over ±¼ of the bandwidth).
-const thresholdUnmet = "the role's target is met over ±¼ of the bandwidth at no peak B1 up to 32× the pulse's own"
+// shape.Measure: octaves up to 32× the pulse's peak, target over ±¼ of the bandwidth, met at
+// two successive octaves).
+const thresholdUnmet = "no peak B1 up to 32× the pulse's own meets the role's target over ±¼ of the bandwidth and still meets it at twice that peak, as a threshold must (a sweep without amplitude taper may meet it only in windows of B1: sweep b1 to see them)"
 
 func fmtOpt(v float64, f func(float64) string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
