@@ -1,26 +1,16 @@
 package dsl
 
 import (
-	"context"
 	"encoding/json"
 	"math"
 	"testing"
-
-	"Nutate/display"
 )
 
 // mapZ runs a cell whose last output is a map over a one-point second axis and
 // returns its values along the first axis, decoded from the application/json.
 func mapZ(t *testing.T, src string) []float64 {
 	t.Helper()
-	var last display.Bundle
-	if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { last = b }}); err != nil {
-		t.Fatalf("%s: %v", src, err)
-	}
-	raw, err := json.Marshal(last["application/json"])
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, raw := lastOutput(t, src)
 	var data struct {
 		Kind string
 		Z    [][]*float64

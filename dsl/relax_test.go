@@ -8,7 +8,6 @@ import (
 	"strings"
 	"testing"
 
-	"Nutate/display"
 	"Nutate/physics"
 )
 
@@ -88,16 +87,7 @@ func TestRelaxLimitKeepsM(t *testing.T) {
 // end the same way.
 func TestRelaxMask(t *testing.T) {
 	run := func(src string) map[string]json.RawMessage {
-		t.Helper()
-		var last display.Bundle
-		if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { last = b }}); err != nil {
-			t.Fatalf("%s: %v", src, err)
-		}
-		raw, _ := json.Marshal(last["application/json"])
-		var out map[string]json.RawMessage
-		if err := json.Unmarshal(raw, &out); err != nil {
-			t.Fatalf("application/json is not valid JSON: %v\n%s", err, raw)
-		}
+		out, _ := lastJSON(t, src)
 		return out
 	}
 	type axis struct{ Values []float64 }
@@ -161,16 +151,8 @@ func TestRelaxMask(t *testing.T) {
 func TestT2DefaultsToTwiceT1(t *testing.T) {
 	run := func(src string) (map[string]json.RawMessage, string) {
 		t.Helper()
-		var last display.Bundle
-		if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { last = b }}); err != nil {
-			t.Fatalf("%s: %v", src, err)
-		}
-		raw, _ := json.Marshal(last["application/json"])
-		var out map[string]json.RawMessage
-		if err := json.Unmarshal(raw, &out); err != nil {
-			t.Fatal(err)
-		}
-		text, _ := last["text/plain"].(string)
+		out, b := lastJSON(t, src)
+		text, _ := b["text/plain"].(string)
 		return out, text
 	}
 	const pulse = "pulse p = rect(duration = 20 ms, flip = 30 deg)\n"

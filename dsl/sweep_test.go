@@ -13,14 +13,7 @@ import (
 // quantity, decoded from the application/json of the bundle.
 func sweepJSON(t *testing.T, src string) map[string][]float64 {
 	t.Helper()
-	var last display.Bundle
-	if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { last = b }}); err != nil {
-		t.Fatalf("%s: %v", src, err)
-	}
-	raw, err := json.Marshal(last["application/json"])
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, raw := lastOutput(t, src)
 	var data struct {
 		Curves []struct {
 			Quantity string
