@@ -61,11 +61,12 @@ const filesHelp = `Files
   or a plain two-column time/amplitude file. A frequency offset that is the same on
   every row is the pulse's centre (describe measures its band there; without a
   phase column its ramp is applied); one that varies is a frequency modulation
-  (without a phase column it is integrated into the phase). A gradient that is the
-  same on every row is the pulse's gradient; an export's role is kept. So an
-  export read back is measured around the same centre as the original and gives the
-  same bandwidth, rotation and ripples (design figures such as the TBW or an
-  adiabatic threshold are not carried). With dwell it reads a plain column of
+  (without a phase column it is integrated into the phase) and makes it a swept
+  pulse: with a role, its adiabatic threshold is searched over the central half of
+  its sweep, as for the designed sweeps. A gradient that is the same on every row
+  is the pulse's gradient; an export's role is kept. So an export read back is
+  measured around the same centre as the original and gives the same bandwidth,
+  rotation, ripples and threshold (design figures such as the TBW are not carried). With dwell it reads a plain column of
   amplitudes (T), one sample a row; a file with a time column refuses dwell.
   A malformed file is refused with the row and column of the fault. Paths are
   relative to the notebook's folder.`
