@@ -16,6 +16,24 @@ const energyCaution = "Energy and B1rms are relative, waveform-only estimates, n
 // measure runs shape.Measure for a pulse with the session's field and the tr
 // given, telling prog (when not nil) of its progress.
 func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Properties, error) {
+	opt := ev.measureOptions(d, tr)
+	if prog != nil {
+		// The cost is an estimate: stop short of the pulse's share until it is
+		// done (prog adds the shares of the pulses before).
+		most := 0.99 * shape.MeasureCost(d.Pulse, opt)
+		opt.Progress = func(steps float64) { prog.report(math.Min(steps, most)) }
+	}
+	pr, err := shape.Measure(ev.ctx, d.Pulse, opt)
+	if prog != nil && err == nil {
+		prog.mu.Lock()
+		prog.base += shape.MeasureCost(d.Pulse, opt)
+		prog.mu.Unlock()
+	}
+	return pr, withoutPrefix(err, "measure: ")
+}
+
+// measureOptions are the options describe and report measure a pulse with.
+func (ev *evaluator) measureOptions(d *pulseDef, tr float64) shape.MeasureOptions {
 	opt := shape.MeasureOptions{TR: tr, Field: ev.st.field}
 	if p := d.Pulse; imported(p) && p.Sweep > 0 {
 		// A file's sweep has no design bandwidth beside it; the designed
@@ -25,19 +43,7 @@ func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Pro
 		opt.Span = math.Max(2*p.Sweep, 4/p.Duration())
 		opt.Band = p.Sweep // the threshold is judged over the sweep's central half
 	}
-	if prog != nil {
-		// The cost is an estimate: stop short of the pulse's share until it is
-		// done (prog adds the shares of the pulses before).
-		most := 0.99 * shape.MeasureCost(d.Pulse)
-		opt.Progress = func(steps float64) { prog.report(math.Min(steps, most)) }
-	}
-	pr, err := shape.Measure(ev.ctx, d.Pulse, opt)
-	if prog != nil && err == nil {
-		prog.mu.Lock()
-		prog.base += shape.MeasureCost(d.Pulse)
-		prog.mu.Unlock()
-	}
-	return pr, withoutPrefix(err, "measure: ")
+	return opt
 }
 
 // measureProgress starts a progress display for measuring the pulses of defs
@@ -46,7 +52,7 @@ func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Pro
 func (ev *evaluator) measureProgress(task string, defs []*pulseDef) (prog *progress, done func()) {
 	total := 0.0
 	for _, d := range defs {
-		total += shape.MeasureCost(d.Pulse)
+		total += shape.MeasureCost(d.Pulse, ev.measureOptions(d, 0))
 	}
 	if total <= progressSteps || ev.sink.Progress == nil {
 		return nil, func() {}

@@ -15,8 +15,8 @@ type MeasureOptions struct {
 	// Field (T) is B0 for the chemical-shift displacement; 0: not computed.
 	Field float64
 	// Points is the number of offsets of the simulated profile (made odd so the
-	// centre is a point); 0: 401, or fewer (down to 101) so that points × samples
-	// stays within 800 000.
+	// centre is a point); 0: a step of at most 1/(12·duration), and 401
+	// points where that is cheap (see profilePoints).
 	Points int
 	// Span (Hz) is the half-width of the simulated profile about the pulse's
 	// centre; 0: twice the design bandwidth, at least half the sweep and 4/T. It
@@ -41,16 +41,22 @@ type MeasureOptions struct {
 	Band float64
 }
 
-// MeasureCost estimates the isochromat-steps Measure takes for p with the
-// default options: the profile's points (once; a profile that must widen costs
-// more), about 40 single-isochromat runs refining its crossings, and for an
-// adiabatic pulse the threshold search (12 scans and about 14 bisection steps
-// over 11 offsets). It is an estimate, for progress displays (sinc and
-// hyperbolic secant pulses of 10³ to 10⁵ samples take 0.9 to 1 times it).
-func MeasureCost(p *Pulse) float64 {
+// MeasureCost estimates the isochromat-steps Measure takes for p with opt: the
+// profile's points (once; a profile that must widen costs more), about 40
+// single-isochromat runs refining its crossings, and for an adiabatic pulse the
+// threshold search (12 scans and about 14 bisection steps over 11 offsets). It
+// is an estimate, for progress displays.
+func MeasureCost(p *Pulse, opt MeasureOptions) float64 {
 	n := float64(p.Wave.Len())
-	points := float64(min(401, max(101, 800_000/max(1, p.Wave.Len()))))
-	cost := (1 + points + 40) * n
+	span := opt.Span
+	if span == 0 {
+		span = defaultSpan(p)
+	}
+	points := opt.Points
+	if points == 0 {
+		points = profilePoints(span, p.Duration(), p.Wave.Len())
+	}
+	cost := (1 + float64(points) + 40) * n
 	if p.Adiabatic {
 		cost += (thresholdScans + 14) * thresholdOffsets * n
 	}
@@ -181,24 +187,22 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	}
 	pr.Rotation = 2 * math.Asin(math.Min(1, cabs(r.Beta[0])))
 
+	span := opt.Span
+	if span == 0 {
+		span = defaultSpan(p)
+	}
+	if !(span > 0) || math.IsInf(span, 0) {
+		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
+	}
 	points := opt.Points
 	if points == 0 {
-		// 401, fewer for long waveforms to bound the cost: at most
-		// 800 000 isochromat-steps, at least 101 points.
-		points = min(401, max(101, 800_000/p.Wave.Len()))
+		points = profilePoints(span, T, p.Wave.Len())
 	}
 	if points < 3 {
 		points = 3
 	}
 	if points%2 == 0 {
 		points++
-	}
-	span := opt.Span
-	if span == 0 {
-		span = math.Max(math.Max(2*p.Bandwidth, p.Sweep/2), 4/T)
-	}
-	if !(span > 0) || math.IsInf(span, 0) {
-		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
 	}
 	for widen := 0; ; widen++ {
 		if err := m.profile(span, points); err != nil {
@@ -228,6 +232,28 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 		pr.ThresholdHz = m.gammaBar * th
 	}
 	return pr, nil
+}
+
+// defaultSpan is the default half-width (Hz) of a profile: twice the design
+// bandwidth, at least half the sweep and 4/T.
+func defaultSpan(p *Pulse) float64 {
+	return math.Max(math.Max(2*p.Bandwidth, p.Sweep/2), 4/p.Duration())
+}
+
+// profilePoints is the default number of offsets of a profile of half-width
+// span (Hz) for a pulse of duration T (s) and n samples: a step of at most
+// 1/(12·T), so that the profile's finest features (side lobes and the nulls
+// between them are about 1/T wide) are resolved whatever the sample count, and
+// at least 401 points while that costs under 800 000 isochromat-steps (101 at
+// least, 4001 at most). The crossings are then refined by simulation and the
+// ripples read from resolved lobes, so the figures do not depend on how finely
+// the same waveform is sampled.
+func profilePoints(span, T float64, n int) int {
+	resolved := 24*span*T + 1
+	if !(resolved < 4001) {
+		return 4001
+	}
+	return max(int(math.Ceil(resolved)), min(401, max(101, 800_000/max(1, n))))
 }
 
 // SliceThickness is the thickness (m) excited by a band of bandwidth Hz under a

@@ -120,6 +120,41 @@ func TestMeasureRipple(t *testing.T) {
 	}
 }
 
+// The same waveform sampled 100× more finely has the same profile (to about
+// 1e-6: a piecewise-constant sinc converges as the dwell shrinks), so Measure
+// must give the same figures: the profile's grid follows the pulse's duration,
+// not its sample count. Before, a long waveform got a coarse grid that stepped
+// over the null between the main lobe and the first side lobe, so the 10 %
+// crossing and the stop region moved beyond the side lobe (transition 912 Hz
+// instead of 353 Hz, stop ripple 5 % instead of 23 %).
+func TestMeasureIndependentOfSampling(t *testing.T) {
+	g := gammaH(t)
+	measure := func(samples int) Properties {
+		c := common(2e-3, 90*deg)
+		c.Samples = samples
+		p, err := Sinc(c, g, 8, WindowNone)
+		mustOK(t, err)
+		pr, err := Measure(context.Background(), p, MeasureOptions{})
+		mustOK(t, err)
+		return pr
+	}
+	a, b := measure(257), measure(25700)
+	for _, x := range []struct {
+		name string
+		a, b float64
+		tol  float64 // relative
+	}{
+		{"bandwidth", a.Bandwidth, b.Bandwidth, 1e-3},
+		{"transition", a.Transition, b.Transition, 0.01},
+		{"pass ripple", a.PassRipple, b.PassRipple, 0.02},
+		{"stop ripple", a.StopRipple, b.StopRipple, 0.02},
+	} {
+		if !(math.Abs(x.a-x.b) <= x.tol*math.Abs(x.a)) {
+			t.Errorf("%s: %g with 257 samples, %g with 25700; want within %g relative", x.name, x.a, x.b, x.tol)
+		}
+	}
+}
+
 // The threshold is the lowest B1 meeting the target (Properties.Threshold):
 // checked independently, the target holds at the reported B1 and fails just
 // below it. Target for inversion: Mz ≤ −0.9 over the central half of the band.
