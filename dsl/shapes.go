@@ -608,14 +608,46 @@ func (ev *evaluator) pulse(s *PulseStmt) error {
 // adiabatic with a role and misses its target at its own peak (see
 // meetsAdiabaticTarget), else "".
 func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
+	w := rampWarning(def.Pulse)
 	met, err := meetsAdiabaticTarget(ev.ctx, def.Pulse)
 	if err != nil {
 		return "", errAt(at, "checking %s against its adiabatic threshold: %v", def.Name, err)
 	}
-	if met {
-		return "", nil
+	if !met {
+		w += "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + roleVerb(def.Pulse.Role) + " its band (`describe " + def.Name + "` gives the threshold)"
 	}
-	return "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + roleVerb(def.Pulse.Role) + " its band (`describe " + def.Name + "` gives the threshold)", nil
+	return w, nil
+}
+
+// rampWarning warns when an off-centre pulse's samples are too coarse for its
+// centre: the phase ramp held over each sample scales the band by
+// sinc(π·center·dwell) (the spectrum of a sample-and-hold) and aliases it beyond
+// 1/(2·dwell). Shapes pick enough samples by default (1/40 cycle each, 0.1 %);
+// this speaks when samples or dwell were given, or for imported data.
+func rampWarning(p *shape.Pulse) string {
+	dwell := 0.0 // the longest sample that carries field (a train's gaps do not)
+	for j, d := range p.Wave.Dwell {
+		if p.Wave.B1[j] != 0 {
+			dwell = math.Max(dwell, d)
+		}
+	}
+	x := math.Pi * math.Abs(p.Center) * dwell
+	if x == 0 {
+		return ""
+	}
+	loss := 1 - math.Sin(x)/x
+	if loss < 0.01 {
+		return ""
+	}
+	turn := math.Abs(p.Center) * dwell * 360
+	need := math.Ceil(40 * math.Abs(p.Center) * p.Duration() * (1 - 1e-12)) // as shapes choose by default
+	msg := fmt.Sprintf("\nwarning: the centre %s turns the phase by %s per sample (dwell %s); held over each sample, the ramp ", Quantity{p.Center, dimFrequency}.String(), formatNumber(roundSig(turn, 3))+" deg", Quantity{dwell, dimTime}.String())
+	if math.Abs(p.Center)*dwell >= 0.5 {
+		msg += "aliases: the band plays elsewhere than the centre"
+	} else {
+		msg += fmt.Sprintf("loses %s %% of the flip at the centre", formatNumber(roundSig(100*loss, 2)))
+	}
+	return msg + fmt.Sprintf("; %s samples or more bring it to about 0.1 %%", formatNumber(need))
 }
 
 // definePulse builds a pulse from a shape call, a copy of a named pulse, or a train.

@@ -204,6 +204,16 @@ func (c *Common) grid(defaultSamples int) (n int, dt float64, err error) {
 	}
 	if n == 0 {
 		n = defaultSamples
+		// An off-centre band is a phase ramp held constant over each sample:
+		// the held ramp scales the band by sinc(π·center·dwell) (the spectrum
+		// of a sample-and-hold) and aliases beyond 1/(2·dwell). At 1/40 cycle
+		// per sample the loss is 0.1 %.
+		if need := math.Ceil(centerCyclesPerSample * math.Abs(c.Center) * c.Duration); need > float64(n) {
+			if need > maxSamples {
+				return 0, 0, fmt.Errorf("center %g Hz over %g s needs %.3g samples (1/%d cycle each), want at most %d: give samples or dwell, or a shorter duration", c.Center, c.Duration, need, centerCyclesPerSample, maxSamples)
+			}
+			n = int(need)
+		}
 	}
 	if n < 1 || n > maxSamples {
 		return 0, 0, fmt.Errorf("samples must be 1 to %d, got %d", maxSamples, n)
@@ -212,6 +222,10 @@ func (c *Common) grid(defaultSamples int) (n int, dt float64, err error) {
 }
 
 const maxSamples = 1 << 22
+
+// centerCyclesPerSample is the default samples per cycle of an off-centre
+// band's phase ramp (see grid).
+const centerCyclesPerSample = 40
 
 // amplitudeModulated builds a pulse from a real unit-peak envelope u (one value per
 // sample), scaling it so that its nominal on-resonance flip γ·∫B1 dt equals c.Flip,

@@ -7,14 +7,15 @@ import (
 
 // sweepSamples is the default sample count of a frequency-swept pulse: at least
 // 1000, and enough that the carrier-frame phase advances by at most 1/20 cycle
-// per sample at the edge of a sweep of the given bandwidth (Hz) over c.Duration.
+// per sample at the edge of a sweep of the given bandwidth (Hz) over c.Duration,
+// centre offset included.
 // It is an error when that needs more than the sample limit and neither samples
 // nor dwell is given.
 func (c *Common) sweepSamples(bandwidth float64) (int, error) {
 	if c.Samples != 0 || !math.IsNaN(c.Dwell) || !(c.Duration > 0) || math.IsInf(c.Duration, 0) {
 		return 1000, nil // grid checks and uses these
 	}
-	n := math.Ceil(10 * math.Abs(bandwidth) * c.Duration)
+	n := math.Ceil(20 * (math.Abs(c.Center) + math.Abs(bandwidth)/2) * c.Duration)
 	if n > maxSamples {
 		return 0, fmt.Errorf("a sweep of %g Hz over %g s needs %.3g samples, want at most %d: give a shorter duration or a narrower bandwidth", bandwidth, c.Duration, n, maxSamples)
 	}

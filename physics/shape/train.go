@@ -18,6 +18,13 @@ type Element struct {
 // Every element must share one gyromagnetic ratio. The train's nominal flip is
 // undefined (NaN): measure it. Gradients and frequencies are kept per sample
 // (zero in the gaps and in elements without them).
+//
+// Elements that share one centre offset (an off-centre composite) are joined
+// phase-coherently at that frequency, as a synthesizer set to it plays them:
+// each element's own ramp (referenced to its own midpoint) is taken off and one
+// ramp runs through the whole train, so that in the frame of the band's centre
+// the elements keep the phases given. The train's centre is then that offset
+// plus its own center. Elements with different centres keep their own ramps.
 func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 	const name = "train"
 	if len(elements) == 0 {
@@ -66,6 +73,12 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 	if total > maxSamples {
 		return nil, fmt.Errorf("%s: %d samples in all, want at most %d", name, total, maxSamples)
 	}
+	fc := elements[0].Pulse.Center
+	for _, e := range elements[1:] {
+		if e.Pulse.Center != fc {
+			fc = 0 // different centres: each element keeps its own ramp
+		}
+	}
 	p := &Pulse{Shape: name, Gamma: gamma, Role: c.Role, Center: c.Center, Flip: math.NaN(), Adiabatic: adiabatic}
 	w := &p.Wave
 	w.Dwell = make([]float64, 0, total)
@@ -91,7 +104,14 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 		rot := complex(co, s)
 		ew := &e.Pulse.Wave
 		w.Dwell = append(w.Dwell, ew.Dwell...)
-		for _, b := range ew.B1 {
+		te, t := ew.Duration(), 0.0
+		for j, b := range ew.B1 {
+			if fc != 0 {
+				// Undo applyPhase's ramp of the element (its phase stays).
+				s, co := math.Sincos(2 * math.Pi * fc * (t + ew.Dwell[j]/2 - te/2))
+				b *= complex(co, s)
+				t += ew.Dwell[j]
+			}
 			w.B1 = append(w.B1, b*rot)
 		}
 		if hasGrad {
@@ -103,12 +123,15 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 		}
 		if hasFreq {
 			if e.Pulse.Freq != nil {
-				p.Freq = append(p.Freq, e.Pulse.Freq...)
+				for _, f := range e.Pulse.Freq {
+					p.Freq = append(p.Freq, f-fc) // applyPhase below adds it back
+				}
 			} else {
 				p.Freq = append(p.Freq, make([]float64, ew.Len())...)
 			}
 		}
 	}
-	p.applyPhase(c.Phase, c.Center)
+	p.applyPhase(c.Phase, c.Center+fc)
+	p.Center = c.Center + fc
 	return p, nil
 }
