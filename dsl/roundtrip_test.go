@@ -21,6 +21,11 @@ func TestExportImportRoundTrip(t *testing.T) {
 		center      float64 // Hz, expected centre of the imported pulse
 	}{
 		{"centred sinc", "sinc(duration = 2 ms, tbw = 4, flip = 90 deg)", 0},
+		// Wider bands than 4/T: the import has no design bandwidth to size its
+		// profile by, so the profile widens until the band's edges sit inside.
+		{"sinc tbw 8", "sinc(duration = 2 ms, tbw = 8, flip = 90 deg)", 0},
+		{"hamming sinc tbw 6", "sinc(duration = 2 ms, tbw = 6, window = hamming, flip = 90 deg)", 0},
+		{"hann sinc tbw 12", "sinc(duration = 2 ms, tbw = 12, window = hann, flip = 90 deg)", 0},
 		{"off-centre sinc", "sinc(duration = 2 ms, tbw = 4, flip = 90 deg, center = -3.5 ppm)", 42.577478518e6 * 3 * -3.5e-6},
 		{"swept hsec", "hsec(duration = 8 ms, bandwidth = 4 kHz, peak = 30 uT, role = invert, center = 1 kHz)", 1000},
 		{"chirp", "chirp(duration = 10 ms, bandwidth = 10 kHz, peak = 10 uT, role = invert)", 0},

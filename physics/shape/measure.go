@@ -194,21 +194,21 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	if !(span > 0) || math.IsInf(span, 0) {
 		return pr, fmt.Errorf("measure: span must be positive, got %g Hz", span)
 	}
-	points := opt.Points
-	if points == 0 {
-		points = profilePoints(span, T, p.Wave.Len())
-	}
-	if points < 3 {
-		points = 3
-	}
-	if points%2 == 0 {
-		points++
-	}
 	for widen := 0; ; widen++ {
+		points := opt.Points
+		if points == 0 {
+			points = profilePoints(span, T, p.Wave.Len())
+		}
+		if points < 3 {
+			points = 3
+		}
+		if points%2 == 0 {
+			points++
+		}
 		if err := m.profile(span, points); err != nil {
 			return pr, err
 		}
-		if m.crossesHalf() || widen == 3 {
+		if m.wideEnough(span) || widen == 3 {
 			break
 		}
 		span *= 4
@@ -415,12 +415,28 @@ func (m *meter) hasBand() bool {
 	return v0 > 1e-12 && v0 >= 0.1*top
 }
 
-func (m *meter) crossesHalf() bool {
+// wideEnough tells whether a profile of half-width span shows the whole band
+// with room for its transitions and stop band: both ends are below half the
+// on-band value, and the band's half-level points lie within the inner half of
+// the span (a file's waveform has no design bandwidth to size the span by).
+func (m *meter) wideEnough(span float64) bool {
 	v0 := m.onBand()
 	if !m.hasBand() {
 		return true // no band to find; widening would not help
 	}
-	return m.val[0] < v0/2 && m.val[len(m.val)-1] < v0/2
+	if !(m.val[0] < v0/2 && m.val[len(m.val)-1] < v0/2) {
+		return false
+	}
+	for _, dir := range []int{-1, 1} {
+		i := m.mid
+		for i+dir >= 0 && i+dir < len(m.val) && m.val[i+dir] >= v0/2 {
+			i += dir
+		}
+		if math.Abs(m.off[i]-m.center) > span/2 {
+			return false
+		}
+	}
+	return true
 }
 
 func (m *meter) features(pr *Properties) error {
