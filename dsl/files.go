@@ -128,14 +128,24 @@ type csvColumn struct {
 	hz     bool // amplitude given in Hz (γ̄·B1)
 }
 
+// maxImportPeak (T) is the largest peak an import takes as read, above the
+// strongest RF fields in use (solid-state NMR probes reach a few mT, 100 to
+// 250 kHz for 1H; common practice).
+const maxImportPeak = 10e-3
+
 // importPulse runs `import NAME from "file.csv" [with dwell = EXPR]`.
 func (ev *evaluator) importPulse(s *ImportStmt) error {
 	if err := ev.checkRedefine(s.Name, true); err != nil {
 		return err
 	}
-	set, err := ev.evalSettings(s.With, "dwell")
+	set, err := ev.evalSettings(s.With, importSettings...)
 	if err != nil {
 		return err
+	}
+	if _, ok := set.given["flip"]; ok {
+		if at, ok := set.given["peak"]; ok {
+			return errAt(at, "give flip or peak, not both: each sets the amplitude")
+		}
 	}
 	if info, err := os.Stat(ev.path(s.Path)); err == nil && info.Size() > maxImportBytes {
 		return errAt(s.PathP, "%s has %d bytes, over the limit of %d for a waveform", s.Path, info.Size(), maxImportBytes)
@@ -158,6 +168,10 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 	}
 	c := shape.NewCommon()
 	c.Role = exportRole(string(data))
+	if _, ok := set.given["role"]; ok {
+		c.Role = set.role
+	}
+	c.Flip, c.Peak = set.flip, set.peak
 	if set.dwell > 0 {
 		smp.Dwell = set.dwell
 		smp.Times = nil
@@ -173,6 +187,10 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 	p, err := shape.FromSamples(smp, c, ev.st.nucleus.Gamma())
 	if err != nil {
 		return errAt(s.PathP, "%s: %v", s.Path, err)
+	}
+	if math.IsNaN(c.Flip) && math.IsNaN(c.Peak) && p.Peak() > maxImportPeak {
+		// Most likely a normalised shape (peak 1) read in tesla.
+		return errAt(s.PathP, "%s: peak amplitude %s, beyond any RF coil: amplitudes are read in tesla unless the header names a unit, e.g. `amplitude (uT)`; for a normalised shape, scale it `with flip = ...` or `with peak = ...`", s.Path, Quantity{p.Peak(), dimField})
 	}
 	def := &pulseDef{Name: s.Name.Name, Kind: "imported", Pulse: p, Nucleus: ev.st.nucleus, Source: s.Path}
 	warning, err := ev.definitionWarning(def, s.Name.P)

@@ -22,12 +22,18 @@ var settingTable = []settingSpec{
 	{"start", "initial magnetization: z (default), -z, x, y"},
 	{"tr", "repetition time, for the time-averaged B1 (b1rms)"},
 	{"dwell", "sample length of an imported waveform (import only)"},
+	{"flip", "scales an imported waveform to this nominal flip, γ|∫B1 dt| at its centre (import only; give flip or peak)"},
+	{"peak", "scales an imported waveform to this peak B1, in T units or Hz (import only; give flip or peak)"},
+	{"role", "what an imported pulse is for: excite, invert, refocus, saturate (import only; an export's own role otherwise)"},
 }
+
+// importSettings apply to `import` alone.
+var importSettings = []string{"dwell", "flip", "peak", "role"}
 
 func settingNames() []string {
 	var out []string
 	for _, s := range settingTable {
-		if s.Name != "dwell" {
+		if !contains(importSettings, s.Name) {
 			out = append(out, s.Name)
 		}
 	}
@@ -42,6 +48,9 @@ type settings struct {
 	start   [3]float64
 	tr      float64 // s; 0: none
 	dwell   float64
+	flip    float64 // rad; NaN: not given (import)
+	peak    float64 // T; NaN: not given (import)
+	role    shape.Role
 	given   map[string]Pos
 	b1Label string
 	written [][2]string // name and value as written, in order, for titles and JSON
@@ -82,7 +91,7 @@ func (s *settings) caption() string {
 
 // evalSettings reads `with` settings; allowed limits which are accepted here.
 func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings, error) {
-	s := &settings{start: [3]float64{0, 0, 1}, given: map[string]Pos{}}
+	s := &settings{start: [3]float64{0, 0, 1}, given: map[string]Pos{}, flip: math.NaN(), peak: math.NaN()}
 	for _, st := range list {
 		name := st.Name.Name
 		if !contains(allowed, name) {
@@ -100,6 +109,17 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 		}
 		s.given[name] = st.Value.Position()
 		p := st.Value.Position()
+		if name == "role" {
+			w, _ := wordOf(st.Value)
+			r, ok := shape.ParseRole(w)
+			if !ok || w == "" {
+				roles := []string{"excite", "invert", "refocus", "saturate"}
+				return nil, errAt(p, "role expects excite, invert, refocus or saturate, got %s%s", exprText(st.Value, w), suggest(w, roles))
+			}
+			s.role = r
+			s.written = append(s.written, [2]string{name, w})
+			continue
+		}
 		if name == "start" {
 			w, _ := wordOf(st.Value)
 			dirs := map[string][3]float64{"z": {0, 0, 1}, "-z": {0, 0, -1}, "x": {1, 0, 0}, "y": {0, 1, 0}, "-x": {-1, 0, 0}, "-y": {0, -1, 0}}
@@ -130,6 +150,20 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 			}
 			vv := v
 			s.b1 = &vv
+		case "flip":
+			if s.flip, err = ev.want(v, dimAngle, "flip", p); err != nil {
+				return nil, err
+			}
+			if math.IsInf(s.flip, 0) {
+				return nil, errAt(p, "flip must be finite, got %s", v)
+			}
+		case "peak":
+			if s.peak, err = ev.want(v, dimField, "peak", p); err != nil {
+				return nil, err
+			}
+			if !(s.peak > 0) || math.IsInf(s.peak, 0) {
+				return nil, errAt(p, "peak must be positive, got %s", v)
+			}
 		case "t1", "t2", "tr", "dwell":
 			x, err := ev.want(v, dimTime, name, p)
 			if err != nil {
