@@ -182,6 +182,17 @@ func (ev *evaluator) thresholdWarning(d *pulseDef, pr shape.Properties) (string,
 	return thresholdWarning(d.Pulse, pr.Threshold, met), nil
 }
 
+// centreText is a pulse's centre in Hz, and in ppm too once the field is set
+// (Δf = γ̄·B0·δ with the sign of γ, README conventions).
+func centreText(p *shape.Pulse, field float64) string {
+	s := Quantity{p.Center, dimFrequency}.String()
+	if f := field; f > 0 {
+		ppm := p.Center / (signedGammaBar(p) * f) * 1e6
+		s += " (" + formatNumber(roundSig(ppm, 6)) + " ppm)"
+	}
+	return s
+}
+
 // waveformOf gives the display's view of a pulse's samples.
 func waveformOf(d *pulseDef) display.Waveform {
 	p := d.Pulse
@@ -226,11 +237,16 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 			if p.Freq != nil {
 				from = "centre (middle of the file's frequency sweep)"
 			}
-			rows = append(rows, []string{from, Quantity{p.Center, dimFrequency}.String()})
+			rows = append(rows, []string{from, centreText(p, field)})
 		}
 		rows = append(rows, []string{importedArea(p) + " (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
-	} else if !math.IsNaN(p.Flip) {
-		rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
+	} else {
+		if p.Center != 0 {
+			rows = append(rows, []string{"centre (carrier offset of the band)", centreText(p, field)})
+		}
+		if !math.IsNaN(p.Flip) {
+			rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
+		}
 	}
 	rows = append(rows, []string{"rotation at centre (simulated)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
 	if p.Role != shape.RoleNone {

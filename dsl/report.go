@@ -20,11 +20,19 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
 		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth", Unit: "Hz"},
 		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
-	adiabatic, slice, role := false, false, false
+	adiabatic, slice, role, centre := false, false, false, false
 	for _, d := range defs {
+		centre = centre || d.Pulse.Center != 0
 		adiabatic = adiabatic || d.Pulse.Adiabatic
 		slice = slice || d.Pulse.Gradient != 0
 		role = role || d.Pulse.Role != shape.RoleNone
+	}
+	// An off-centre band is part of the method: where the pulse plays.
+	if centre {
+		cols = append(cols, display.Column{Name: "centre", Unit: "Hz"})
+		if ev.st.field > 0 {
+			cols = append(cols, display.Column{Name: "centre", Unit: "ppm"})
+		}
 	}
 	if adiabatic {
 		cols = append(cols, display.Column{Name: "adiabatic threshold", Unit: "µT"})
@@ -78,6 +86,13 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			formatNumber(roundSig(p.Peak()*1e6, 5)), formatNumber(roundSig(p.Peak()*gb, 5)), flip,
 			fmtOpt(pr.Bandwidth, func(v float64) string { return formatNumber(roundSig(v, 5)) }), tbw,
 			formatNumber(roundSig(p.Energy()*1e15, 5))}
+		if centre {
+			row = append(row, formatNumber(roundSig(p.Center, 6)))
+			if f := ev.st.field; f > 0 {
+				// Δf = γ̄·B0·δ with the sign of γ (README conventions).
+				row = append(row, formatNumber(roundSig(p.Center/(signedGammaBar(p)*f)*1e6, 6)))
+			}
+		}
 		if adiabatic {
 			th := "—"
 			if p.Adiabatic {
