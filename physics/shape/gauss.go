@@ -32,16 +32,19 @@ func Gauss(c Common, gamma float64, tbw, cutoff float64) (*Pulse, error) {
 	case cutoff != 0 && !(cutoff > 0 && cutoff < 1):
 		return nil, fmt.Errorf("%s: cutoff must be between 0 and 1 (relative amplitude at the ends), got %g", name, cutoff)
 	}
-	n, dt, err := c.times(257)
-	if err != nil {
-		return nil, fmt.Errorf("%s: %w", name, err)
-	}
 	var sigma float64
 	if tbw != 0 {
 		sigma = math.Sqrt(2*math.Ln2) * T / (math.Pi * tbw)
 	} else {
 		sigma = T / (2 * math.Sqrt(-2*math.Log(cutoff)))
 		tbw = math.Sqrt(2*math.Ln2) * T / (math.Pi * sigma)
+	}
+	n, dt, err := c.times(bandSamples(tbw))
+	if err == nil {
+		err = checkBandSamples(n, tbw)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
 	}
 	u := make([]float64, n)
 	for j, t := range sampleTimes(n, dt) {

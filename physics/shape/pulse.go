@@ -223,6 +223,25 @@ func (c *Common) grid(defaultSamples int) (n int, dt float64, err error) {
 
 const maxSamples = 1 << 22
 
+// bandSamples is the default sample count of an amplitude-modulated pulse of
+// time-bandwidth product tbw: 257, or 8·tbw + 1 (odd) for a wider band, so that
+// the band (tbw/T wide) lies well inside the sampling rate (n/T).
+func bandSamples(tbw float64) int {
+	if n := 8*math.Ceil(tbw) + 1; n > 257 && n <= maxSamples {
+		return int(n)
+	}
+	return 257
+}
+
+// checkBandSamples refuses fewer than 2·tbw samples: the band, tbw/T wide,
+// would not fit inside the sampling rate n/T and would alias.
+func checkBandSamples(n int, tbw float64) error {
+	if need := math.Ceil(2 * tbw); float64(n) < need {
+		return fmt.Errorf("%d samples cannot hold tbw %g: want at least 2·tbw = %.0f (the band, tbw/duration wide, must lie inside the sampling rate, samples/duration)", n, tbw, need)
+	}
+	return nil
+}
+
 // centerCyclesPerSample is the default samples per cycle of an off-centre
 // band's phase ramp (see grid).
 const centerCyclesPerSample = 40

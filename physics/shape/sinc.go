@@ -40,8 +40,8 @@ func WindowNames() []string { return windowNames[:] }
 
 // Sinc is a windowed sinc with tbw zero crossings over the duration (the
 // time-bandwidth product; bandwidth ≈ tbw/T, Bernstein, King & Zhou 2004).
-// Sample times are sample midpoints; the default of 257 samples is odd so
-// that the peak at the middle is a sample.
+// Sample times are sample midpoints; the default of 257 samples (more for a
+// wide band, see bandSamples) is odd so that the peak at the middle is a sample.
 func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 	if !(tbw > 0) || math.IsInf(tbw, 0) {
 		return nil, fmt.Errorf("sinc: tbw must be positive, got %g", tbw)
@@ -49,7 +49,10 @@ func Sinc(c Common, gamma float64, tbw float64, win Window) (*Pulse, error) {
 	if win < WindowNone || win > WindowHamming {
 		return nil, fmt.Errorf("sinc: window %d is not one of %v", int(win), windowNames)
 	}
-	n, dt, err := c.times(257)
+	n, dt, err := c.times(bandSamples(tbw))
+	if err == nil {
+		err = checkBandSamples(n, tbw)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("sinc: %w", err)
 	}

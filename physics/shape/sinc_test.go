@@ -1,8 +1,10 @@
 package shape
 
 import (
+	"context"
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -111,4 +113,39 @@ func ExampleSincLobes() {
 	p, _ := SincLobes(c, h, 5, WindowHann)
 	fmt.Printf("5 lobes: tbw %g, %.0f Hz\n", p.TBW, p.Bandwidth)
 	// Output: 5 lobes: tbw 6, 2000 Hz
+}
+
+// A wide band gets samples enough for it: a sinc of TBW 300 over 10 ms (band
+// 30 kHz) defaults to 8·300 + 1 samples and its measured FWHM is the design's
+// (FWHM ≈ tbw/T for a sinc, Bernstein, King & Zhou 2004; 1 %), where 257
+// samples (a sampling rate of 25.7 kHz) alias the band. Fewer samples than
+// 2·tbw are refused, for sinc and gauss alike; the same Common with more
+// samples is accepted.
+func TestWideBandSamples(t *testing.T) {
+	g := gammaH(t)
+	p, err := Sinc(common(10e-3, 90*deg), g, 300, WindowNone)
+	mustOK(t, err)
+	if n := p.Wave.Len(); n != 2401 {
+		t.Errorf("default samples for tbw 300: %d, want 2401", n)
+	}
+	pr, err := Measure(context.Background(), p, MeasureOptions{})
+	mustOK(t, err)
+	near(t, "FWHM (Hz)", pr.Bandwidth, 30e3, 300)
+	c := common(10e-3, 90*deg)
+	c.Samples = 599
+	if _, err := Sinc(c, g, 300, WindowNone); err == nil || !strings.Contains(err.Error(), "want at least 2·tbw = 600") {
+		t.Errorf("sinc with 599 samples for tbw 300: err %v, want a refusal naming 600", err)
+	}
+	if _, err := Gauss(c, g, 300, 0); err == nil || !strings.Contains(err.Error(), "want at least 2·tbw = 600") {
+		t.Errorf("gauss with 599 samples for tbw 300: err %v, want a refusal naming 600", err)
+	}
+	c.Samples = 600
+	_, err = Sinc(c, g, 300, WindowNone)
+	mustOK(t, err)
+	// Narrow bands keep the 257 default.
+	p, err = Sinc(common(2e-3, 90*deg), g, 8, WindowNone)
+	mustOK(t, err)
+	if n := p.Wave.Len(); n != 257 {
+		t.Errorf("default samples for tbw 8: %d, want 257", n)
+	}
 }
