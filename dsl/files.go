@@ -211,6 +211,7 @@ func readWaveformCSV(name, text string, gammaBar float64, amplitudesOnly bool) (
 	var smp shape.Samples
 	var cols []csvColumn
 	duration := 0.0
+	text = strings.TrimPrefix(text, "\ufeff") // the byte-order mark spreadsheets write
 	lines := strings.Split(strings.ReplaceAll(text, "\r\n", "\n"), "\n")
 	rows := 0
 	for li, line := range lines {

@@ -559,7 +559,7 @@ func (p *parser) unit(required bool) *UnitRef {
 			// A named argument follows without a comma; let the caller complain.
 			return nil
 		}
-		p.fail(t.Pos, "unknown unit %s%s", quoteText(t.Text), suggest(t.Text, unitNames()))
+		p.fail(t.Pos, "unknown unit %s%s", quoteText(t.Text), suggestUnit(t.Text))
 	}
 	p.i++
 	return &UnitRef{P: t.Pos, Name: t.Text}

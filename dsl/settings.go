@@ -2,6 +2,7 @@ package dsl
 
 import (
 	"math"
+	"strconv"
 	"strings"
 
 	"Nutate/physics/shape"
@@ -192,8 +193,13 @@ func (ev *evaluator) evalSettings(list []Setting, allowed ...string) (*settings,
 	if s.t1 > 0 && s.t2 > 0 && beyondRelaxLimit(s.t1, s.t2) {
 		// T2 ≤ 2·T1 for any relaxing spin ensemble (common practice: Abragam,
 		// The Principles of Nuclear Magnetism, 1961; from memory).
-		return nil, errAt(s.given["t2"], "t2 = %s with t1 = %s: want t2 ≤ 2·t1 = %s (beyond it the Bloch equations let |M| exceed M0)",
-			s.writtenValue("t2"), s.writtenValue("t1"), Quantity{2 * s.t1, dimTime})
+		t2, t1, limit := s.writtenValue("t2"), s.writtenValue("t1"), Quantity{2 * s.t1, dimTime}.String()
+		if t2 == limit {
+			// Apart only beyond the shown digits: show them all, in seconds.
+			full := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) + " s" }
+			t2, t1, limit = full(s.t2), full(s.t1), full(2*s.t1)
+		}
+		return nil, errAt(s.given["t2"], "t2 = %s with t1 = %s: want t2 ≤ 2·t1 = %s (beyond it the Bloch equations let |M| exceed M0)", t2, t1, limit)
 	}
 	return s, nil
 }

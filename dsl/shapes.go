@@ -335,6 +335,11 @@ func (ev *evaluator) evalArgs(spec *shapeSpec, c *Call) (map[string]argVal, erro
 	return out, nil
 }
 
+// wordAliases are names other software gives to a word of ours: "hanning" is
+// the Hann window (numpy, MATLAB), and the nearest spelling (hamming) would be
+// another window.
+var wordAliases = map[string]string{"hanning": "hann"}
+
 // evalArg evaluates one argument value.
 func (ev *evaluator) evalArg(as argSpec, e Expr, namePos Pos) (argVal, error) {
 	p := e.Position()
@@ -347,7 +352,11 @@ func (ev *evaluator) evalArg(as argSpec, e Expr, namePos Pos) (argVal, error) {
 			} else if v, err := ev.evalExpr(e); err == nil {
 				got = describeValue(v)
 			}
-			return argVal{}, errAt(p, "%s expects one of %s, got %s%s", as.Name, strings.Join(as.Words, ", "), got, suggest(w, as.Words))
+			hint := suggest(w, as.Words)
+			if other, ok := wordAliases[w]; ok && contains(as.Words, other) {
+				hint = "; " + w + " is another name for the window written " + other
+			}
+			return argVal{}, errAt(p, "%s expects one of %s, got %s%s", as.Name, strings.Join(as.Words, ", "), got, hint)
 		}
 		return argVal{Pos: p, Word: w}, nil
 	}
@@ -372,8 +381,16 @@ func (ev *evaluator) checkArgValue(as argSpec, v Value, p Pos) error {
 		if v.Q.D != dimNumber {
 			return errAt(p, "%s expects a whole number, got %s", as.Name, describeValue(v))
 		}
-		if v.Q.V != math.Trunc(v.Q.V) || v.Q.V < 1 || v.Q.V > 1<<24 {
-			return errAt(p, "%s expects a whole number from 1 to %d, got %s", as.Name, 1<<24, v)
+		limit := float64(1 << 24)
+		if as.Name == "samples" {
+			limit = maxPulseSamples
+		}
+		if v.Q.V != math.Trunc(v.Q.V) || v.Q.V < 1 || v.Q.V > limit {
+			got := v.String()
+			if v.Q.V == math.Trunc(v.Q.V) && math.Abs(v.Q.V) < 1e15 {
+				got = strconv.FormatFloat(v.Q.V, 'f', -1, 64) // every digit of a whole number
+			}
+			return errAt(p, "%s expects a whole number from 1 to %.0f, got %s", as.Name, limit, got)
 		}
 		return nil
 	}

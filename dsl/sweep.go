@@ -339,7 +339,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 			return errAt(id.P, "b1rms needs the repetition time: add `with tr = ...`")
 		}
 		if isEcho(q.Name) && (set.t1 > 0 || set.t2 > 0 || axisNamed(axes, "t1") || axisNamed(axes, "t2")) {
-			return errAt(id.P, "%s is defined without relaxation; drop t1 and t2", q.Name)
+			return errAt(id.P, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
 		}
 		for _, p := range qs {
 			if p.Name == q.Name {
@@ -369,7 +369,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	for _, q := range qs {
 		if isEcho(q.Name) {
 			if axisNamed(axes, "t1") || axisNamed(axes, "t2") {
-				return errAt(axisPos(axes, "t1", "t2"), "%s is defined without relaxation; sweep t1 or t2 with mz, mxy ...", q.Name)
+				return errAt(axisPos(axes, "t1", "t2"), "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; sweep t1 or t2 with mz, mxy ...", q.Name)
 			}
 		}
 	}
@@ -782,7 +782,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 				c.mag[cell(k)] = math.Hypot(res.Mx[j], res.My[j])
 			case "echo", "echophase":
 				if res.Beta == nil {
-					return errAt(axes[0].pos, "%s is defined without relaxation; drop t1 and t2", q.Name)
+					return errAt(axes[0].pos, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
 				}
 				b := res.Beta[j]
 				v = real(b)*real(b) + imag(b)*imag(b)

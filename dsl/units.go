@@ -160,6 +160,19 @@ func lookupUnit(name string) (Unit, bool) {
 	return Unit{}, false
 }
 
+// suggestUnit is the hint after "unknown unit": units are case-sensitive, so a
+// name that differs from a unit only in case is not guessed at (mHz is not
+// MHz, 10⁹ times apart); the hint names that unit instead. Otherwise the usual
+// did-you-mean.
+func suggestUnit(name string) string {
+	for _, u := range units {
+		if strings.EqualFold(u.Name, name) {
+			return "; units are case-sensitive, and " + u.Name + " is the " + u.Help
+		}
+	}
+	return suggest(name, unitNames())
+}
+
 func unitNames() []string {
 	out := make([]string, len(units))
 	for i, u := range units {

@@ -38,7 +38,7 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 		}
 		u, ok := lookupUnit(x.Unit.Name)
 		if !ok {
-			return Value{}, errAt(x.Unit.P, "unknown unit %s%s", quoteText(x.Unit.Name), suggest(x.Unit.Name, unitNames()))
+			return Value{}, errAt(x.Unit.P, "unknown unit %s%s", quoteText(x.Unit.Name), suggestUnit(x.Unit.Name))
 		}
 		return Value{Q: Quantity{x.Value * u.Factor, u.Dim}, Unit: u.Name}, nil
 	case *Ident:
@@ -115,7 +115,7 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 		}
 		u, ok := lookupUnit(x.Unit.Name)
 		if !ok {
-			return Value{}, errAt(x.Unit.P, "unknown unit %s%s", quoteText(x.Unit.Name), suggest(x.Unit.Name, unitNames()))
+			return Value{}, errAt(x.Unit.P, "unknown unit %s%s", quoteText(x.Unit.Name), suggestUnit(x.Unit.Name))
 		}
 		q, err := convert(v.Q, u.Dim, ev.st.nucleus.GammaBar, ev.st.field, ev.st.nucleus.Name)
 		if err != nil {
