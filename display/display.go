@@ -132,6 +132,10 @@ type Map struct {
 	Label string
 	// Notes are drawn in small text under the figure, as for Profile.
 	Notes []string
+	// Cyclic marks an angle (a phase over ZMin..ZMax, one turn): it is drawn
+	// with a colour wheel, so that both ends of the range share a colour, and
+	// cells sharing a pixel are averaged on the circle.
+	Cyclic bool
 }
 
 // Waveform is a pulse's samples against time for `describe`: amplitude (µT),

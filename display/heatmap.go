@@ -174,7 +174,7 @@ func (m Map) SVG() string {
 	xl.setAxis(&p.X, m.X.Reverse)
 	yl.setAxis(&p.Y, m.Y.Reverse)
 	if nx > 0 {
-		r := &raster{x: xl, y: yl, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi}
+		r := &raster{x: xl, y: yl, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi, cyclic: m.Cyclic}
 		p.Add(r)
 		if len(lines) > 0 {
 			p.Add(lines)
@@ -208,9 +208,13 @@ func (m Map) SVG() string {
 	// The bar: a gradient image, a frame, ticks, labels, the contour level.
 	bx := dc.Max.X + barGap
 	bar := vg.Rectangle{Min: vg.Point{X: bx, Y: dc.Min.Y}, Max: vg.Point{X: bx + barW, Y: dc.Max.Y}}
+	colours := ramp
+	if m.Cyclic {
+		colours = wheel
+	}
 	grad := image.NewNRGBA(image.Rect(0, 0, 1, rampSize))
 	for i := range rampSize {
-		grad.SetNRGBA(0, rampSize-1-i, ramp[i])
+		grad.SetNRGBA(0, rampSize-1-i, colours[i])
 	}
 	full.DrawImage(bar, grad)
 	full.SetLineStyle(draw.LineStyle{Color: color.Black, Width: frameWidth})
@@ -333,6 +337,7 @@ type raster struct {
 	z        [][]float64
 	nx       int
 	zlo, zhi float64
+	cyclic   bool
 }
 
 func (r *raster) DataRange() (xmin, xmax, ymin, ymax float64) {
@@ -357,26 +362,35 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 	if y0 < y1 {
 		reverseRanges(ys)
 	}
+	colours := ramp
+	if r.cyclic {
+		colours = wheel
+	}
 	pal := make(color.Palette, rampSize+1)
-	for i, col := range ramp {
+	for i, col := range colours {
 		pal[i] = col
 	}
 	pal[rampSize] = color.NRGBA{}
 	img := image.NewPaletted(image.Rect(0, 0, len(xs), len(ys)), pal)
 	for py, yr := range ys {
 		for px, xr := range xs {
-			var sum float64
+			var sum, sc, ss float64 // sc, ss: the mean on the circle (cyclic)
 			var n int
 			for j := yr[0]; j < yr[1]; j++ {
 				for i := xr[0]; i < xr[1]; i++ {
 					if v := r.z[j][i]; finite(v) {
 						sum += v
+						s, c := math.Sincos(2 * math.Pi * (v - r.zlo) / (r.zhi - r.zlo))
+						sc, ss = sc+c, ss+s
 						n++
 					}
 				}
 			}
 			idx := uint8(rampSize)
-			if n > 0 {
+			switch {
+			case n > 0 && r.cyclic:
+				idx = uint8(wheelIndex(math.Atan2(ss, sc) / (2 * math.Pi)))
+			case n > 0:
 				idx = uint8(rampIndex((sum/float64(n) - r.zlo) / (r.zhi - r.zlo)))
 			}
 			img.SetColorIndex(px, py, idx)

@@ -139,6 +139,9 @@ func (m Map) json() json.RawMessage {
 	if m.Label != "" {
 		o = o.str("label", m.Label)
 	}
+	if m.Cyclic {
+		o = o.raw("cyclic", []byte("true"))
+	}
 	if len(m.Notes) > 0 {
 		o = o.raw("notes", jsonStrings(m.Notes))
 	}

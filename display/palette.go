@@ -41,6 +41,28 @@ func rampIndex(t float64) int {
 	return int(t*(rampSize-1) + 0.5)
 }
 
+// wheel is the colour scale of cyclic maps (phases): a circle in the OKLab a–b
+// plane at constant lightness and chroma, rampSize hues going once round, so
+// that −180° and +180° meet in one colour and no phase looks larger than
+// another (common practice for phase maps; the lightness and chroma keep every
+// hue inside sRGB).
+var wheel = makeWheel(rampSize)
+
+func makeWheel(n int) []color.NRGBA {
+	out := make([]color.NRGBA, n)
+	for i := range out {
+		s, c := math.Sincos(2 * math.Pi * float64(i) / float64(n))
+		out[i] = fromOKLab(oklab{0.70, 0.10 * c, 0.10 * s})
+	}
+	return out
+}
+
+// wheelIndex returns the wheel colour for t in [0, 1), taken modulo 1.
+func wheelIndex(t float64) int {
+	t -= math.Floor(t)
+	return int(t*rampSize+0.5) % rampSize
+}
+
 type oklab struct{ L, a, b float64 }
 
 func makeRamp(anchors []color.NRGBA, n int) []color.NRGBA {

@@ -1,7 +1,11 @@
 package display
 
 import (
+	"bytes"
+	"encoding/base64"
+	"image"
 	"image/color"
+	"image/png"
 	"math"
 	"regexp"
 	"slices"
@@ -535,4 +539,67 @@ func TestProfileGapKeepsAxis(t *testing.T) {
 	if pos := textX(t, p.SVG()); pos["1"] == 0 {
 		t.Errorf("no tick label 1 at the start of the swept range: %v", pos)
 	}
+}
+
+// A phase map is drawn with the colour wheel: both ends of the range share a
+// colour, every hue has the same OKLab lightness (none reads as larger), and
+// a pixel that covers cells at 179° and −179° is coloured as 180°, not as
+// their arithmetic mean 0°.
+func TestCyclicMap(t *testing.T) {
+	if wheelIndex(0) != wheelIndex(1) || wheelIndex(-0.25) != wheelIndex(0.75) {
+		t.Errorf("wheel indices at 0 and 1: %d, %d; want one colour", wheelIndex(0), wheelIndex(1))
+	}
+	for i, c := range wheel {
+		if l := toOKLab(c).L; math.Abs(l-0.70) > 0.01 {
+			t.Fatalf("wheel colour %d: OKLab L = %.3f, want 0.70 (±0.01, sRGB rounding)", i, l)
+		}
+	}
+	// 400 columns on a narrow plot: several cells share each pixel.
+	n := 400
+	xs := make([]float64, n)
+	row := make([]float64, n)
+	for i := range xs {
+		xs[i] = float64(i)
+		row[i] = 179
+		if i%2 == 1 {
+			row[i] = -179
+		}
+	}
+	m := Map{Title: "phase", X: Axis{Label: "x", Values: xs}, Y: Axis{Label: "y", Values: []float64{0, 1}},
+		Quantity: "phase", Unit: "deg", Z: [][]float64{row, row}, ZMin: -180, ZMax: 180, Cyclic: true}
+	img := mapImage(t, m.SVG())
+	// t = (v − ZMin)/(ZMax − ZMin): ±180° is t = 0 ≡ 1, 0° is t = ½.
+	want, far := wheel[wheelIndex(0)], wheel[wheelIndex(0.5)]
+	near := func(a, b color.NRGBA) bool { // neighbouring wheel entries (rounding of the mean)
+		d := func(x, y uint8) int { return max(int(x)-int(y), int(y)-int(x)) }
+		return d(a.R, b.R) <= 3 && d(a.G, b.G) <= 3 && d(a.B, b.B) <= 3
+	}
+	b := img.Bounds()
+	for x := b.Min.X; x < b.Max.X; x++ {
+		got := color.NRGBAModel.Convert(img.At(x, b.Min.Y)).(color.NRGBA)
+		if !near(got, want) {
+			t.Fatalf("pixel %d: %v, want the colour of ±180° %v (0° is %v)", x, got, want, far)
+		}
+	}
+	if !strings.Contains(string(m.json()), `"cyclic":true`) {
+		t.Error("the JSON does not say the map is cyclic")
+	}
+}
+
+// mapImage decodes the heat map's PNG (the first image of an SVG).
+func mapImage(t *testing.T, svg string) image.Image {
+	t.Helper()
+	sub := regexp.MustCompile(`xlink:href="data:image/png;base64,([^"]*)"`).FindStringSubmatch(svg)
+	if sub == nil {
+		t.Fatal("no PNG image in the SVG")
+	}
+	data, err := base64.StdEncoding.DecodeString(sub[1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return img
 }

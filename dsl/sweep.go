@@ -1178,6 +1178,7 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 		Notes:    append(slices.Clone(axisNotes), energyNote([]*curveData{c})...),
 	}
 	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
+	m.Cyclic = c.quantity.Name == "phase" || c.quantity.Name == "echophase"
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
 	if ok {
 		m.Contour, m.HasContour = level, true
