@@ -1012,7 +1012,11 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		}
 	}
 	if hasPhase {
-		t.Columns = append(t.Columns, display.Column{Name: "phase slope", Unit: "deg/" + unitLabel(a.unit)}, display.Column{Name: "phase off linear", Unit: "deg"})
+		per := "deg/" + unitLabel(a.unit)
+		if unitLabel(a.unit) == "" {
+			per = "deg per unit " + a.kind // a factor axis (b1)
+		}
+		t.Columns = append(t.Columns, display.Column{Name: "phase slope", Unit: per}, display.Column{Name: "phase off linear", Unit: "deg"})
 	}
 	var notes []string
 	for _, c := range curves {
@@ -1039,7 +1043,11 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 				if c.quantity.Name == "echophase" {
 					band = "the band where echo is at least half its maximum"
 				}
-				notes = append(notes, fmt.Sprintf("%s %s: unwrapped, fitted by a line over %s, %s to %s %s; \"off linear\" is the largest deviation from that line.", c.pulse, c.quantity.Name, band, formatNumber(roundSig(x0, 5)), formatNumber(roundSig(x1, 5)), unitLabel(a.unit)))
+				span := formatNumber(roundSig(x0, 5)) + " to " + formatNumber(roundSig(x1, 5))
+				if u := unitLabel(a.unit); u != "" {
+					span += " " + u
+				}
+				notes = append(notes, fmt.Sprintf("%s %s: unwrapped, fitted by a line over %s, %s; \"off linear\" is the largest deviation from that line.", c.pulse, c.quantity.Name, band, span))
 			}
 			continue
 		}
