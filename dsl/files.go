@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -197,9 +198,42 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 	if err != nil {
 		return err
 	}
+	if smp.Phase != nil && (smp.Freq != nil) {
+		warning += phaseFrequencyWarning(p)
+	}
 	ev.st.define(s.Name.Name, &binding{pulse: def})
 	ev.emit(textBundle(pulseSummary(def) + ", from " + s.Path + warning))
 	return nil
+}
+
+// phaseFrequencyWarning checks a file that gives both a phase and a frequency
+// column: the frequency says where the pulse plays and the phase must already
+// hold it (its steps between samples are −2π·f·dwell; a step of π is a sign
+// change of the amplitude, as between a sinc's lobes). When the phase drifts
+// from the one the frequency implies by more than 45° over the pulse, the
+// waveform plays where its phase says while describe measures it where the
+// frequency says: say so.
+func phaseFrequencyWarning(p *shape.Pulse) string {
+	w := p.Wave
+	drift, off := 0.0, 0.0
+	for j := 0; j+1 < w.Len(); j++ {
+		a, b := w.B1[j], w.B1[j+1]
+		if a == 0 || b == 0 {
+			continue
+		}
+		f := p.Center
+		if p.Freq != nil {
+			f = (p.Freq[j] + p.Freq[j+1]) / 2
+		}
+		step := cmplx.Phase(b / a)
+		want := -2 * math.Pi * f * (w.Dwell[j] + w.Dwell[j+1]) / 2
+		drift += math.Remainder(step-want, math.Pi) // modulo sign changes
+		off = math.Max(off, math.Abs(drift))
+	}
+	if off <= math.Pi/4 {
+		return ""
+	}
+	return fmt.Sprintf("\nwarning: the phase column drifts up to %.0f deg from the phase the frequency column implies: the waveform plays where its phase says, but describe and report measure it around the frequency column's centre %s; the frequency column must state what the phase already holds", off*180/math.Pi, Quantity{p.Center, dimFrequency})
 }
 
 // readWaveformCSV reads an export, a plain two-column time/amplitude file, or

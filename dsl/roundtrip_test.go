@@ -39,6 +39,9 @@ func TestExportImportRoundTrip(t *testing.T) {
 			if math.Abs(q.Center-tc.center) > 1e-9*math.Max(1, math.Abs(tc.center)) {
 				t.Errorf("imported centre = %.9g Hz, want %.9g Hz", q.Center, tc.center)
 			}
+			if w := phaseFrequencyWarning(q); w != "" {
+				t.Errorf("an export's phase and frequency columns disagree:%s", w)
+			}
 			if q.Role != p.Role || q.Gradient != p.Gradient {
 				t.Errorf("imported role, gradient = %v, %g T/m, want %v, %g T/m", q.Role, q.Gradient, p.Role, p.Gradient)
 			}
