@@ -17,7 +17,7 @@ var quantityTable = []quantitySpec{
 	{Name: "my", Help: "y magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "mz", Help: "longitudinal magnetization after the pulse (M0 units)", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "mxy", Help: "transverse magnitude |Mx + iMy| after the pulse", Method: "exact piecewise-constant Bloch rotation"},
-	{Name: "phase", Unit: "deg", Help: "phase of Mx + iMy after the pulse, atan2(My, Mx)", Method: "exact piecewise-constant Bloch rotation"},
+	{Name: "phase", Unit: "deg", Help: "phase of Mx + iMy after the pulse, atan2(My, Mx); left out where |Mxy| is below 0.001 (there it is noise)", Method: "exact piecewise-constant Bloch rotation"},
 	{Name: "echo", Help: "crushed spin-echo response of a refocusing pulse: the magnitude |β|² of Mxy+ = −β²·Mxy* (for Mxy* of unit size); a one-axis sweep draws echophase below it", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
 	{Name: "echophase", Unit: "deg", Help: "phase of the crushed spin echo, arg(−β²) (twice the pulse's phase for a hard pulse; linear across offset shifts the echo in time, curvature dephases it); left out where echo is below 0.001; unwrapped along a one-axis sweep, within (−180, 180] on a map", Method: "Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991)"},
 	{Name: "peak", Property: true, Unit: "uT", Help: "peak B1 of the pulse", Method: "largest |B1| sample"},

@@ -456,10 +456,13 @@ func withEchoPhase(qs []quantitySpec) []quantitySpec {
 	return append(out, qs[at+1:]...)
 }
 
-// echoPhaseFloor is the echo magnitude (M0 units) below which its phase is left out
-// (NaN): there the phase says nothing a designer can use, and near a zero of β it is
-// rounding noise.
-const echoPhaseFloor = 1e-3
+// echoPhaseFloor and phaseFloor are the echo and |Mxy| magnitudes (M0 units)
+// below which their phases are left out (NaN): there a phase says nothing a
+// designer can use, and near a zero it is rounding noise.
+const (
+	echoPhaseFloor = 1e-3
+	phaseFloor     = 1e-3
+)
 
 func joinNames(ids []Ident) string {
 	var s []string
@@ -778,8 +781,11 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			case "mxy":
 				v = math.Hypot(res.Mx[j], res.My[j])
 			case "phase":
-				v = math.Atan2(res.My[j], res.Mx[j]) * 180 / math.Pi
 				c.mag[cell(k)] = math.Hypot(res.Mx[j], res.My[j])
+				v = math.NaN()
+				if c.mag[cell(k)] >= phaseFloor {
+					v = math.Atan2(res.My[j], res.Mx[j]) * 180 / math.Pi
+				}
 			case "echo", "echophase":
 				if res.Beta == nil {
 					return errAt(axes[0].pos, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
