@@ -1,10 +1,12 @@
 package dsl
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"maps"
 	"math"
+	"math/cmplx"
 	"slices"
 	"strconv"
 	"strings"
@@ -625,7 +627,10 @@ func (ev *evaluator) pulse(s *PulseStmt) error {
 // adiabatic with a role and misses its target at its own peak (see
 // meetsAdiabaticTarget), else "".
 func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
-	w := rampWarning(def.Pulse)
+	w, err := rampWarning(ev.ctx, def.Pulse)
+	if err != nil {
+		return "", errAt(at, "checking %s's sampling of its centre: %v", def.Name, err)
+	}
 	met, err := meetsAdiabaticTarget(ev.ctx, def.Pulse)
 	if err != nil {
 		return "", errAt(at, "checking %s against its adiabatic threshold: %v", def.Name, err)
@@ -639,9 +644,11 @@ func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
 // rampWarning warns when an off-centre pulse's samples are too coarse for its
 // centre: the phase ramp held over each sample scales the band by
 // sinc(π·center·dwell) (the spectrum of a sample-and-hold) and aliases it beyond
-// 1/(2·dwell). Shapes pick enough samples by default (1/40 cycle each, 0.1 %);
-// this speaks when samples or dwell were given, or for imported data.
-func rampWarning(p *shape.Pulse) string {
+// 1/(2·dwell). Shapes and trains pick enough samples by default (1/40 cycle
+// each, 0.1 %); this speaks when samples or dwell were given, or for imported
+// data. A pulse with a nominal flip is simulated at its centre, since for large
+// flips the loss of rotation is not the field's.
+func rampWarning(ctx context.Context, p *shape.Pulse) (string, error) {
 	dwell := 0.0 // the longest sample that carries field (a train's gaps do not)
 	for j, d := range p.Wave.Dwell {
 		if p.Wave.B1[j] != 0 {
@@ -649,22 +656,30 @@ func rampWarning(p *shape.Pulse) string {
 		}
 	}
 	x := math.Pi * math.Abs(p.Center) * dwell
-	if x == 0 {
-		return ""
+	if x == 0 || 1-math.Sin(x)/x < 0.01 {
+		return "", nil
 	}
-	loss := 1 - math.Sin(x)/x
-	if loss < 0.01 {
-		return ""
+	msg := fmt.Sprintf("\nwarning: the centre %s turns the phase by %s per sample (dwell %s), held over each sample: ", Quantity{p.Center, dimFrequency}.String(), formatNumber(roundSig(math.Abs(p.Center)*dwell*360, 3))+" deg", Quantity{dwell, dimTime}.String())
+	switch {
+	case math.Abs(p.Center)*dwell >= 0.5:
+		msg += "the band aliases and plays elsewhere than the centre"
+	case !math.IsNaN(p.Flip) && !p.Adiabatic && !imported(p):
+		w := p.Wave
+		w.Gradient = nil
+		r, err := physics.Simulate(ctx, &w, p.Gamma, &physics.Isochromats{Offset: []float64{p.Center}}, physics.Options{})
+		if err != nil {
+			return "", err
+		}
+		rot := 2 * math.Asin(math.Min(1, cmplx.Abs(r.Beta[0])))
+		msg += fmt.Sprintf("the simulated rotation at the centre is %s deg for a nominal %s deg", formatNumber(roundSig(rot*180/math.Pi, 4)), formatNumber(roundSig(p.Flip*180/math.Pi, 4)))
+	default:
+		msg += fmt.Sprintf("the field at the centre is weakened by about %s %%", formatNumber(roundSig(100*(1-math.Sin(x)/x), 2)))
 	}
-	turn := math.Abs(p.Center) * dwell * 360
-	need := math.Ceil(40 * math.Abs(p.Center) * p.Duration() * (1 - 1e-12)) // as shapes choose by default
-	msg := fmt.Sprintf("\nwarning: the centre %s turns the phase by %s per sample (dwell %s); held over each sample, the ramp ", Quantity{p.Center, dimFrequency}.String(), formatNumber(roundSig(turn, 3))+" deg", Quantity{dwell, dimTime}.String())
-	if math.Abs(p.Center)*dwell >= 0.5 {
-		msg += "aliases: the band plays elsewhere than the centre"
-	} else {
-		msg += fmt.Sprintf("loses %s %% of the flip at the centre", formatNumber(roundSig(100*loss, 2)))
+	if !imported(p) && p.Shape != "train" {
+		need := math.Ceil(40 * math.Abs(p.Center) * p.Duration() * (1 - 1e-12)) // as shapes choose by default
+		msg += fmt.Sprintf("; %s samples or more (the default) keep it within about 0.1 %%", formatNumber(need))
 	}
-	return msg + fmt.Sprintf("; %s samples or more bring it to about 0.1 %%", formatNumber(need))
+	return msg, nil
 }
 
 // definePulse builds a pulse from a shape call, a copy of a named pulse, or a train.

@@ -70,14 +70,35 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 			total++
 		}
 	}
-	if total > maxSamples {
-		return nil, fmt.Errorf("%s: %d samples in all, want at most %d", name, total, maxSamples)
-	}
 	fc := elements[0].Pulse.Center
 	for _, e := range elements[1:] {
 		if e.Pulse.Center != fc {
 			fc = 0 // different centres: each element keeps its own ramp
 		}
+	}
+	// The train's ramp (its centre, fc + c.Center) is held over each sample:
+	// elements whose samples are too long for it (a hard pulse is one sample)
+	// are split into equal sub-samples of the same field, which is the same
+	// waveform, so the ramp is held over at most 1/centerCyclesPerSample
+	// cycle (see grid).
+	split := make([]int, len(elements))
+	total = 0
+	for i, e := range elements {
+		split[i] = 1
+		if f := math.Abs(fc + c.Center); f != 0 {
+			longest := 0.0
+			for _, d := range e.Pulse.Wave.Dwell {
+				longest = math.Max(longest, d)
+			}
+			split[i] = max(1, int(math.Ceil(centerCyclesPerSample*f*longest-1e-9)))
+		}
+		total += split[i] * e.Pulse.Wave.Len()
+		if i > 0 && gap > 0 {
+			total++
+		}
+	}
+	if total > maxSamples {
+		return nil, fmt.Errorf("%s: %d samples in all, want at most %d", name, total, maxSamples)
 	}
 	p := &Pulse{Shape: name, Gamma: gamma, Role: c.Role, Center: c.Center, Flip: math.NaN(), Adiabatic: adiabatic}
 	w := &p.Wave
@@ -103,8 +124,8 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 		s, co := math.Sincos(e.Phase)
 		rot := complex(co, s)
 		ew := &e.Pulse.Wave
-		w.Dwell = append(w.Dwell, ew.Dwell...)
 		te, t := ew.Duration(), 0.0
+		k := split[i]
 		for j, b := range ew.B1 {
 			if fc != 0 {
 				// Undo applyPhase's ramp of the element (its phase stays).
@@ -112,22 +133,23 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 				b *= complex(co, s)
 				t += ew.Dwell[j]
 			}
-			w.B1 = append(w.B1, b*rot)
-		}
-		if hasGrad {
-			if ew.Gradient != nil {
-				w.Gradient = append(w.Gradient, ew.Gradient...)
-			} else {
-				w.Gradient = append(w.Gradient, make([]float64, ew.Len())...)
-			}
-		}
-		if hasFreq {
-			if e.Pulse.Freq != nil {
-				for _, f := range e.Pulse.Freq {
-					p.Freq = append(p.Freq, f-fc) // applyPhase below adds it back
+			for range k {
+				w.Dwell = append(w.Dwell, ew.Dwell[j]/float64(k))
+				w.B1 = append(w.B1, b*rot)
+				if hasGrad {
+					g := 0.0
+					if ew.Gradient != nil {
+						g = ew.Gradient[j]
+					}
+					w.Gradient = append(w.Gradient, g)
 				}
-			} else {
-				p.Freq = append(p.Freq, make([]float64, ew.Len())...)
+				if hasFreq {
+					f := 0.0
+					if e.Pulse.Freq != nil {
+						f = e.Pulse.Freq[j] - fc // applyPhase below adds it back
+					}
+					p.Freq = append(p.Freq, f)
+				}
 			}
 		}
 	}

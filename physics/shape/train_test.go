@@ -66,6 +66,27 @@ func TestTrainOffCentreCoherent(t *testing.T) {
 	}
 	near(t, "Mz at the centre, s = 0.9", a.Mz[2], -0.998802, 3e-3)
 
+	// The train's own centre on on-carrier hard elements (one sample each):
+	// the elements are split so the ramp is held over at most 1/40 cycle, and
+	// the composite works at the centre as above. Held over whole elements,
+	// the three phases would cancel and leave the band at the carrier.
+	cc := NewCommon()
+	cc.Center = fc
+	h90, err := Rect(common(250e-6, 90*deg), g)
+	mustOK(t, err)
+	h180, err := Rect(common(500e-6, 180*deg), g)
+	mustOK(t, err)
+	own, err := Train([]Element{{h90, 0}, {h180, 90 * deg}, {h90, 0}}, gap, cc)
+	mustOK(t, err)
+	near(t, "own-centre train centre (Hz)", own.Center, fc, 0)
+	if n := own.Wave.Len(); n < 3*30 {
+		t.Errorf("own-centre train has %d samples, want the 1-sample elements split (≥ 30 each)", n)
+	}
+	o := simulate(t, own, offs, []float64{0.9})
+	for i, d := range ds {
+		near(t, fmt.Sprintf("own centre: Mz at centre %+g Hz, s = 0.9", d), o.Mz[i], b.Mz[i], 3e-3)
+	}
+
 	// One element: the train is that element, centre included.
 	c := common(2e-3, 90*deg)
 	c.Center = -2000
