@@ -9,11 +9,6 @@ import (
 	"Nutate/physics/shape"
 )
 
-// thresholdTarget is the level shape.Measure's adiabatic threshold asks of each
-// role (see shape.Properties.Threshold): invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9,
-// refocus |β|² ≥ 0.9, saturate |Mz| ≤ 0.1.
-const thresholdTarget = 0.9
-
 // meetsAdiabaticTarget reports whether an adiabatic pulse with a role meets its
 // role's target at its own peak at the centre of its band. It costs one
 // simulation of one spin, so a `pulse` statement can afford it where the
@@ -34,21 +29,7 @@ func meetsAdiabaticTarget(ctx context.Context, p *shape.Pulse) (bool, error) {
 		return false, err
 	}
 	for i := range offs {
-		var good bool
-		switch p.Role {
-		case shape.RoleInvert:
-			good = r.Mz[i] <= -thresholdTarget
-		case shape.RoleExcite:
-			good = math.Hypot(r.Mx[i], r.My[i]) >= thresholdTarget
-		case shape.RoleRefocus:
-			b := r.Beta[i]
-			good = real(b)*real(b)+imag(b)*imag(b) >= thresholdTarget
-		case shape.RoleSaturate:
-			good = math.Abs(r.Mz[i]) <= 1-thresholdTarget
-		default:
-			good = true
-		}
-		if !good {
+		if !shape.TargetMet(p.Role, p.Flip, r.Mx[i], r.My[i], r.Mz[i], r.Beta[i]) {
 			return false, nil
 		}
 	}

@@ -252,6 +252,10 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	if p.Role != shape.RoleNone {
 		rows = append(rows, []string{"role", p.Role.String()})
 	}
+	if p.Bandwidth == 0 && p.Sweep > 0 {
+		// A sweep that is not a design band (BIR-4's, a file's).
+		rows = append(rows, []string{"frequency sweep", Quantity{p.Sweep, dimFrequency}.String()})
+	}
 	if p.Bandwidth != 0 {
 		rows = append(rows, []string{"bandwidth (design)", Quantity{p.Bandwidth, dimFrequency}.String()})
 	}

@@ -36,6 +36,9 @@ type argSpec struct {
 	Help     string
 	Group    string // arguments of one group exclude each other
 	Required bool
+	// Positive arguments refuse 0 and below: the shapes take 0 as "the
+	// default", so a 0 written by hand would silently become it.
+	Positive bool
 }
 
 // shapeSpec is one row of the shape table.
@@ -131,7 +134,7 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
 			{Name: "order", Kind: argCount, Default: "1", Help: "n of HSn"},
-			{Name: "beta", Dim: dimNumber, Default: "5.3", Help: "truncation: the amplitude falls to sech(beta) at the ends"},
+			{Name: "beta", Dim: dimNumber, Default: "5.3", Positive: true, Help: "truncation: the amplitude falls to sech(beta) at the ends"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
 			return shape.Hsec(b.common(), b.gamma, int(b.num("order", 1)), b.num("bandwidth", 0), b.num("beta", 0))
@@ -157,7 +160,7 @@ var shapes = []*shapeSpec{
 		Method:   "WURST (Kupce & Freeman, J. Magn. Reson. A 115:273, 1995)",
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
-			{Name: "order", Dim: dimNumber, Default: "20", Help: "n of the amplitude 1 − |sin(πt/T)|ⁿ"},
+			{Name: "order", Dim: dimNumber, Default: "20", Positive: true, Help: "n of the amplitude 1 − |sin(πt/T)|ⁿ"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
 			return shape.Wurst(b.common(), b.gamma, b.num("bandwidth", 0), b.num("order", 0))
@@ -171,8 +174,8 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "bandwidth", Dim: dimFrequency, Required: true, Help: "frequency sweep range"},
 			{Name: "flip", Dim: dimAngle, Required: true, Help: "rotation angle, set by the phase jumps (the amplitude is set by peak)"},
-			{Name: "lambda", Dim: dimNumber, Default: "10", Help: "tanh amplitude modulation constant λ"},
-			{Name: "kappa", Dim: dimAngle, Default: "atan(20) = 87.14 deg", Help: "tan frequency modulation constant κ"},
+			{Name: "lambda", Dim: dimNumber, Default: "10", Positive: true, Help: "tanh amplitude modulation constant λ"},
+			{Name: "kappa", Dim: dimAngle, Default: "atan(20) = 87.14 deg", Positive: true, Help: "tan frequency modulation constant κ"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
 			return shape.Bir4(b.common(), b.gamma, b.num("bandwidth", 0), b.num("lambda", 0), b.num("kappa", 0))
@@ -396,7 +399,10 @@ func (ev *evaluator) checkArgValue(as argSpec, v Value, p Pos) error {
 		}
 		return nil
 	}
-	_, err := ev.want(v, as.Dim, as.Name, p)
+	x, err := ev.want(v, as.Dim, as.Name, p)
+	if err == nil && as.Positive && !(x > 0) {
+		return errAt(p, "%s must be positive, got %s (leave it out for the default, %s)", as.Name, v, as.Default)
+	}
 	return err
 }
 

@@ -76,7 +76,7 @@ func Bir4(c Common, gamma float64, bandwidth, lambda, kappa float64) (*Pulse, er
 	P := func(u float64) float64 {
 		return 2 * math.Pi * F / tk * (T / 4) * math.Log(math.Cos(kappa*u)) / kappa
 	}
-	jump := math.Pi + theta/2
+	jump := -(math.Pi + theta/2)
 	u := make([]float64, n)
 	phase := make([]float64, n)
 	freq := make([]float64, n)

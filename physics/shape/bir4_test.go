@@ -29,6 +29,51 @@ func TestBir4FlipInsensitive(t *testing.T) {
 	}
 }
 
+// BIR-4 turns the way a hard pulse of the same phase does (README conventions:
+// phase 0 puts B1 along +x, and a 90° pulse takes +z to +y for positive γ), so
+// that one can replace the other without the signal changing sign: on
+// resonance, +z goes to (−sin φ·sin θ, cos φ·sin θ, cos θ) for both (rotation
+// about the axis at phase φ, Bloch equations), to 2e-2 for BIR-4 (residual
+// non-adiabaticity: at 60 µT over 10 ms it tilts the axis by under 1°; at
+// 20 µT by about 8°, so the check is made well above threshold).
+func TestBir4TurnsLikeAHardPulse(t *testing.T) {
+	g := gammaH(t)
+	for _, tc := range []struct{ theta, phase float64 }{{90, 0}, {45, 90}, {135, 30}} {
+		t.Run(fmt.Sprint(tc.theta, "_", tc.phase), func(t *testing.T) {
+			c := commonPeak(10e-3, 60e-6)
+			c.Flip, c.Phase = tc.theta*deg, tc.phase*deg
+			b, err := Bir4(c, g, 40e3, 0, 0)
+			mustOK(t, err)
+			h, err := Rect(Common{Duration: 250e-6, Flip: tc.theta * deg, Phase: tc.phase * deg, Dwell: math.NaN(), Peak: math.NaN()}, g)
+			mustOK(t, err)
+			rb, rh := simulate(t, b, []float64{0}, nil), simulate(t, h, []float64{0}, nil)
+			th, ph := tc.theta*deg, tc.phase*deg
+			want := [3]float64{-math.Sin(ph) * math.Sin(th), math.Cos(ph) * math.Sin(th), math.Cos(th)}
+			for k, name := range []string{"Mx", "My", "Mz"} {
+				gotB := []float64{rb.Mx[0], rb.My[0], rb.Mz[0]}[k]
+				gotH := []float64{rh.Mx[0], rh.My[0], rh.Mz[0]}[k]
+				near(t, "hard pulse "+name, gotH, want[k], 1e-12)
+				near(t, "BIR-4 "+name, gotB, want[k], 2e-2)
+			}
+		})
+	}
+}
+
+// An excitation's target scales with its flip: |Mxy| ≥ 0.9·sin θ, so a 45°
+// BIR-4 above threshold meets it (|Mxy| = sin 45° ≈ 0.707 ≥ 0.636) where the
+// 90° target of 0.9 could never be met.
+func TestTargetMetExciteFlip(t *testing.T) {
+	if !TargetMet(RoleExcite, 45*deg, 0.70, 0, 0.71, 0) {
+		t.Error("|Mxy| 0.70 after a 45° excitation: want the target met")
+	}
+	if TargetMet(RoleExcite, 45*deg, 0.60, 0, 0.8, 0) {
+		t.Error("|Mxy| 0.60 after a 45° excitation: want the target missed (0.636)")
+	}
+	if !TargetMet(RoleExcite, math.NaN(), 0.95, 0, 0.3, 0) || TargetMet(RoleExcite, math.NaN(), 0.85, 0, 0.5, 0) {
+		t.Error("no nominal flip: want the 90° target |Mxy| ≥ 0.9")
+	}
+}
+
 // The phase jumps fall at T/4 and 3T/4 where the amplitude is zero, and the
 // sweep runs 0 → +F, −F → +F, −F → 0 (Garwood & Ke 1991; from memory).
 func TestBir4Segments(t *testing.T) {

@@ -499,28 +499,40 @@ func (m *meter) met(scales []float64) ([]bool, error) {
 	for s := range ok {
 		ok[s] = true
 	}
-	cosFlip := math.Cos(m.p.Flip)
 	for io := range offs {
 		for s := range scales {
 			i := io*len(scales) + s
-			var good bool
-			switch m.role {
-			case RoleInvert:
-				good = r.Mz[i] <= -thresholdTarget
-			case RoleExcite:
-				good = math.Hypot(r.Mx[i], r.My[i]) >= thresholdTarget
-			case RoleRefocus:
-				b := r.Beta[i]
-				good = real(b)*real(b)+imag(b)*imag(b) >= thresholdTarget
-			case RoleSaturate:
-				good = math.Abs(r.Mz[i]) <= 1-thresholdTarget
-			default:
-				good = math.Abs(r.Mz[i]-cosFlip) <= 1-thresholdTarget
+			var beta complex128
+			if r.Beta != nil {
+				beta = r.Beta[i]
 			}
-			ok[s] = ok[s] && good
+			ok[s] = ok[s] && TargetMet(m.role, m.p.Flip, r.Mx[i], r.My[i], r.Mz[i], beta)
 		}
 	}
 	return ok, nil
+}
+
+// TargetMet tells whether the magnetization after a pulse from +z (and its β)
+// meets the target of the role that the adiabatic threshold asks of every
+// offset it checks: invert Mz ≤ −0.9; excite |Mxy| ≥ 0.9·sin θ (θ the nominal
+// flip, 90° when there is none); refocus |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; no
+// role |Mz − cos θ| ≤ 0.1.
+func TargetMet(r Role, flip, mx, my, mz float64, beta complex128) bool {
+	switch r {
+	case RoleInvert:
+		return mz <= -thresholdTarget
+	case RoleExcite:
+		s := 1.0
+		if !math.IsNaN(flip) {
+			s = math.Abs(math.Sin(flip))
+		}
+		return math.Hypot(mx, my) >= thresholdTarget*s
+	case RoleRefocus:
+		return real(beta)*real(beta)+imag(beta)*imag(beta) >= thresholdTarget
+	case RoleSaturate:
+		return math.Abs(mz) <= 1-thresholdTarget
+	}
+	return math.Abs(mz-math.Cos(flip)) <= 1-thresholdTarget
 }
 
 func (m *meter) thresholdOffsets() []float64 {
