@@ -40,7 +40,11 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	// A methods table of slice-selective pulses gives the gradient and the
 	// (design) slice thickness; roles say what each pulse is for.
 	if slice {
-		cols = append(cols, display.Column{Name: "gradient", Unit: "mT/m"}, display.Column{Name: "design slice thickness", Unit: "mm"})
+		cols = append(cols, display.Column{Name: "gradient", Unit: "mT/m"}, display.Column{Name: "design slice thickness", Unit: "mm"},
+			display.Column{Name: "slice FWHM", Unit: "mm"})
+		if ev.st.field > 0 {
+			cols = append(cols, display.Column{Name: "chemical-shift displacement", Unit: "mm/ppm"})
+		}
 	}
 	if role {
 		cols = append(cols, display.Column{Name: "role"})
@@ -105,14 +109,19 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			row = append(row, th)
 		}
 		if slice {
-			g, th := "—", "—"
+			g, th, fwhm, shift := "—", "—", "—", "—"
 			if p.Gradient != 0 {
 				g = formatNumber(roundSig(p.Gradient*1e3, 5))
 				if p.Bandwidth != 0 {
 					th = formatNumber(roundSig(shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient)*1e3, 5))
 				}
+				fwhm = fmtOpt(pr.Thickness, func(v float64) string { return formatNumber(roundSig(v*1e3, 5)) })
+				shift = fmtOpt(pr.ShiftPerPPM, func(v float64) string { return formatNumber(roundSig(v*1e3, 5)) })
 			}
-			row = append(row, g, th)
+			row = append(row, g, th, fwhm)
+			if ev.st.field > 0 {
+				row = append(row, shift)
+			}
 		}
 		if role {
 			r := "—"
