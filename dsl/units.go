@@ -3,6 +3,7 @@ package dsl
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 )
 
@@ -228,8 +229,9 @@ func formatNumber(v float64) string {
 	if a >= 1e-4 && a < 1e7 {
 		s := fmt.Sprintf("%.6g", v)
 		if strings.ContainsAny(s, "e") {
-			s = fmt.Sprintf("%f", v)
-			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+			// 10⁶ to 10⁷: %g turns to an exponent; write the six significant
+			// digits out instead (2885240, not 2885235.214247).
+			s = strconv.FormatFloat(roundSig(v, 6), 'f', -1, 64)
 		}
 		return s
 	}

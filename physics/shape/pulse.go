@@ -337,7 +337,10 @@ func (p *Pulse) setSlice(c Common) error {
 			return fmt.Errorf("%s: thickness must be positive, got %g m", p.Shape, c.Thickness)
 		}
 		if p.Bandwidth == 0 {
-			return fmt.Errorf("%s: thickness needs a pulse with a bandwidth", p.Shape)
+			if p.Sweep > 0 {
+				return fmt.Errorf("%s: thickness needs a design band, and this pulse's bandwidth is a frequency sweep, which sets no slice: give gradient instead", p.Shape)
+			}
+			return fmt.Errorf("%s: thickness needs a pulse with a bandwidth: give gradient instead", p.Shape)
 		}
 		g = 2 * math.Pi * p.Bandwidth / (math.Abs(p.Gamma) * c.Thickness)
 	}
