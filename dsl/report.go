@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"html"
 	"math"
+	"regexp"
 	"strings"
 
 	"Nutate/display"
@@ -207,16 +208,36 @@ func markdownTable(t display.Table) string {
 }
 
 var latexEscaper = strings.NewReplacer(`\`, `\textbackslash{}`, "&", `\&`, "%", `\%`, "$", `\$`, "#", `\#`, "_", `\_`, "{", `\{`, "}", `\}`,
-	"µ", `$\mu$`, "²", `$^2$`, "·", `$\cdot$`, "×", `$\times$`, "∫", `$\int$`, "—", "--", "–", "--")
+	"µ", `$\mu$`, "²", `$^2$`, "·", `$\cdot$`, "×", `$\times$`, "∫", `$\int$`, "—", "--", "–", "--",
+	"†", `$^\dagger$`, "±", `$\pm$`, "¼", `$\frac{1}{4}$`, "°", `$^\circ$`, "≤", `$\le$`, "≥", `$\ge$`, "−", `$-$`)
+
+// Field and nucleus names typeset as a manuscript writes them: B0 and B1 as
+// $B_0$, $B_1$, a nuclide such as 31P as $^{31}$P.
+var (
+	latexField   = regexp.MustCompile(`\bB([01])\b`)
+	latexNuclide = regexp.MustCompile(`\b(\d{1,3})([A-Z][a-z]?)\b`)
+)
+
+// latexText escapes running text for LaTeX.
+func latexText(s string) string {
+	s = latexEscaper.Replace(s)
+	s = latexField.ReplaceAllString(s, `$$B_$1$$`)
+	return latexNuclide.ReplaceAllString(s, `$$^{$1}$$$2`)
+}
 
 func latexTable(t display.Table) string {
 	var b strings.Builder
 	b.WriteString("\\begin{table}\n\\centering\n")
-	fmt.Fprintf(&b, "\\caption{%s}\n", latexEscaper.Replace(t.Title))
+	fmt.Fprintf(&b, "\\caption{%s}\n", latexText(t.Title))
+	// A wide table is scaled to the text width (\\resizebox needs graphicx).
+	wide := len(t.Columns) > 10
+	if wide {
+		b.WriteString("% \\resizebox needs \\usepackage{graphicx}\n\\resizebox{\\textwidth}{!}{%\n")
+	}
 	b.WriteString("\\begin{tabular}{" + strings.Repeat("l", len(t.Columns)) + "}\n\\hline\n")
 	var heads []string
 	for _, c := range t.Columns {
-		heads = append(heads, latexEscaper.Replace(colHead(c)))
+		heads = append(heads, latexText(colHead(c)))
 	}
 	b.WriteString(strings.Join(heads, " & ") + " \\\\\n\\hline\n")
 	for _, r := range t.Rows {
@@ -227,8 +248,11 @@ func latexTable(t display.Table) string {
 		b.WriteString(strings.Join(cells, " & ") + " \\\\\n")
 	}
 	b.WriteString("\\hline\n\\end{tabular}\n")
+	if wide {
+		b.WriteString("}\n")
+	}
 	for _, n := range t.Notes {
-		b.WriteString("\n\\par\\footnotesize " + latexEscaper.Replace(n) + "\n")
+		b.WriteString("\n\\par\\footnotesize " + latexText(n) + "\n")
 	}
 	b.WriteString("\\end{table}\n")
 	return b.String()
