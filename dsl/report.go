@@ -70,10 +70,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		}
 		p := d.Pulse
 		gb := gammaBarOf(p)
-		shp := d.Kind
-		if d.Spec != nil {
-			shp = describeShape(d)
-		}
+		shp := describeShape(d)
 		flip := "—"
 		if !math.IsNaN(p.Flip) && !imported(p) {
 			flip = formatNumber(roundSig(p.Flip*180/math.Pi, 5))
@@ -162,15 +159,47 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	return nil
 }
 
-// describeShape names the shape with its defining arguments: "sinc, TBW 6, hann".
+// describeShape names the shape with the arguments that define it, as a
+// methods section needs them: each of the shape's own arguments as given, or
+// its default (a group of alternatives, such as tbw or lobes, by the one
+// given); a train by its elements, their phases and the gap.
 func describeShape(d *pulseDef) string {
+	if d.Kind == "train" {
+		var els []string
+		for _, e := range d.Elems {
+			s := e.Def.Name
+			if e.Phase != 0 {
+				s += " at " + formatNumber(roundSig(e.Phase*180/math.Pi, 6)) + " deg"
+			}
+			els = append(els, s)
+		}
+		out := "train of " + strings.Join(els, ", ")
+		if a, ok := d.Args["gap"]; ok && a.Val.Q.V != 0 {
+			out += "; gap " + a.Val.String()
+		}
+		return out
+	}
+	if d.Spec == nil {
+		return d.Kind
+	}
 	parts := []string{d.Kind}
-	for _, n := range []string{"tbw", "lobes", "window", "order", "design", "cutoff", "beta"} {
-		if a, ok := d.Args[n]; ok {
-			if a.Word != "" {
-				parts = append(parts, a.Word)
-			} else {
-				parts = append(parts, n+" "+a.Val.String())
+	groups := map[string]bool{}
+	for _, as := range d.Spec.Args {
+		if _, ok := d.Args[as.Name]; ok && as.Group != "" {
+			groups[as.Group] = true
+		}
+	}
+	for _, as := range d.Spec.Args {
+		a, given := d.Args[as.Name]
+		switch {
+		case given && a.Word != "":
+			parts = append(parts, as.Name+" "+a.Word)
+		case given:
+			parts = append(parts, as.Name+" "+a.Val.String())
+		case as.Default != "" && !groups[as.Group]:
+			parts = append(parts, as.Name+" "+as.Default)
+			if as.Group != "" {
+				groups[as.Group] = true
 			}
 		}
 	}
