@@ -270,6 +270,7 @@ type builder struct {
 	vals  map[string]float64
 	words map[string]string
 	gamma float64
+	ctx   context.Context // for long designs (slr) to stop on an interrupt
 }
 
 func (b *builder) num(name string, def float64) float64 {
@@ -408,7 +409,7 @@ func (ev *evaluator) checkArgValue(as argSpec, v Value, p Pos) error {
 
 // resolve turns evaluated arguments into base-unit numbers for the builder.
 func (ev *evaluator) resolve(spec *shapeSpec, args map[string]argVal) (*builder, error) {
-	b := &builder{vals: map[string]float64{}, words: map[string]string{}, gamma: ev.st.nucleus.Gamma()}
+	b := &builder{vals: map[string]float64{}, words: map[string]string{}, gamma: ev.st.nucleus.Gamma(), ctx: ev.ctx}
 	for name, a := range args {
 		as, _ := spec.arg(name)
 		switch as.Kind {

@@ -1,6 +1,7 @@
 package dsl
 
 import (
+	"context"
 	"errors"
 
 	"Nutate/physics/shape"
@@ -31,5 +32,9 @@ func buildSLR(b *builder) (*shape.Pulse, error) {
 		d, _ := slr.ParseDesign(w)
 		spec.Design = d
 	}
-	return slr.Pulse(spec, c, b.gamma)
+	ctx := b.ctx
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	return slr.PulseContext(ctx, spec, c, b.gamma)
 }
