@@ -31,10 +31,14 @@ func cmdRun(args []string) int {
 	asJSON := fs.Bool("json", false, "scripts: print one JSON object (the MIME bundle) per output line")
 	check := fs.Bool("check", false, "notebooks: re-execute and fail if the stored outputs differ from fresh ones")
 	var sets setFlags
-	fs.Var(&sets, "set", "NAME=VALUE: the script's `let NAME = ...` takes VALUE instead (repeatable)")
+	fs.Var(&sets, "set", "")
 	fs.Usage = func() {
-		fmt.Fprintln(os.Stderr, "usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...")
-		fs.PrintDefaults()
+		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...
+  --output F          notebooks: write the executed notebook to F instead of in place (one input file)
+  --json              scripts: print one JSON object (the MIME bundle) per output
+  --check             notebooks: re-execute and fail if the stored outputs differ from fresh ones
+  --set NAME=VALUE    "let NAME = ..." in the file takes VALUE instead (repeatable)
+`)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
 	// all are parsed before any file is touched.
@@ -67,14 +71,18 @@ func cmdRun(args []string) int {
 	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
 	for _, f := range files {
 		var err error
-		if strings.EqualFold(filepath.Ext(f), ".ipynb") {
+		isNotebook := strings.EqualFold(filepath.Ext(f), ".ipynb")
+		switch {
+		case isNotebook && *asJSON:
+			err = fmt.Errorf("--json prints a script's outputs; a notebook keeps them in its cells (drop --json)")
+		case isNotebook:
 			err = r.notebook(ctx, f, *output)
-		} else {
-			if *check {
-				err = fmt.Errorf("--check compares a notebook's stored outputs; %s is a script", f)
-			} else {
-				err = r.script(ctx, f)
-			}
+		case *check:
+			err = fmt.Errorf("--check compares a notebook's stored outputs; %s is a script", f)
+		case *output != "":
+			err = fmt.Errorf("--output writes an executed notebook; a script's outputs go to standard output (redirect them)")
+		default:
+			err = r.script(ctx, f)
 		}
 		if err != nil {
 			fmt.Fprintf(os.Stderr, "nutate run: %s: %v\n", f, err)

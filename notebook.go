@@ -170,7 +170,7 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 	}
 	lang := languageInfo()
 	meta["kernelspec"] = map[string]any{"name": "nutate", "display_name": "Nutate (RF pulses)", "language": "nutate"}
-	meta["language_info"] = map[string]any{"name": lang.Name, "version": lang.Version, "mimetype": lang.Mimetype, "file_extension": lang.FileExtension}
+	meta["language_info"] = map[string]any{"name": lang.Name, "version": lang.Version, "mimetype": lang.Mimetype, "file_extension": lang.FileExtension, "pygments_lexer": lang.PygmentsLexer}
 	settings := []any{}
 	for _, s := range r.sets {
 		settings = append(settings, s)
@@ -186,12 +186,20 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 	if err != nil {
 		return err
 	}
+	if k := kernelOf(nb); k != "" && k != "nutate" {
+		return fmt.Errorf("a notebook for the %q kernel, not Nutate: nothing was run or written", k)
+	}
 	if r.check {
 		stored, err := readNotebook(file)
 		if err != nil {
 			return err
 		}
-		if err := r.execute(ctx, file, nb); err != nil {
+		rc := *r
+		if len(rc.sets) == 0 {
+			// Re-run as the notebook was run: with the settings it records.
+			rc.sets = recordedSettings(nb)
+		}
+		if err := rc.execute(ctx, file, nb); err != nil {
 			return err
 		}
 		if diff := firstDifference(stored, nb); diff != "" {
@@ -201,6 +209,11 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 		return nil
 	}
 	runErr := r.execute(ctx, file, nb)
+	if runErr != nil && output == "" {
+		// In place, a failed run would replace the stored outputs of the cells
+		// after the failure with nothing: keep the file as it was.
+		return fmt.Errorf("%w\nthe notebook was not written (its stored outputs are kept); to see the partial run, write it elsewhere with --output FILE", runErr)
+	}
 	raw, err := nb.encode()
 	if err != nil {
 		return err
@@ -212,10 +225,35 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 		return err
 	}
 	if runErr != nil {
-		return runErr
+		return fmt.Errorf("%w\nwritten to %s with the error in its cell and the later cells cleared", runErr, output)
 	}
 	fmt.Fprintf(r.stdout, "%s: executed, written to %s\n", file, output)
 	return nil
+}
+
+// kernelOf is the kernel a notebook's metadata names ("" when it names none).
+func kernelOf(nb notebook) string {
+	meta, _ := nb["metadata"].(map[string]any)
+	if ks, ok := meta["kernelspec"].(map[string]any); ok {
+		if name, ok := ks["name"].(string); ok {
+			return name
+		}
+	}
+	return ""
+}
+
+// recordedSettings are the --set values a notebook's metadata records.
+func recordedSettings(nb notebook) setFlags {
+	meta, _ := nb["metadata"].(map[string]any)
+	nm, _ := meta["nutate"].(map[string]any)
+	list, _ := nm["settings"].([]any)
+	var out setFlags
+	for _, v := range list {
+		if s, ok := v.(string); ok {
+			out = append(out, s)
+		}
+	}
+	return out
 }
 
 // firstDifference describes the first place where the code-cell outputs of two
@@ -233,6 +271,7 @@ func firstDifference(stored, fresh notebook) string {
 		}
 		ao, _ := a["outputs"].([]any)
 		bo, _ := b["outputs"].([]any)
+		ao, bo = withoutEmptyDisplays(ao), withoutEmptyDisplays(bo)
 		for k := 0; k < max(len(ao), len(bo)); k++ {
 			if k >= len(ao) {
 				return fmt.Sprintf("cell %d: output %d is missing from the stored notebook", i+1, k+1)
@@ -246,6 +285,27 @@ func firstDifference(stored, fresh notebook) string {
 		}
 	}
 	return ""
+}
+
+// withoutEmptyDisplays drops display outputs whose data is an empty text: the
+// kernel's progress display ends so (cleared by an update when the work is
+// done), and a notebook run by a Jupyter client keeps it; a headless run has
+// none.
+func withoutEmptyDisplays(outs []any) []any {
+	var kept []any
+	for _, o := range outs {
+		m, _ := o.(map[string]any)
+		if m["output_type"] == "display_data" {
+			data, _ := m["data"].(map[string]any)
+			if len(data) == 1 && strings.TrimSpace(dataText(data["text/plain"])) == "" {
+				if _, ok := data["text/plain"]; ok {
+					continue
+				}
+			}
+		}
+		kept = append(kept, o)
+	}
+	return kept
 }
 
 func outputDifference(a, b any) string {

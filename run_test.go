@@ -96,12 +96,28 @@ func TestCheckCatchesEditedOutput(t *testing.T) {
 func TestRunStopsAtFirstError(t *testing.T) {
 	dir := t.TempDir()
 	f := writeNotebook(t, dir, "let a = 1 ms", "let b = a + 1 kHz", "print a")
+	before, err := os.ReadFile(f)
+	if err != nil {
+		t.Fatal(err)
+	}
 	var out bytes.Buffer
 	r := runner{stdout: &out, stderr: &out}
-	if err := r.notebook(context.Background(), f, ""); err == nil {
-		t.Fatal("run of a failing notebook succeeded")
+	// In place, a failure leaves the file as it was (the stored outputs of
+	// the later cells are not lost).
+	err = r.notebook(context.Background(), f, "")
+	if err == nil || !strings.Contains(err.Error(), "not written") {
+		t.Fatalf("in-place run of a failing notebook: err %v, want a failure saying the notebook was not written", err)
 	}
-	nb, err := readNotebook(f)
+	if after, _ := os.ReadFile(f); !bytes.Equal(after, before) {
+		t.Error("a failed in-place run changed the notebook")
+	}
+	// With --output the partial run is written there: the error in its cell,
+	// the cells after it cleared.
+	partial := filepath.Join(dir, "partial.ipynb")
+	if err := r.notebook(context.Background(), f, partial); err == nil || !strings.Contains(err.Error(), "written to "+partial) {
+		t.Fatalf("run with --output: err %v, want a failure naming where it wrote", err)
+	}
+	nb, err := readNotebook(partial)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -112,6 +128,59 @@ func TestRunStopsAtFirstError(t *testing.T) {
 	}
 	if n := len(cells[2].(map[string]any)["outputs"].([]any)); n != 0 {
 		t.Errorf("cell 3 ran after the error: %d outputs", n)
+	}
+}
+
+// A notebook of another kernel is neither run nor written.
+func TestRunRefusesOtherKernels(t *testing.T) {
+	dir := t.TempDir()
+	f := filepath.Join(dir, "py.ipynb")
+	src := `{"cells": [{"cell_type": "code", "execution_count": 1, "id": "a", "metadata": {}, "outputs": [{"output_type": "execute_result", "execution_count": 1, "data": {"text/plain": "2"}, "metadata": {}}], "source": "1 + 1"}], "metadata": {"kernelspec": {"name": "python3", "display_name": "Python 3", "language": "python"}}, "nbformat": 4, "nbformat_minor": 5}`
+	if err := os.WriteFile(f, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	r := runner{stdout: &out, stderr: &out}
+	if err := r.notebook(context.Background(), f, ""); err == nil || !strings.Contains(err.Error(), `"python3" kernel`) {
+		t.Fatalf("err %v, want a refusal naming the python3 kernel", err)
+	}
+	if after, _ := os.ReadFile(f); string(after) != src {
+		t.Error("the Python notebook was changed")
+	}
+}
+
+// --check re-runs with the settings the notebook records, and ignores the
+// empty display a Jupyter client keeps where the progress display ended.
+func TestCheckUsesRecordedSettingsAndIgnoresProgressLeftovers(t *testing.T) {
+	dir := t.TempDir()
+	f := writeNotebook(t, dir, "let tbw = 4", "print tbw")
+	var out bytes.Buffer
+	r := runner{sets: []string{"tbw=8"}, stdout: &out, stderr: &out}
+	if err := r.notebook(context.Background(), f, ""); err != nil {
+		t.Fatal(err)
+	}
+	check := runner{check: true, stdout: &out, stderr: &out}
+	if err := check.notebook(context.Background(), f, ""); err != nil {
+		t.Fatalf("--check of a notebook run with --set tbw=8: %v", err)
+	}
+	// A Jupyter client's run keeps the finished progress display as an empty
+	// display_data output.
+	nb, err := readNotebook(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cell := nb["cells"].([]any)[1].(map[string]any)
+	empty := map[string]any{"output_type": "display_data", "data": map[string]any{"text/plain": ""}, "metadata": map[string]any{}}
+	cell["outputs"] = append([]any{empty}, cell["outputs"].([]any)...)
+	raw, err := nb.encode()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(f, raw, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := check.notebook(context.Background(), f, ""); err != nil {
+		t.Fatalf("--check with a leftover empty progress display: %v", err)
 	}
 }
 
@@ -189,5 +258,24 @@ func TestRunFlagsAfterFiles(t *testing.T) {
 	}
 	if raw, err := os.ReadFile(out); err != nil || !bytes.Contains(raw, []byte("23.48")) {
 		t.Errorf("--output file not written with the result: %v", err)
+	}
+}
+
+// Flags that do not apply to a file are errors, not silently ignored.
+func TestRunInapplicableFlags(t *testing.T) {
+	dir := t.TempDir()
+	nb := writeNotebook(t, dir, "print 1")
+	script := filepath.Join(dir, "s.nut")
+	if err := os.WriteFile(script, []byte("print 1\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "o.nut")
+	for _, args := range [][]string{{"run", "--json", nb}, {"run", "--output", out, script}} {
+		if code := realMain(args); code != 1 {
+			t.Errorf("nutate %v: exit %d, want 1", args, code)
+		}
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("--output with a script wrote %s", out)
 	}
 }
