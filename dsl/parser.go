@@ -49,16 +49,17 @@ func parse(src string) ([]Stmt, []*Error) {
 func parseCell(src string) (stmts []Stmt, errs []*Error, cut int) {
 	el := &errorList{src: src}
 	toks := tokenize(src, el)
+	scanErrs := sortErrors(el.errs)
 	p := &parser{src: src, toks: toks, errs: el, bad: -1}
 	stmts = p.statements()
 	errs = sortErrors(el.errs)
 	cut = len(src)
 	if p.bad >= 0 {
-		cut = p.bad
+		cut = p.bad // the first statement that did not parse (`;` keeps those before it on its line)
 	}
-	if len(errs) > 0 {
-		// A scanner fault is cut at the start of its line.
-		cut = min(cut, strings.LastIndexByte(src[:min(errs[0].Pos.Offset, len(src))], '\n')+1)
+	if len(scanErrs) > 0 {
+		// A scanner fault belongs to no statement: cut at the start of its line.
+		cut = min(cut, strings.LastIndexByte(src[:min(scanErrs[0].Pos.Offset, len(src))], '\n')+1)
 	}
 	return stmts, errs, cut
 }

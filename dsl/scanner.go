@@ -52,7 +52,12 @@ type token struct {
 
 func (t token) describe() string {
 	switch t.Kind {
-	case tEOF, tNewline:
+	case tNewline:
+		if t.Text == ";" {
+			return "`;` (end of statement)"
+		}
+		return t.Kind.String()
+	case tEOF:
 		return t.Kind.String()
 	case tString:
 		return "string " + t.Text
