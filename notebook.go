@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"Nutate/display"
+	"Nutate/dsl"
 )
 
 // nbformat 4 notebooks are kept as generic JSON so that fields this program does not
@@ -121,7 +122,7 @@ func errorOutput(err error) map[string]any {
 	for i, l := range tb {
 		tbAny[i] = l
 	}
-	name := "NutateError"
+	name := dsl.ErrorName
 	if errors.Is(err, context.Canceled) {
 		name = "Interrupted"
 	}

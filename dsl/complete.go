@@ -31,8 +31,9 @@ func wordAt(rs []rune, cursor int) (int, int) {
 func (s *Session) Complete(code string, cursor int) ([]string, int, int) {
 	rs := []rune(code)
 	start, end := wordAt(rs, cursor)
-	// A unit glued to a number (`250u`): complete the unit only.
-	if start < len(rs) && rs[start] >= '0' && rs[start] <= '9' {
+	// A unit glued to a number (`250u`): complete the unit only. A nuclide
+	// (`13C`) is one word: `nucleus 13` completes to 13C as a whole.
+	if st := stmtTokens(string(rs[:start])); start < len(rs) && rs[start] >= '0' && rs[start] <= '9' && !(len(st) > 0 && st[0].Text == "nucleus") {
 		errs := &errorList{}
 		sc := newScanner(string(rs[start:end]), errs)
 		if t := sc.next(); t.Kind == tNumber {
@@ -147,7 +148,7 @@ func (c completer) candidates(before, prefix string) []string {
 			return quantityNames()
 		case "with":
 			if first == "import" {
-				return []string{"dwell"}
+				return importSettings
 			}
 			if first == "describe" {
 				return []string{"tr"}
@@ -157,6 +158,17 @@ func (c completer) candidates(before, prefix string) []string {
 	}
 	if clause == "with" && last.Kind == tAssign && len(toks) >= 2 && toks[len(toks)-2].Text == "start" {
 		return []string{"z", "-z", "x", "y"}
+	}
+	if clause == "with" && last.Kind == tAssign && len(toks) >= 2 && toks[len(toks)-2].Text == "role" {
+		return []string{"excite", "invert", "refocus", "saturate"}
+	}
+	if first == "report" && clause == "" && len(toks) >= 2 && last.Kind == tIdent && !(len(toks) == 2 && prefix != "") {
+		return []string{"as"}
+	}
+	if first == "sweep" && clause == "over" && last.Kind == tIdent {
+		if _, ok := lookupUnit(last.Text); ok {
+			return []string{"to", "points", "step", "show", "with", "in"}
+		}
 	}
 	if first == "export" && len(toks) == 1 {
 		return append(c.st.pulseNames(), "sweep")

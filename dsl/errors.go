@@ -83,6 +83,13 @@ func (e *CellError) Traceback() []string {
 // interrupt.
 func (e *CellError) Unwrap() error { return e.err }
 
+// ErrorName is the name a cell's error carries in Jupyter (ename) and in
+// notebooks written headless: one name for both.
+func (e *CellError) ErrorName() string { return ErrorName }
+
+// ErrorName names a failed cell's error.
+const ErrorName = "NutateError"
+
 // sortErrors orders errors by position and keeps the first on each line.
 func sortErrors(errs []*Error) []*Error {
 	sort.SliceStable(errs, func(i, j int) bool { return errs[i].Pos.Offset < errs[j].Pos.Offset })
@@ -114,9 +121,17 @@ func errAt(p Pos, format string, args ...any) error {
 // small edit distance, or "".
 func suggest(word string, candidates []string) string {
 	best, bestD := "", 1<<30
+	first := func(s string) rune { r, _ := utf8.DecodeRuneInString(s); return r }
 	for _, c := range candidates {
 		d := editDistance(strings.ToLower(word), strings.ToLower(c))
-		if d < bestD || (d == bestD && c < best) {
+		// Ties go to a candidate that starts as the word does (dg → deg, not
+		// G), then to the first in order.
+		better := d < bestD
+		if d == bestD {
+			cf, bf := first(c) == first(word), first(best) == first(word)
+			better = cf && !bf || cf == bf && c < best
+		}
+		if better {
 			best, bestD = c, d
 		}
 	}

@@ -188,7 +188,13 @@ func TestComplete(t *testing.T) {
 		{"print 1 kHz in u", []string{"uT"}, nil},
 		{"describe h", []string{"hard"}, nil},
 		{"print t", []string{"te"}, nil},
-		{"nucleus 3", []string{"31P", "3He"}, nil},
+		{"nucleus 3", []string{"31P", "3He"}, []string{"129Xe"}},
+		{"nucleus 13", []string{"13C"}, []string{"1H", "31P"}},
+		{`import w from "a.csv" with fl`, []string{"flip"}, nil},
+		{`import w from "a.csv" with `, []string{"dwell", "flip", "peak", "role"}, []string{"offset"}},
+		{`import w from "a.csv" with role = i`, []string{"invert"}, nil},
+		{"report hard ", []string{"as"}, nil},
+		{"sweep hard over offset -1 kHz to 1 kHz ", []string{"points", "step"}, nil},
 		{"report hard as m", []string{"markdown"}, nil},
 		{"help sw", []string{"sweep"}, nil},
 	}
@@ -207,6 +213,10 @@ func TestComplete(t *testing.T) {
 		if end != len([]rune(c.code)) || start > end {
 			t.Errorf("Complete(%q) range %d..%d", c.code, start, end)
 		}
+	}
+	// A nuclide is one word: accepting 13C replaces "13", not the text after it.
+	if _, start, _ := s.Complete("nucleus 13", 10); start != 8 {
+		t.Errorf("Complete(\"nucleus 13\") starts at %d, want 8", start)
 	}
 }
 
