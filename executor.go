@@ -65,6 +65,11 @@ func (e *languageExecutor) IsComplete(code string) (string, string) { return dsl
 
 func (e *languageExecutor) Language() kernel.LanguageInfo { return languageInfo() }
 
+// readmeURL is where the README is published; the kernel's help links point at
+// its sections. Set it for a build with
+// -ldflags "-X main.readmeURL=https://host/path/README".
+var readmeURL = "https://github.com/nutate/nutate"
+
 // languageInfo describes the language for kernel_info and notebook metadata.
 func languageInfo() kernel.LanguageInfo {
 	return kernel.LanguageInfo{
@@ -75,8 +80,9 @@ func languageInfo() kernel.LanguageInfo {
 		PygmentsLexer: "text",
 		Banner:        "Nutate " + version + ": RF pulse design and exact Bloch simulation. Type `help` for the language.",
 		HelpLinks: []kernel.HelpLink{
-			{Text: "Nutate language", URL: "https://github.com/nutate/nutate#language-quick-reference"},
-			{Text: "Conventions", URL: "https://github.com/nutate/nutate#conventions"},
+			{Text: "Nutate language", URL: readmeURL + "#language-quick-reference"},
+			{Text: "Conventions", URL: readmeURL + "#conventions"},
+			{Text: "RF safety", URL: readmeURL + "#rf-safety"},
 		},
 	}
 }

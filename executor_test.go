@@ -2,7 +2,10 @@ package main
 
 import (
 	"context"
+	"os"
+	"strings"
 	"testing"
+	"unicode"
 
 	"Nutate/kernel"
 )
@@ -46,6 +49,40 @@ func TestProgressDisplayCleared(t *testing.T) {
 			if text, _ := o.Data["text/plain"].(string); !o.Update || text != "" {
 				t.Errorf("progress display %s not cleared at the end: %+v", id, o)
 			}
+		}
+	}
+}
+
+// The help links point at sections that exist: each anchor is the GitHub-style
+// slug of a README heading (lower case, spaces to hyphens, punctuation dropped).
+func TestHelpLinksNameReadmeSections(t *testing.T) {
+	readme, err := os.ReadFile("README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	slugs := map[string]bool{}
+	for _, line := range strings.Split(string(readme), "\n") {
+		if h, ok := strings.CutPrefix(line, "## "); ok {
+			var b strings.Builder
+			for _, r := range strings.ToLower(h) {
+				switch {
+				case r == ' ':
+					b.WriteRune('-')
+				case r == '-' || unicode.IsLetter(r) || unicode.IsDigit(r):
+					b.WriteRune(r)
+				}
+			}
+			slugs[b.String()] = true
+		}
+	}
+	links := languageInfo().HelpLinks
+	if len(links) == 0 {
+		t.Fatal("no help links")
+	}
+	for _, l := range links {
+		base, anchor, ok := strings.Cut(l.URL, "#")
+		if !ok || base != readmeURL || !slugs[anchor] {
+			t.Errorf("help link %q → %q: want %s#<a README heading>, headings %v", l.Text, l.URL, readmeURL, slugs)
 		}
 	}
 }
