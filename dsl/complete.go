@@ -263,7 +263,7 @@ func (s *Session) Inspect(code string, cursor int) (string, bool) {
 	if start == end && start > 0 {
 		start, end = wordAt(rs, start-1)
 	}
-	if start < end && rs[start] >= '0' && rs[start] <= '9' {
+	if _, nuclide := physics.Lookup(string(rs[start:end])); start < end && rs[start] >= '0' && rs[start] <= '9' && !nuclide {
 		sc := newScanner(string(rs[start:end]), &errorList{})
 		if t := sc.next(); t.Kind == tNumber {
 			start += len([]rune(t.Text))

@@ -271,6 +271,10 @@ func wordHelp(w string) (string, bool) {
 		parts = append(parts, "`at PHASE` after a train element plays it at that phase")
 	case "as":
 		parts = append(parts, "`report ... as markdown` or `as latex`")
+	case "markdown", "latex":
+		parts = append(parts, w+" (report format)\n  `report NAME, ... as "+w+"`: the methods table as "+map[string]string{"markdown": "a Markdown table", "latex": "a LaTeX table environment to paste into a manuscript (a wide one needs \\usepackage{graphicx})"}[w])
+	case "z", "-z", "x", "y":
+		parts = append(parts, w+" (start magnetization, `with start = "+w+"`)\n  the spins begin along "+w+" (default z, thermal equilibrium)")
 	case "window", "hann", "hamming", "none":
 		if w != "window" {
 			parts = append(parts, w+" (sinc window)\n  none: 1; Hann: 0.5 + 0.5·cos(2πt/T); Hamming: 0.54 + 0.46·cos(2πt/T), t from the pulse's middle (common practice)")

@@ -356,3 +356,22 @@ func TestHostileInputs(t *testing.T) {
 		})
 	}
 }
+
+// Inspection knows nuclide names (one word, digits first), report formats and
+// start values.
+func TestInspectNuclideAndWords(t *testing.T) {
+	s := NewSession(t.TempDir())
+	for _, c := range []struct {
+		code string
+		want string
+	}{
+		{"nucleus 13C", "13C (nucleus)"},
+		{"report p as latex", "latex (report format)"},
+		{"sweep p over offset 0 Hz to 1 Hz points 2 with start = x", "x (start magnetization"},
+	} {
+		text, ok := s.Inspect(c.code, len([]rune(c.code)))
+		if !ok || !strings.Contains(text, c.want) {
+			t.Errorf("Inspect(%q) = %q, %v; want it to contain %q", c.code, text, ok, c.want)
+		}
+	}
+}
