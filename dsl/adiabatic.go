@@ -29,7 +29,7 @@ func meetsAdiabaticTarget(ctx context.Context, p *shape.Pulse) (bool, error) {
 		return false, err
 	}
 	for i := range offs {
-		if !shape.TargetMet(p.Role, p.Flip, r.Mx[i], r.My[i], r.Mz[i], r.Beta[i]) {
+		if !p.TargetMet(p.Role, r.Mx[i], r.My[i], r.Mz[i], r.Beta[i]) {
 			return false, nil
 		}
 	}

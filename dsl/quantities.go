@@ -28,7 +28,7 @@ var quantityTable = []quantitySpec{
 	{Name: "tbw", Property: true, Help: "time-bandwidth product: measured bandwidth × duration", Method: "bandwidth × duration"},
 	{Name: "transition", Property: true, Unit: "Hz", Help: "90 %–10 % transition width of the profile, mean of both edges", Method: "simulated profile"},
 	{Name: "ripple", Property: true, Unit: "%", Help: "pass-band ripple of the profile: the largest deviation from its centre value, relative to it, within the half-maximum band edges moved inward by one transition width (as describe)", Method: "simulated profile"},
-	{Name: "threshold", Property: true, Unit: "uT", Help: "adiabatic threshold: the peak B1 above which the profile meets its target", Method: "B1 scan of simulated profiles"},
+	{Name: "threshold", Property: true, Unit: "uT", Help: "adiabatic threshold: the lowest peak B1 at which the profile meets its role's target over ±¼ of the band (invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9·sin flip, refocus |β|² ≥ 0.9, saturate |Mz| ≤ 0.1) and still meets it at twice that peak; a plane rotation (bir4) must also land within 0.1 of the rotation it promises, phase included", Method: "B1 scan of simulated profiles (octaves, then bisection)"},
 }
 
 func lookupQuantity(name string) (quantitySpec, bool) {

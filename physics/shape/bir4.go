@@ -105,5 +105,6 @@ func Bir4(c Common, gamma float64, bandwidth, lambda, kappa float64) (*Pulse, er
 	}
 	p.Flip = math.Abs(theta)
 	p.Sweep = bandwidth
+	p.Plane, p.Axis = true, c.Phase
 	return p, p.setSlice(c)
 }

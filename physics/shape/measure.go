@@ -506,17 +506,34 @@ func (m *meter) met(scales []float64) ([]bool, error) {
 			if r.Beta != nil {
 				beta = r.Beta[i]
 			}
-			ok[s] = ok[s] && TargetMet(m.role, m.p.Flip, r.Mx[i], r.My[i], r.Mz[i], beta)
+			ok[s] = ok[s] && m.p.TargetMet(m.role, r.Mx[i], r.My[i], r.Mz[i], beta)
 		}
 	}
 	return ok, nil
 }
 
-// TargetMet tells whether the magnetization after a pulse from +z (and its β)
-// meets the target of the role that the adiabatic threshold asks of every
-// offset it checks: invert Mz ≤ −0.9; excite |Mxy| ≥ 0.9·sin θ (θ the nominal
-// flip, 90° when there is none); refocus |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; no
-// role |Mz − cos θ| ≤ 0.1.
+// TargetMet tells whether the magnetization after p from +z (and its β) meets
+// the target of role r that the adiabatic threshold asks of every offset it
+// checks: invert Mz ≤ −0.9; excite |Mxy| ≥ 0.9·sin θ (θ the nominal flip, 90°
+// when there is none); refocus |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; no role
+// |Mz − cos θ| ≤ 0.1. A plane rotation (BIR-4) must also land within 0.1 of
+// the rotation it promises, R(θ about the axis at its phase)·z =
+// (−sin φ·sin θ, cos φ·sin θ, cos θ) (README conventions): its worth is that
+// the phase holds too.
+func (p *Pulse) TargetMet(r Role, mx, my, mz float64, beta complex128) bool {
+	if p.Plane && !math.IsNaN(p.Flip) {
+		s, c := math.Sincos(p.Axis)
+		st, ct := math.Sincos(p.Flip)
+		if math.Sqrt(sq(mx+s*st)+sq(my-c*st)+sq(mz-ct)) > 1-thresholdTarget {
+			return false
+		}
+	}
+	return TargetMet(r, p.Flip, mx, my, mz, beta)
+}
+
+func sq(x float64) float64 { return x * x }
+
+// TargetMet is the role's target alone (see Pulse.TargetMet).
 func TargetMet(r Role, flip, mx, my, mz float64, beta complex128) bool {
 	switch r {
 	case RoleInvert:

@@ -104,6 +104,11 @@ type Pulse struct {
 	Freq      []float64 // Hz, instantaneous RF frequency relative to the carrier, per sample; nil if none
 	Gradient  float64   // T/m, constant slice-select gradient; 0: none
 	Center    float64   // Hz
+	// Plane is set for a plane rotation by Flip about a fixed transverse axis
+	// at phase Axis (rad) whatever the B1 (BIR-4): its target holds the whole
+	// magnetization to that rotation, phase included (see TargetMet).
+	Plane bool
+	Axis  float64
 }
 
 // Duration is the pulse length in seconds.
