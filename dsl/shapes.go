@@ -453,6 +453,11 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 	if a, ok := args["samples"]; ok && b.vals["samples"] > maxPulseSamples {
 		return nil, errAt(a.Pos, "samples must be at most %d, got %s", maxPulseSamples, a.Val)
 	}
+	if a, ok := args["dwell"]; ok {
+		if n := math.Round(b.vals["duration"] / b.vals["dwell"]); n > maxPulseSamples {
+			return nil, errAt(a.Pos, "dwell %s gives %.0f samples, over the limit of %d per pulse; use a longer dwell or a shorter duration", a.Val, n, maxPulseSamples)
+		}
+	}
 	if err := checkSlice(args, b); err != nil {
 		return nil, err
 	}
