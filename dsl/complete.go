@@ -90,6 +90,9 @@ func (c completer) candidates(before, prefix string) []string {
 	case "reset":
 		return nil
 	}
+	if last.Kind == tNumber && len(toks) >= 2 && toks[len(toks)-2].Text == "points" {
+		return []string{"show", "with"} // a count takes no unit
+	}
 	if last.Kind == tNumber {
 		return append(unitNames(), "to", "points", "step", "show", "with", "at", "in")
 	}

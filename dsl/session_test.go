@@ -194,6 +194,7 @@ func TestComplete(t *testing.T) {
 		{`import w from "a.csv" with `, []string{"dwell", "flip", "peak", "role"}, []string{"offset"}},
 		{`import w from "a.csv" with role = i`, []string{"invert"}, nil},
 		{"report hard ", []string{"as"}, nil},
+		{"sweep hard over offset -1 kHz to 1 kHz points 11 ", []string{"show", "with"}, []string{"kHz", "us"}},
 		{"sweep hard over offset -1 kHz to 1 kHz ", []string{"points", "step"}, nil},
 		{"report hard as m", []string{"markdown"}, nil},
 		{"help sw", []string{"sweep"}, nil},
