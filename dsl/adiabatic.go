@@ -51,20 +51,28 @@ func roleVerb(r shape.Role) string {
 	return "act on"
 }
 
+// pulseAction says what p does to object ("its band"): a plane rotation (bir4)
+// is judged on its rotation, phase included, whatever its role.
+func pulseAction(p *shape.Pulse, object string) string {
+	if p.Plane {
+		return "turn " + object + " as promised (phase included)"
+	}
+	return roleVerb(p.Role) + " " + object
+}
+
 // thresholdWarning is the plain warning for an adiabatic pulse played below its
 // threshold th (T; NaN when the search found none), or "" when the peak is
 // enough. met is meetsAdiabaticTarget's answer, which speaks when th is NaN.
 func thresholdWarning(p *shape.Pulse, th float64, met bool) string {
 	gb := gammaBarOf(p)
 	peak := Quantity{p.Peak(), dimField}.format("uT")
-	verb := roleVerb(p.Role)
 	switch {
 	case !p.Adiabatic || p.Role == shape.RoleNone:
 		return ""
 	case !math.IsNaN(th) && th > p.Peak():
-		return fmt.Sprintf("peak %s is below the adiabatic threshold %s: this pulse will not %s its band", peak, fmtField(th, gb), verb)
+		return fmt.Sprintf("peak %s is below the adiabatic threshold %s: this pulse will not %s", peak, fmtField(th, gb), pulseAction(p, "its band"))
 	case math.IsNaN(th) && !met:
-		return fmt.Sprintf("peak %s does not %s even the centre of the band, and no adiabatic threshold was found up to 32 times this peak", peak, verb)
+		return fmt.Sprintf("peak %s does not %s, and no adiabatic threshold was found up to 32 times this peak", peak, pulseAction(p, "even the centre of the band"))
 	}
 	return ""
 }

@@ -651,7 +651,7 @@ func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
 		w += "\nwarning: peak B1 " + Quantity{pk, dimField}.String() + " is beyond any RF coil (MRI coils give tens of µT, NMR probes a few mT): check the duration and the flip"
 	}
 	if !met {
-		w += "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + roleVerb(def.Pulse.Role) + " its band (`describe " + def.Name + "` gives the threshold)"
+		w += "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + pulseAction(def.Pulse, "its band") + " (`describe " + def.Name + "` gives the threshold)"
 	}
 	return w, nil
 }
