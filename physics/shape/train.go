@@ -49,7 +49,6 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 	}
 	var gamma float64
 	hasGrad, hasFreq, adiabatic := false, false, true
-	total := 0
 	for i, e := range elements {
 		if e.Pulse == nil || e.Pulse.Wave.Len() == 0 {
 			return nil, fmt.Errorf("%s: element %d is empty", name, i+1)
@@ -65,10 +64,6 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 		hasGrad = hasGrad || e.Pulse.Wave.Gradient != nil
 		hasFreq = hasFreq || e.Pulse.Freq != nil
 		adiabatic = adiabatic && e.Pulse.Adiabatic
-		total += e.Pulse.Wave.Len()
-		if i > 0 && gap > 0 {
-			total++
-		}
 	}
 	fc := elements[0].Pulse.Center
 	for _, e := range elements[1:] {
@@ -82,7 +77,7 @@ func Train(elements []Element, gap float64, c Common) (*Pulse, error) {
 	// waveform, so the ramp is held over at most 1/centerCyclesPerSample
 	// cycle (see grid).
 	split := make([]int, len(elements))
-	total = 0
+	total := 0
 	for i, e := range elements {
 		split[i] = 1
 		if f := math.Abs(fc + c.Center); f != 0 {
