@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"path/filepath"
 	"sort"
 	"strings"
 
@@ -209,6 +210,9 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 		fmt.Fprintf(r.stdout, "%s: outputs reproduce\n", file)
 		return nil
 	}
+	if output != "" && samePath(output, file) {
+		output = "" // --output naming the notebook itself is a run in place
+	}
 	runErr := r.execute(ctx, file, nb)
 	if runErr != nil && output == "" {
 		// In place, a failed run would replace the stored outputs of the cells
@@ -232,7 +236,8 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 	return nil
 }
 
-// kernelOf is the kernel a notebook's metadata names ("" when it names none).
+// kernelOf is the kernel a notebook's metadata names, or the language it
+// records when it names no kernel ("" when it records neither).
 func kernelOf(nb notebook) string {
 	meta, _ := nb["metadata"].(map[string]any)
 	if ks, ok := meta["kernelspec"].(map[string]any); ok {
@@ -240,7 +245,23 @@ func kernelOf(nb notebook) string {
 			return name
 		}
 	}
+	if li, ok := meta["language_info"].(map[string]any); ok {
+		if name, ok := li["name"].(string); ok && name != "nutate" {
+			return name
+		}
+	}
 	return ""
+}
+
+// samePath tells whether two paths name one file (the same path cleaned, or
+// the same file on disk).
+func samePath(a, b string) bool {
+	if filepath.Clean(a) == filepath.Clean(b) {
+		return true
+	}
+	sa, errA := os.Stat(a)
+	sb, errB := os.Stat(b)
+	return errA == nil && errB == nil && os.SameFile(sa, sb)
 }
 
 // recordedSettings are the --set values a notebook's metadata records.
@@ -298,6 +319,9 @@ func withoutEmptyDisplays(outs []any) []any {
 		m, _ := o.(map[string]any)
 		if m["output_type"] == "display_data" {
 			data, _ := m["data"].(map[string]any)
+			if len(data) == 0 {
+				continue
+			}
 			if len(data) == 1 && strings.TrimSpace(dataText(data["text/plain"])) == "" {
 				if _, ok := data["text/plain"]; ok {
 					continue

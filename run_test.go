@@ -111,6 +111,13 @@ func TestRunStopsAtFirstError(t *testing.T) {
 	if after, _ := os.ReadFile(f); !bytes.Equal(after, before) {
 		t.Error("a failed in-place run changed the notebook")
 	}
+	// --output naming the notebook itself is a run in place: kept as well.
+	if err := r.notebook(context.Background(), f, filepath.Join(dir, ".", filepath.Base(f))); err == nil || !strings.Contains(err.Error(), "not written") {
+		t.Fatalf("--output onto the notebook itself: err %v, want it kept", err)
+	}
+	if after, _ := os.ReadFile(f); !bytes.Equal(after, before) {
+		t.Error("--output onto the notebook itself changed it")
+	}
 	// With --output the partial run is written there: the error in its cell,
 	// the cells after it cleared.
 	partial := filepath.Join(dir, "partial.ipynb")

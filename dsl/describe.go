@@ -274,10 +274,16 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	)
 	if p.Adiabatic {
 		th := fmtOpt(pr.Threshold, func(v float64) string { return fmtField(v, gb) })
-		if math.IsNaN(pr.Threshold) {
-			th = "not met: " + thresholdUnmet
+		label, unmet := "adiabatic threshold", thresholdUnmet
+		if p.Bandwidth == 0 && !imported(p) {
+			// No design band (bir4): the target is asked at the centre only.
+			label = "adiabatic threshold (at the centre)"
+			unmet = strings.Replace(unmet, "over ±¼ of the bandwidth", "at the centre (it has no design band)", 1)
 		}
-		rows = append(rows, []string{"adiabatic threshold", th})
+		if math.IsNaN(pr.Threshold) {
+			th = "not met: " + unmet
+		}
+		rows = append(rows, []string{label, th})
 	}
 	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
 	if tr > 0 {

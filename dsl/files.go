@@ -209,16 +209,18 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 // phaseFrequencyWarning checks a file that gives both a phase and a frequency
 // column: the frequency says where the pulse plays and the phase must already
 // hold it (its steps between samples are −2π·f·dwell; a step of π is a sign
-// change of the amplitude, as between a sinc's lobes). When the phase drifts
+// change of the amplitude, as between a sinc's lobes; steps next to a field
+// below 5 % of the peak are skipped, where a design may jump its phase). When the phase drifts
 // from the one the frequency implies by more than 45° over the pulse, the
 // waveform plays where its phase says while describe measures it where the
 // frequency says: say so.
 func phaseFrequencyWarning(p *shape.Pulse) string {
 	w := p.Wave
 	drift, off := 0.0, 0.0
+	floor := 0.05 * p.Peak() // phase jumps where the field nearly vanishes are a design's (BIR-4)
 	for j := 0; j+1 < w.Len(); j++ {
 		a, b := w.B1[j], w.B1[j+1]
-		if a == 0 || b == 0 {
+		if cmplx.Abs(a) < floor || cmplx.Abs(b) < floor {
 			continue
 		}
 		f := p.Center

@@ -168,6 +168,9 @@ func describeShape(d *pulseDef) string {
 		var els []string
 		for _, e := range d.Elems {
 			s := e.Def.Name
+			if strings.Contains(s, "[") { // written inline in the train: name its shape
+				s = "(" + describeShape(e.Def) + ")"
+			}
 			if e.Phase != 0 {
 				s += " at " + formatNumber(roundSig(e.Phase*180/math.Pi, 6)) + " deg"
 			}
@@ -176,6 +179,9 @@ func describeShape(d *pulseDef) string {
 		out := "train of " + strings.Join(els, ", ")
 		if a, ok := d.Args["gap"]; ok && a.Val.Q.V != 0 {
 			out += "; gap " + a.Val.String()
+		}
+		if a, ok := d.Args["phase"]; ok && a.Val.Q.V != 0 {
+			out += "; phase " + a.Val.String()
 		}
 		return out
 	}
@@ -197,7 +203,11 @@ func describeShape(d *pulseDef) string {
 		case given:
 			parts = append(parts, as.Name+" "+a.Val.String())
 		case as.Default != "" && !groups[as.Group]:
-			parts = append(parts, as.Name+" "+as.Default)
+			text := as.Name + " " + as.Default // "beta 5.3", "window none"
+			if _, ok := d.Spec.arg(strings.Fields(as.Default)[0]); ok {
+				text = as.Default // the default names another argument: "cutoff 1.1 % (T = 6σ)"
+			}
+			parts = append(parts, text)
 			if as.Group != "" {
 				groups[as.Group] = true
 			}
@@ -238,7 +248,7 @@ func markdownTable(t display.Table) string {
 
 var latexEscaper = strings.NewReplacer(`\`, `\textbackslash{}`, "&", `\&`, "%", `\%`, "$", `\$`, "#", `\#`, "_", `\_`, "{", `\{`, "}", `\}`,
 	"µ", `$\mu$`, "²", `$^2$`, "·", `$\cdot$`, "×", `$\times$`, "∫", `$\int$`, "—", "--", "–", "--",
-	"†", `$^\dagger$`, "±", `$\pm$`, "¼", `$\frac{1}{4}$`, "°", `$^\circ$`, "≤", `$\le$`, "≥", `$\ge$`, "−", `$-$`)
+	"σ", `$\sigma$`, "†", `$^\dagger$`, "±", `$\pm$`, "¼", `$\frac{1}{4}$`, "°", `$^\circ$`, "≤", `$\le$`, "≥", `$\ge$`, "−", `$-$`)
 
 // Field and nucleus names typeset as a manuscript writes them: B0 and B1 as
 // $B_0$, $B_1$, a nuclide such as 31P as $^{31}$P.

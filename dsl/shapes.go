@@ -422,6 +422,9 @@ func (ev *evaluator) resolve(spec *shapeSpec, args map[string]argVal) (*builder,
 			if err != nil {
 				return nil, err
 			}
+			if name == "bandwidth" && a.Val.Q.D == dimPPM {
+				x = math.Abs(x) // a width in ppm: |γ̄|·B0·δ (a negative γ signs offsets, not widths)
+			}
 			b.vals[name] = x
 		}
 	}

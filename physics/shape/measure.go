@@ -522,13 +522,32 @@ func (m *meter) met(scales []float64) ([]bool, error) {
 // the phase holds too.
 func (p *Pulse) TargetMet(r Role, mx, my, mz float64, beta complex128) bool {
 	if p.Plane && !math.IsNaN(p.Flip) {
+		// The promised vector in the frame of the pulse's centre, where the
+		// phase is referenced at the pulse's midpoint; a negative γ turns the
+		// other way. Back in the carrier frame at the pulse's end it has
+		// precessed by −2π·center·T/2 (Mxy ∝ e^{−i2πΔf·t}, package physics).
 		s, c := math.Sincos(p.Axis)
 		st, ct := math.Sincos(p.Flip)
-		if math.Sqrt(sq(mx+s*st)+sq(my-c*st)+sq(mz-ct)) > 1-thresholdTarget {
+		if p.Gamma < 0 {
+			st = -st
+		}
+		ex, ey := -s*st, c*st
+		sf, cf := math.Sincos(-math.Pi * p.Center * p.Duration())
+		ex, ey = ex*cf-ey*sf, ex*sf+ey*cf
+		if math.Sqrt(sq(mx-ex)+sq(my-ey)+sq(mz-ct)) > 1-thresholdTarget {
 			return false
 		}
 	}
-	return TargetMet(r, p.Flip, mx, my, mz, beta)
+	return TargetMet(r, p.nominalFlip(), mx, my, mz, beta)
+}
+
+// nominalFlip is the rotation p promises, NaN where it promises none: an
+// imported waveform's Flip is the area of its samples, not a design.
+func (p *Pulse) nominalFlip() float64 {
+	if p.Shape == "import" {
+		return math.NaN()
+	}
+	return p.Flip
 }
 
 func sq(x float64) float64 { return x * x }
@@ -566,7 +585,7 @@ func (m *meter) thresholdOffsets() []float64 {
 }
 
 func (m *meter) threshold() (float64, error) {
-	if m.role == RoleNone && math.IsNaN(m.p.Flip) {
+	if m.role == RoleNone && math.IsNaN(m.p.nominalFlip()) {
 		return math.NaN(), nil
 	}
 	peak := m.p.Peak()
