@@ -59,3 +59,14 @@ func TestNegativeGammaShiftSign(t *testing.T) {
 		t.Errorf("mx at +10 ppm for 15N: got\n%s\nwant Rabi %.4f", byPPM, mx)
 	}
 }
+
+// A width in ppm is a width: for a negative-γ nucleus the band of
+// bandwidth = 20 ppm is |γ̄|·B0·20e-6 wide (15N at 11.7 T: 1.01024 kHz, IUPAC
+// γ̄), not refused as negative, for swept and amplitude-modulated shapes alike.
+func TestBandwidthInPPMNegativeGamma(t *testing.T) {
+	s := NewSession(t.TempDir())
+	out := execText(t, s, "nucleus 15N\nfield 11.7 T\npulse h = hsec(duration = 8 ms, bandwidth = 20 ppm, peak = 1 kHz, role = invert)\npulse g = slr(duration = 4 ms, bandwidth = 20 ppm, flip = 90 deg, role = excite)")
+	if strings.Count(out, "bandwidth 1.01024 kHz") != 2 {
+		t.Errorf("want both bands 1.01024 kHz wide:\n%s", out)
+	}
+}

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"testing"
+
+	"Nutate/physics"
 )
 
 // BIR-4 on resonance turns +z to Mz = cos θ for any B1 well above threshold
@@ -132,4 +134,36 @@ func ExampleBir4() {
 	pr, _ := Measure(context.Background(), p, MeasureOptions{})
 	fmt.Printf("BIR-4 %.0f°: threshold %.1f µT\n", p.Flip*180/math.Pi, pr.Threshold*1e6)
 	// Output: BIR-4 90°: threshold 23.0 µT
+}
+
+// A plane rotation's threshold does not depend on where its band sits or on
+// the sign of γ: off centre the promised vector precesses with the centre
+// (−π·center·T, the phase referenced at the midpoint), and a negative γ turns
+// the other way, as a hard pulse does (Bloch equations). The threshold in Hz
+// (γ̄·B1) is the same at centres 0, 650 and 700 Hz and for 1H and 15N.
+func TestBir4ThresholdCentreAndGammaSign(t *testing.T) {
+	n15, ok := physics.Lookup("15N")
+	if !ok {
+		t.Fatal("no 15N")
+	}
+	thresholdHz := func(gamma, center float64) float64 {
+		gb := math.Abs(gamma) / (2 * math.Pi)
+		c := commonPeak(10e-3, 3000/gb)
+		c.Flip, c.Center, c.Role = 90*deg, center, RoleExcite
+		p, err := Bir4(c, gamma, 40e3, 0, 0)
+		mustOK(t, err)
+		pr, err := Measure(context.Background(), p, MeasureOptions{})
+		mustOK(t, err)
+		if math.IsNaN(pr.Threshold) {
+			t.Fatalf("γ %g, centre %g Hz: threshold not met", gamma, center)
+		}
+		return pr.Threshold * gb
+	}
+	ref := thresholdHz(gammaH(t), 0)
+	for _, tc := range []struct {
+		name          string
+		gamma, center float64
+	}{{"1H at 650 Hz", gammaH(t), 650}, {"1H at 700 Hz", gammaH(t), 700}, {"15N on resonance", n15.Gamma(), 0}, {"15N at 650 Hz", n15.Gamma(), 650}} {
+		near(t, tc.name+": threshold (Hz)", thresholdHz(tc.gamma, tc.center), ref, 1e-3*ref)
+	}
 }
