@@ -70,12 +70,16 @@ func Take(network, addr string) *os.File {
 }
 
 // Release closes every socket not yet taken, so that the kernel can bind
-// those addresses itself.
+// those addresses itself; a unix socket's file is removed too (binding it
+// created the file, and a file left behind would keep the address taken).
 func Release() {
 	mu.Lock()
 	defer mu.Unlock()
 	for k, f := range bound {
 		f.Close()
+		if len(k) > 5 && k[:5] == "unix " { // strings would initialise later than os
+			os.Remove(k[5:])
+		}
 		delete(bound, k)
 	}
 }

@@ -220,6 +220,22 @@ func TestBindAllSkips(t *testing.T) {
 	}
 }
 
+// Released unix sockets leave no file behind, so the kernel can bind the
+// same paths itself.
+func TestReleaseRemovesUnixFiles(t *testing.T) {
+	base := filepath.Join(t.TempDir(), "kernel-ipc")
+	bindAll([]string{"nutate", "kernel", writeConn(t, "ipc", base, []int{1, 2, 3, 4, 5})})
+	Release()
+	for p := 1; p <= 5; p++ {
+		path := fmt.Sprintf("%s-%d", base, p)
+		l, err := net.Listen("unix", path)
+		if err != nil {
+			t.Fatalf("after Release, %s cannot be bound: %v", path, err)
+		}
+		l.Close()
+	}
+}
+
 func TestBindAllIPC(t *testing.T) {
 	base := filepath.Join(t.TempDir(), "kernel-ipc")
 	bindAll([]string{"nutate", "kernel", writeConn(t, "ipc", base, []int{1, 2, 3, 4, 5})})
