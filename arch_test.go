@@ -3,7 +3,9 @@ package main
 import (
 	"go/parser"
 	"go/token"
+	"io"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -63,6 +65,52 @@ func hasAnyPrefix(p string, prefixes []string) bool {
 		if p == pre || strings.HasPrefix(p, pre+"/") {
 			return true
 		}
+	}
+	return false
+}
+
+// TestNoTrackedBuildArtefacts fails when git tracks an executable over 1 MB (a built
+// binary committed by mistake; the .gitignore names /nutate and /Nutate). Skipped
+// outside a git checkout.
+func TestNoTrackedBuildArtefacts(t *testing.T) {
+	out, err := exec.Command("git", "ls-files", "-z").Output()
+	if err != nil {
+		t.Skipf("not a git checkout: %v", err)
+	}
+	for _, name := range strings.Split(string(out), "\x00") {
+		if name == "" {
+			continue
+		}
+		fi, err := os.Stat(name)
+		if err != nil || !fi.Mode().IsRegular() || fi.Size() <= 1<<20 {
+			continue
+		}
+		if isExecutable(name, fi) {
+			t.Errorf("%s is tracked and is an executable of %d bytes: remove it (git rm --cached) and ignore it", name, fi.Size())
+		}
+	}
+}
+
+// isExecutable reports a file with an exec bit or an ELF, Mach-O or PE header.
+func isExecutable(name string, fi os.FileInfo) bool {
+	if fi.Mode().Perm()&0o111 != 0 {
+		return true
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return false
+	}
+	defer f.Close()
+	head := make([]byte, 4)
+	if _, err := io.ReadFull(f, head); err != nil {
+		return false
+	}
+	switch {
+	case string(head) == "\x7fELF", string(head[:2]) == "MZ":
+		return true
+	case head[0] == 0xcf && head[1] == 0xfa && head[2] == 0xed && head[3] == 0xfe, // Mach-O 64, little-endian
+		head[0] == 0xce && head[1] == 0xfa && head[2] == 0xed && head[3] == 0xfe:
+		return true
 	}
 	return false
 }
