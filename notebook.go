@@ -172,7 +172,7 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 	}
 	lang := languageInfo()
 	meta["kernelspec"] = map[string]any{"name": "nutate", "display_name": "Nutate (RF pulses)", "language": "nutate"}
-	meta["language_info"] = map[string]any{"name": lang.Name, "version": lang.Version, "mimetype": lang.Mimetype, "file_extension": lang.FileExtension, "pygments_lexer": lang.PygmentsLexer}
+	meta["language_info"] = lang.Map() // exactly kernel_info's, so opening it leaves it clean
 	settings := []any{}
 	for _, s := range r.sets {
 		settings = append(settings, s)
