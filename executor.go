@@ -65,25 +65,50 @@ func (e *languageExecutor) IsComplete(code string) (string, string) { return dsl
 
 func (e *languageExecutor) Language() kernel.LanguageInfo { return languageInfo() }
 
-// readmeURL is where the README is published; the kernel's help links point at
-// its sections. Set it for a build with
-// -ldflags "-X main.readmeURL=https://host/path/README".
-var readmeURL = "https://github.com/nutate/nutate"
+// readmeURL is where the README is published, set at build time with
+// -ldflags "-X main.readmeURL=https://host/path/README"; empty (the default),
+// the kernel offers no help links: the language reference is `help` in a cell.
+var readmeURL = ""
+
+// helpSections are the README sections the help links open (text, heading slug).
+var helpSections = []struct{ Text, Anchor string }{
+	{"Nutate language", "language-quick-reference"},
+	{"Conventions", "conventions"},
+	{"RF safety", "rf-safety"},
+}
+
+// sectionURL is the link to one README section. Classic Notebook passes help
+// links through requirejs.toUrl, which appends "?v=<hash>" (or "&v=<hash>")
+// after the #fragment, where it would spoil the section anchor. The fragment
+// directive delimiter ":~:" after the anchor shields it: browsers take the
+// fragment only up to ":~:" (the URL Fragment Text Directives specification)
+// and ignore a directive they do not know, such as "?v=<hash>".
+func sectionURL(base, anchor string) string { return base + "#" + anchor + ":~:" }
+
+// helpLinks are kernel_info's help links: none unless a published README
+// address was set at build time.
+func helpLinks(base string) []kernel.HelpLink {
+	if base == "" {
+		return nil
+	}
+	var links []kernel.HelpLink
+	for _, s := range helpSections {
+		links = append(links, kernel.HelpLink{Text: s.Text, URL: sectionURL(base, s.Anchor)})
+	}
+	return links
+}
 
 // languageInfo describes the language for kernel_info and notebook metadata.
 func languageInfo() kernel.LanguageInfo {
 	return kernel.LanguageInfo{
-		Name:          "nutate",
-		Version:       version,
-		Mimetype:      "text/x-nutate",
-		FileExtension: ".nut",
-		PygmentsLexer: "text",
-		Banner:        "Nutate " + version + ": RF pulse design and exact Bloch simulation. Type `help` for the language.",
-		HelpLinks: []kernel.HelpLink{
-			{Text: "Nutate language", URL: readmeURL + "#language-quick-reference"},
-			{Text: "Conventions", URL: readmeURL + "#conventions"},
-			{Text: "RF safety", URL: readmeURL + "#rf-safety"},
-		},
+		Name:           "nutate",
+		Version:        version,
+		Mimetype:       "text/x-nutate",
+		FileExtension:  ".nut",
+		PygmentsLexer:  "text",
+		CodemirrorMode: codemirrorMode,
+		Banner:         "Nutate " + version + ": RF pulse design and exact Bloch simulation. Type `help` for the language.",
+		HelpLinks:      helpLinks(readmeURL),
 	}
 }
 

@@ -14,6 +14,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 )
 
 // Name is the kernelspec's directory name, the kernel name clients select.
@@ -27,7 +28,13 @@ type Spec struct {
 	InterruptMode string            `json:"interrupt_mode,omitempty"`
 	Env           map[string]string `json:"env,omitempty"`
 	Metadata      map[string]any    `json:"metadata,omitempty"`
+	// Resources are further files of the kernelspec directory, by name (the
+	// front end's kernel.js); not part of kernel.json.
+	Resources map[string][]byte `json:"-"`
 }
+
+// resourceNames are the Resources Install may write, which Uninstall removes.
+var resourceNames = []string{"kernel.js"}
 
 // NewSpec returns the kernelspec that launches binary (an absolute path) as
 // `binary kernel --connection-file {connection_file}`. Interrupts travel as
@@ -116,6 +123,19 @@ func Install(kernelsDir string, spec Spec) (string, error) {
 		{"logo-32x32.png", LogoPNG(32)},
 		{"logo-64x64.png", LogoPNG(64)},
 	}
+	for _, name := range resourceNames {
+		if data, ok := spec.Resources[name]; ok {
+			files = append(files, struct {
+				name string
+				data []byte
+			}{name, data})
+		}
+	}
+	for name := range spec.Resources {
+		if !slices.Contains(resourceNames, name) {
+			return "", fmt.Errorf("install: resource %q: got an unknown name, want one of %v", name, resourceNames)
+		}
+	}
 	for _, f := range files {
 		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
 			return "", fmt.Errorf("install: %w", err)
@@ -132,7 +152,7 @@ func Uninstall(kernelsDir string) (string, bool, error) {
 	if _, err := os.Stat(dir); errors.Is(err, os.ErrNotExist) {
 		return dir, false, nil
 	}
-	for _, name := range []string{"kernel.json", "logo-32x32.png", "logo-64x64.png"} {
+	for _, name := range append([]string{"kernel.json", "logo-32x32.png", "logo-64x64.png"}, resourceNames...) {
 		if err := os.Remove(filepath.Join(dir, name)); err != nil && !errors.Is(err, os.ErrNotExist) {
 			return dir, true, fmt.Errorf("uninstall: %w", err)
 		}
