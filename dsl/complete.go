@@ -90,6 +90,10 @@ func (c completer) candidates(before, prefix string) []string {
 	case "reset":
 		return nil
 	}
+	if last.Kind == tIdent && (first == "export" && last.Text == "to" || first == "import" && last.Text == "from") ||
+		last.Kind == tIllegal && strings.HasPrefix(last.Text, `"`) {
+		return nil // a file name: nothing of the session fits there
+	}
 	if last.Kind == tNumber && len(toks) >= 2 && toks[len(toks)-2].Text == "points" {
 		return []string{"show", "with"} // a count takes no unit
 	}
@@ -175,6 +179,9 @@ func (c completer) candidates(before, prefix string) []string {
 	}
 	if first == "export" && len(toks) == 1 {
 		return append(c.st.pulseNames(), "sweep")
+	}
+	if first == "export" && len(toks) == 2 && last.Kind == tIdent {
+		return []string{"to"}
 	}
 	if contains([]string{"describe", "sweep", "report", "export"}, first) && (len(toks) == 1 || last.Kind == tComma && clause == "") {
 		return c.st.pulseNames()
