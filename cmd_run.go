@@ -97,7 +97,8 @@ type runner struct {
 	sets        []string
 	stdout      io.Writer
 	stderr      io.Writer
-	progress    bool
+	progress    bool // a status line on stderr (a terminal)
+	cell, cells int  // the code cell being run, of how many (progress.go)
 }
 
 // session returns a fresh session for a file, with the --set overrides applied.
@@ -123,10 +124,10 @@ func (r *runner) sink(display func(display.Bundle)) dsl.Sink {
 	sink := dsl.Sink{Display: display}
 	if r.progress {
 		sink.Progress = func(task string, done, total int) {
-			fmt.Fprintf(r.stderr, "\r%s: %3.0f%%", task, 100*float64(done)/float64(max(total, 1)))
 			if done >= total {
-				fmt.Fprint(r.stderr, "\r\033[K")
+				task = ""
 			}
+			r.status(progressLine(r.cell, r.cells, task, done, total))
 		}
 	}
 	return sink

@@ -69,6 +69,7 @@ func setupE2E(t testing.TB, bin string) *e2eEnv {
 		"JUPYTER_PATH="+e.jupyterPath,
 		"JUPYTER_RUNTIME_DIR="+e.runtimeDir, // connection files stay in the temporary directory
 		"PYTHONDONTWRITEBYTECODE=1",
+		"NUTATE_BIN="+e.bin,
 	)
 	return e
 }

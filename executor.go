@@ -19,22 +19,33 @@ type languageExecutor struct {
 
 func newExecutor(dir string) *languageExecutor { return &languageExecutor{s: dsl.NewSession(dir)} }
 
-// Execute runs a cell. Long work shows a progress line, updated in place; when the
-// work ends (finished, failed or interrupted) the line is cleared, so a saved
-// notebook holds results only.
+// Execute runs a cell. Long work shows a progress line, updated in place. A
+// front end stores every display it was sent, so when the work ends (the next
+// result arrives, or the cell finishes, fails or is interrupted) the line is
+// taken away with clear_output, and the cell's earlier results, if any, are
+// sent again: a saved notebook holds results only, with no empty leftover.
+// (Replacing the line by the result with update_display_data would leave
+// clients that ignore updates, such as jupyter-console, without the result.)
 func (e *languageExecutor) Execute(ctx context.Context, code string, emit func(kernel.Output)) error {
 	id, shown := "", false
+	var results []kernel.Output // this cell's results so far, to send again after a clear
 	clear := func() {
-		if shown {
-			emit(kernel.Output{Data: map[string]any{"text/plain": ""}, DisplayID: id, Update: true})
-			shown = false
+		if !shown {
+			return
+		}
+		shown = false
+		emit(kernel.Output{Clear: true})
+		for _, o := range results {
+			emit(o)
 		}
 	}
 	defer clear()
 	return e.s.Exec(ctx, code, dsl.Sink{
 		Display: func(b display.Bundle) {
 			clear()
-			emit(kernel.Output{Data: b})
+			o := kernel.Output{Data: b}
+			results = append(results, o)
+			emit(o)
 		},
 		Progress: func(task string, done, total int) {
 			if done >= total {

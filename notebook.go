@@ -140,6 +140,8 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 	}
 	count := 0
 	var failed error
+	r.cells = codeCells(nb)
+	defer r.clearStatus()
 	for i, c := range nb["cells"].([]any) {
 		cell, ok := c.(map[string]any)
 		if !ok || cell["cell_type"] != "code" {
@@ -151,6 +153,8 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 			continue
 		}
 		count++
+		r.cell = count
+		r.status(progressLine(count, r.cells, "", 0, 0))
 		outputs := []any{}
 		err := s.Exec(ctx, cellSource(cell), r.sink(func(b display.Bundle) {
 			outputs = append(outputs, displayOutput(b))

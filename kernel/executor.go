@@ -14,6 +14,9 @@ type Output struct {
 	// a display.
 	Stream string
 	Text   string
+	// Clear, when set, sends clear_output (wait false) instead: the front end
+	// drops the cell's outputs so far.
+	Clear bool
 }
 
 // Executor runs cells. Implementations keep session state between cells.

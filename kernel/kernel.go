@@ -311,6 +311,10 @@ func (d *dispatcher) replyError(r request, msgType, ename, evalue string, extra 
 
 // emit publishes one output of a running cell.
 func (d *dispatcher) emit(req Message, o Output) {
+	if o.Clear {
+		d.pub(req, "clear_output", map[string]any{"wait": false})
+		return
+	}
 	if o.Stream != "" {
 		d.pub(req, "stream", map[string]any{"name": o.Stream, "text": o.Text})
 		return
