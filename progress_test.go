@@ -18,7 +18,7 @@ func TestProgressLine(t *testing.T) {
 		{3, 12, "", 0, 0, "cell 3/12"},
 		{3, 12, "sweep p", 45, 100, "cell 3/12 · sweep p: 45 %"},
 		{1, 1, "describe p", 2, 3, "cell 1/1 · describe p: 67 %"},
-		{1, 2, "sweep p", 7, 0, "cell 1/2 · sweep p: 0 %"},     // no total known
+		{1, 2, "sweep p", 7, 0, "cell 1/2 · sweep p: 0 %"},       // no total known
 		{1, 2, "sweep p", 120, 100, "cell 1/2 · sweep p: 100 %"}, // never over 100
 		{0, 0, "sweep p", 1, 4, "sweep p: 25 %"},                 // a script: no cells
 	}
