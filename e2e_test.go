@@ -125,6 +125,7 @@ func TestBinary(t *testing.T) {
 	t.Run("signals", func(t *testing.T) { testKernelSignals(t, bin) })
 	t.Run("shutdown_during_cell", func(t *testing.T) { testShutdownDuringCell(t, bin) })
 	t.Run("jupyter", func(t *testing.T) { testJupyterClients(t, bin) })
+	t.Run("slurm_array_example", func(t *testing.T) { testSlurmArrayExample(t, bin) })
 }
 
 func testJupyterClients(t *testing.T, bin string) {
