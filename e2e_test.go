@@ -133,6 +133,7 @@ func testJupyterClients(t *testing.T, bin string) {
 	t.Run("client", func(t *testing.T) { e.script(t, "client.py", 3*time.Minute) })
 	t.Run("adversarial", func(t *testing.T) { e.script(t, "adversarial.py", 5*time.Minute) })
 	t.Run("nbclient", func(t *testing.T) { e.script(t, "notebook.py", 3*time.Minute) })
+	t.Run("conformance", func(t *testing.T) { e.script(t, "conformance.py", 5*time.Minute) })
 	t.Run("console", func(t *testing.T) { testJupyterConsole(t, e) })
 	t.Run("nbconvert", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "executed.ipynb")
