@@ -75,11 +75,11 @@ func setupE2E(t testing.TB, bin string) *e2eEnv {
 }
 
 // script runs testdata/e2e/NAME and reports its lines; it returns the figures.
-func (e *e2eEnv) script(t *testing.T, name string, timeout time.Duration) map[string]float64 {
+func (e *e2eEnv) script(t *testing.T, name string, timeout time.Duration, args ...string) map[string]float64 {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), timeout)
 	defer cancel()
-	cmd := exec.CommandContext(ctx, python, name)
+	cmd := exec.CommandContext(ctx, python, append([]string{name}, args...)...)
 	cmd.Dir = filepath.Join("testdata", "e2e")
 	cmd.Env = e.env
 	var stderr bytes.Buffer
@@ -126,6 +126,7 @@ func TestBinary(t *testing.T) {
 	t.Run("shutdown_during_cell", func(t *testing.T) { testShutdownDuringCell(t, bin) })
 	t.Run("jupyter", func(t *testing.T) { testJupyterClients(t, bin) })
 	t.Run("slurm_array_example", func(t *testing.T) { testSlurmArrayExample(t, bin) })
+	t.Run("browser", func(t *testing.T) { testBrowser(t, bin) })
 }
 
 func testJupyterClients(t *testing.T, bin string) {
