@@ -41,6 +41,7 @@ func (f *fakeExec) Execute(ctx context.Context, code string, emit func(Output)) 
 		emit(Output{Data: map[string]any{"text/plain": "0%"}, DisplayID: "p1"})
 		emit(Output{Data: map[string]any{"text/plain": "50%"}, DisplayID: "p1", Update: true})
 		emit(Output{Data: map[string]any{"text/plain": "100%"}, DisplayID: "p1", Update: true})
+		emit(Output{Clear: true})
 		return nil
 	case "panic":
 		panic("boom")
@@ -265,9 +266,12 @@ func TestProgressDisplayUpdates(t *testing.T) {
 	r := h.req("execute_request", map[string]any{"code": "progress"})
 	h.d.handle(r, false)
 	pubs := h.collect(t, r)
-	want := []string{"status", "execute_input", "display_data", "update_display_data", "update_display_data", "status"}
+	want := []string{"status", "execute_input", "display_data", "update_display_data", "update_display_data", "clear_output", "status"}
 	if !reflect.DeepEqual(types(pubs), want) {
 		t.Fatalf("iopub: got %v, want %v", types(pubs), want)
+	}
+	if c := content(pubs[5]); !reflect.DeepEqual(c, map[string]any{"wait": false}) {
+		t.Fatalf("clear_output content: got %v, want wait false", c)
 	}
 	for _, m := range pubs[2:5] {
 		tr, _ := field(m, "transient").(map[string]any)
