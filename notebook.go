@@ -314,8 +314,8 @@ func firstDifference(stored, fresh notebook) string {
 }
 
 // withoutEmptyDisplays drops display outputs whose data is an empty text: the
-// kernel's progress display ended so before version 0.1.0's clear_output, and
-// notebooks run then by a Jupyter client keep it; a headless run has none.
+// kernel's progress display ended so before it was taken away with clear_output,
+// and notebooks run then by a Jupyter client keep it; a headless run has none.
 func withoutEmptyDisplays(outs []any) []any {
 	var kept []any
 	for _, o := range outs {
