@@ -107,6 +107,11 @@ func Install(kernelsDir string, spec Spec) (string, error) {
 	if len(spec.Argv) == 0 || !filepath.IsAbs(spec.Argv[0]) {
 		return "", fmt.Errorf("install: argv[0]: got %q, want an absolute path to the binary", first(spec.Argv))
 	}
+	for name := range spec.Resources {
+		if !slices.Contains(resourceNames, name) {
+			return "", fmt.Errorf("install: resource %q: got an unknown name, want one of %v", name, resourceNames)
+		}
+	}
 	dir := filepath.Join(kernelsDir, Name)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return "", fmt.Errorf("install: %w", err)
@@ -129,11 +134,6 @@ func Install(kernelsDir string, spec Spec) (string, error) {
 				name string
 				data []byte
 			}{name, data})
-		}
-	}
-	for name := range spec.Resources {
-		if !slices.Contains(resourceNames, name) {
-			return "", fmt.Errorf("install: resource %q: got an unknown name, want one of %v", name, resourceNames)
 		}
 	}
 	for _, f := range files {
