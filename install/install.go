@@ -1,6 +1,7 @@
 // Package install writes and removes the Jupyter kernelspec of the nutate
-// kernel: a directory named "nutate" holding kernel.json and two logos
-// (logo-32x32.png, logo-64x64.png) inside a Jupyter "kernels" directory.
+// kernel: a directory named "nutate" holding kernel.json, two logos
+// (logo-32x32.png, logo-64x64.png) and the resources the caller gives (the
+// front end's kernel.js) inside a Jupyter "kernels" directory.
 //
 // Entry points: UserKernelsDir, PrefixKernelsDir and SysPrefixKernelsDir find
 // where to install; Install writes the spec (idempotently: running it again
