@@ -162,6 +162,8 @@ func (r *runner) script(ctx context.Context, file string) error {
 	if err != nil {
 		return err
 	}
+	r.cell, r.cells = 0, 0 // a script's status line names no cell
+	defer r.clearStatus()
 	var werr error
 	err = s.Exec(ctx, string(src), r.sink(func(b display.Bundle) {
 		if werr != nil {
