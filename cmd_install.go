@@ -92,7 +92,9 @@ func cmdInstall(args []string) int {
 		fmt.Fprintf(os.Stderr, "nutate install: %s is a temporary binary of `go run`, gone when it exits; build one to keep and install from it:\n  CGO_ENABLED=0 go build -o nutate . && ./nutate install\n", bin)
 		return 1
 	}
-	dir, err := install.Install(kernels, install.NewSpec(bin, version))
+	spec := install.NewSpec(bin, version)
+	spec.Resources = map[string][]byte{"kernel.js": kernelJS()}
+	dir, err := install.Install(kernels, spec)
 	if err != nil {
 		fmt.Fprintf(os.Stderr, "nutate install: %v\n", err)
 		return 1

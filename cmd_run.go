@@ -30,14 +30,18 @@ func cmdRun(args []string) int {
 	output := fs.String("output", "", "write the executed notebook here instead of in place (one input file only)")
 	asJSON := fs.Bool("json", false, "scripts: print one JSON object (the MIME bundle) per output line")
 	check := fs.Bool("check", false, "notebooks: re-execute and fail if the stored outputs differ from fresh ones")
+	gatherOnly := fs.Bool("gather", false, "notebooks already run: print all their sweeps' values as one CSV table (gather.go)")
 	var sets setFlags
 	fs.Var(&sets, "set", "")
 	fs.Usage = func() {
 		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...
+       nutate run --gather NOTEBOOK... > table.csv
   --output F          notebooks: write the executed notebook to F instead of in place (one input file)
   --json              scripts: print one JSON object (the MIME bundle) per output
   --check             notebooks: re-execute and fail if the stored outputs differ from fresh ones
   --set NAME=VALUE    "let NAME = ..." in the file takes VALUE instead (repeatable)
+  --gather            notebooks already run (e.g. by a job array): print every sweep value
+                      as one CSV table, a column per --set name; nothing is executed
 `)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
@@ -61,6 +65,13 @@ func cmdRun(args []string) int {
 	if len(files) == 0 {
 		fs.Usage()
 		return 2
+	}
+	if *gatherOnly {
+		if *output != "" || *check || *asJSON || len(sets) > 0 {
+			fmt.Fprintln(os.Stderr, "nutate run: --gather reads notebooks already run and prints a table; it takes no other option (redirect its output)")
+			return 2
+		}
+		return cmdGather(files)
 	}
 	if *output != "" && len(files) != 1 {
 		fmt.Fprintln(os.Stderr, "nutate run: --output takes one input file, got", len(files))
@@ -97,7 +108,8 @@ type runner struct {
 	sets        []string
 	stdout      io.Writer
 	stderr      io.Writer
-	progress    bool
+	progress    bool // a status line on stderr (a terminal)
+	cell, cells int  // the code cell being run, of how many (progress.go)
 }
 
 // session returns a fresh session for a file, with the --set overrides applied.
@@ -123,10 +135,10 @@ func (r *runner) sink(display func(display.Bundle)) dsl.Sink {
 	sink := dsl.Sink{Display: display}
 	if r.progress {
 		sink.Progress = func(task string, done, total int) {
-			fmt.Fprintf(r.stderr, "\r%s: %3.0f%%", task, 100*float64(done)/float64(max(total, 1)))
 			if done >= total {
-				fmt.Fprint(r.stderr, "\r\033[K")
+				task = ""
 			}
+			r.status(progressLine(r.cell, r.cells, task, done, total))
 		}
 	}
 	return sink
@@ -150,6 +162,8 @@ func (r *runner) script(ctx context.Context, file string) error {
 	if err != nil {
 		return err
 	}
+	r.cell, r.cells = 0, 0 // a script's status line names no cell
+	defer r.clearStatus()
 	var werr error
 	err = s.Exec(ctx, string(src), r.sink(func(b display.Bundle) {
 		if werr != nil {

@@ -69,16 +69,17 @@ func setupE2E(t testing.TB, bin string) *e2eEnv {
 		"JUPYTER_PATH="+e.jupyterPath,
 		"JUPYTER_RUNTIME_DIR="+e.runtimeDir, // connection files stay in the temporary directory
 		"PYTHONDONTWRITEBYTECODE=1",
+		"NUTATE_BIN="+e.bin,
 	)
 	return e
 }
 
 // script runs testdata/e2e/NAME and reports its lines; it returns the figures.
-func (e *e2eEnv) script(t *testing.T, name string, timeout time.Duration) map[string]float64 {
+func (e *e2eEnv) script(t *testing.T, name string, timeout time.Duration, args ...string) map[string]float64 {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), timeout)
 	defer cancel()
-	cmd := exec.CommandContext(ctx, python, name)
+	cmd := exec.CommandContext(ctx, python, append([]string{name}, args...)...)
 	cmd.Dir = filepath.Join("testdata", "e2e")
 	cmd.Env = e.env
 	var stderr bytes.Buffer
@@ -124,6 +125,8 @@ func TestBinary(t *testing.T) {
 	t.Run("signals", func(t *testing.T) { testKernelSignals(t, bin) })
 	t.Run("shutdown_during_cell", func(t *testing.T) { testShutdownDuringCell(t, bin) })
 	t.Run("jupyter", func(t *testing.T) { testJupyterClients(t, bin) })
+	t.Run("slurm_array_example", func(t *testing.T) { testSlurmArrayExample(t, bin) })
+	t.Run("browser", func(t *testing.T) { testBrowser(t, bin) })
 }
 
 func testJupyterClients(t *testing.T, bin string) {
@@ -131,6 +134,7 @@ func testJupyterClients(t *testing.T, bin string) {
 	t.Run("client", func(t *testing.T) { e.script(t, "client.py", 3*time.Minute) })
 	t.Run("adversarial", func(t *testing.T) { e.script(t, "adversarial.py", 5*time.Minute) })
 	t.Run("nbclient", func(t *testing.T) { e.script(t, "notebook.py", 3*time.Minute) })
+	t.Run("conformance", func(t *testing.T) { e.script(t, "conformance.py", 5*time.Minute) })
 	t.Run("console", func(t *testing.T) { testJupyterConsole(t, e) })
 	t.Run("nbconvert", func(t *testing.T) {
 		out := filepath.Join(t.TempDir(), "executed.ipynb")

@@ -10,46 +10,104 @@ import (
 	"Nutate/kernel"
 )
 
-// TestProgressDisplayCleared: a long sweep shows a progress display, updates it in
-// place, and clears it when done, so saved notebooks keep results only; display
-// ids differ between cells (an update reaches every display with its id).
+// TestProgressDisplayCleared: a long sweep shows a progress display and updates
+// it in place; when the work ends, the outputs a front end keeps (display_data
+// appended, update_display_data replacing by display id, clear_output emptying)
+// are the cell's results alone, in order: nothing empty is left to be saved.
+// Display ids differ between cells (an update reaches every display with its id).
 func TestProgressDisplayCleared(t *testing.T) {
 	e := newExecutor(t.TempDir())
-	run := func(code string) []kernel.Output {
+	run := func(code string) ([]kernel.Output, error) {
 		var outs []kernel.Output
-		if err := e.Execute(context.Background(), code, func(o kernel.Output) { outs = append(outs, o) }); err != nil {
-			t.Fatalf("%s: %v", code, err)
-		}
-		return outs
+		err := e.Execute(context.Background(), code, func(o kernel.Output) { outs = append(outs, o) })
+		return outs, err
 	}
-	run("pulse p = sinc(duration = 4 ms, tbw = 8, flip = 90 deg, samples = 4000)")
+	if _, err := run("pulse p = sinc(duration = 4 ms, tbw = 8, flip = 90 deg, samples = 4000)"); err != nil {
+		t.Fatal(err)
+	}
+	// kept applies the messages as a front end does and returns what it stores.
+	kept := func(outs []kernel.Output) []kernel.Output {
+		var store []kernel.Output
+		for _, o := range outs {
+			switch {
+			case o.Clear:
+				store = nil
+			case o.Update:
+				for i := range store {
+					if store[i].DisplayID == o.DisplayID {
+						store[i].Data = o.Data
+					}
+				}
+			default:
+				store = append(store, o)
+			}
+		}
+		return store
+	}
 	ids := map[string]bool{}
-	for cell := 0; cell < 2; cell++ {
-		outs := run("sweep p over offset -20 kHz to 20 kHz points 20000 show mz")
-		last := map[string]kernel.Output{}
-		first := map[string]bool{}
+	cells := []struct {
+		code    string
+		results int // displays of results the cell makes
+	}{
+		{"sweep p over offset -20 kHz to 20 kHz points 3000 show mz", 1},
+		{"print 1 kHz in uT\nsweep p over offset -20 kHz to 20 kHz points 3000 show mz\nprint 2 kHz in uT", 3},
+	}
+	for _, c := range cells {
+		outs, err := run(c.code)
+		if err != nil {
+			t.Fatalf("%s: %v", c.code, err)
+		}
+		progress := map[string]bool{}
 		for _, o := range outs {
 			if o.DisplayID == "" {
 				continue
 			}
-			if !first[o.DisplayID] && o.Update {
-				t.Errorf("cell %d: display %s updated before it was shown", cell, o.DisplayID)
+			if !progress[o.DisplayID] && o.Update {
+				t.Errorf("%q: display %s updated before it was shown", c.code, o.DisplayID)
 			}
-			first[o.DisplayID] = true
-			last[o.DisplayID] = o
+			progress[o.DisplayID] = true
 		}
-		if len(last) == 0 {
-			t.Fatalf("cell %d: a sweep of 8e7 steps showed no progress", cell)
+		if len(progress) == 0 {
+			t.Fatalf("%q: a sweep of 1.2e7 steps showed no progress", c.code)
 		}
-		for id, o := range last {
+		for id := range progress {
 			if ids[id] {
 				t.Errorf("display id %s reused in a later cell", id)
 			}
 			ids[id] = true
-			if text, _ := o.Data["text/plain"].(string); !o.Update || text != "" {
-				t.Errorf("progress display %s not cleared at the end: %+v", id, o)
+		}
+		store := kept(outs)
+		if len(store) != c.results {
+			t.Fatalf("%q: a front end keeps %d outputs, want the %d results: %+v", c.code, len(store), c.results, store)
+		}
+		for i, o := range store {
+			text, _ := o.Data["text/plain"].(string)
+			if o.DisplayID != "" || strings.TrimSpace(text) == "" {
+				t.Errorf("%q: kept output %d is not a result: %+v", c.code, i+1, o)
 			}
 		}
+		if c.results == 3 {
+			first, _ := store[0].Data["text/plain"].(string)
+			last, _ := store[2].Data["text/plain"].(string)
+			if !strings.HasSuffix(first, "µT") || !strings.HasSuffix(last, "µT") {
+				t.Errorf("%q: kept outputs %q … %q, want the prints first and last", c.code, first, last)
+			}
+		}
+	}
+	// Interrupted during the work: the progress line goes too.
+	ctx, cancel := context.WithCancel(context.Background())
+	var outs []kernel.Output
+	err := e.Execute(ctx, "sweep p over offset -20 kHz to 20 kHz points 3000 show mz", func(o kernel.Output) {
+		outs = append(outs, o)
+		if o.DisplayID != "" {
+			cancel()
+		}
+	})
+	if err == nil {
+		t.Fatal("interrupted sweep: got no error")
+	}
+	if store := kept(outs); len(store) != 0 {
+		t.Errorf("interrupted sweep: a front end keeps %+v, want nothing (the error follows)", store)
 	}
 }
 
@@ -75,14 +133,22 @@ func TestHelpLinksNameReadmeSections(t *testing.T) {
 			slugs[b.String()] = true
 		}
 	}
-	links := languageInfo().HelpLinks
+	if links := languageInfo().HelpLinks; len(links) != 0 {
+		t.Errorf("default build: got help links %v, want none (no published address set)", links)
+	}
+	const base = "https://example.org/nutate/README.md"
+	links := helpLinks(base)
 	if len(links) == 0 {
-		t.Fatal("no help links")
+		t.Fatal("no help links with a published address")
 	}
 	for _, l := range links {
-		base, anchor, ok := strings.Cut(l.URL, "#")
-		if !ok || base != readmeURL || !slugs[anchor] {
-			t.Errorf("help link %q → %q: want %s#<a README heading>, headings %v", l.Text, l.URL, readmeURL, slugs)
+		// What classic Notebook makes of the link (requirejs.toUrl appends its
+		// cache buster): the fragment up to ":~:" is still the anchor.
+		opened := l.URL + "?v=0123abcd"
+		rest, directive, ok := strings.Cut(opened, ":~:")
+		base2, anchor, ok2 := strings.Cut(rest, "#")
+		if !ok || !ok2 || base2 != base || !slugs[anchor] || directive != "?v=0123abcd" {
+			t.Errorf("help link %q → %q: want %s#<a README heading>:~:, headings %v", l.Text, l.URL, base, slugs)
 		}
 	}
 }

@@ -50,6 +50,7 @@ commands:
                                install the kernelspec "nutate"
   run [--output F] [--json] [--check] [--set NAME=VALUE] FILE...
                                execute notebooks (.ipynb) or scripts headless
+  run --gather NOTEBOOK...     print every sweep value of notebooks already run as CSV
   help [TOPIC]                 the language reference (statements, shapes, arguments,
                                quantities, units, conventions)
   version                      print the version`

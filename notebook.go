@@ -140,6 +140,8 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 	}
 	count := 0
 	var failed error
+	r.cells = codeCells(nb)
+	defer r.clearStatus()
 	for i, c := range nb["cells"].([]any) {
 		cell, ok := c.(map[string]any)
 		if !ok || cell["cell_type"] != "code" {
@@ -151,6 +153,8 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 			continue
 		}
 		count++
+		r.cell = count
+		r.status(progressLine(count, r.cells, "", 0, 0))
 		outputs := []any{}
 		err := s.Exec(ctx, cellSource(cell), r.sink(func(b display.Bundle) {
 			outputs = append(outputs, displayOutput(b))
@@ -172,7 +176,7 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 	}
 	lang := languageInfo()
 	meta["kernelspec"] = map[string]any{"name": "nutate", "display_name": "Nutate (RF pulses)", "language": "nutate"}
-	meta["language_info"] = map[string]any{"name": lang.Name, "version": lang.Version, "mimetype": lang.Mimetype, "file_extension": lang.FileExtension, "pygments_lexer": lang.PygmentsLexer}
+	meta["language_info"] = lang.Map() // exactly kernel_info's, so opening it leaves it clean
 	settings := []any{}
 	for _, s := range r.sets {
 		settings = append(settings, s)
@@ -310,9 +314,8 @@ func firstDifference(stored, fresh notebook) string {
 }
 
 // withoutEmptyDisplays drops display outputs whose data is an empty text: the
-// kernel's progress display ends so (cleared by an update when the work is
-// done), and a notebook run by a Jupyter client keeps it; a headless run has
-// none.
+// kernel's progress display ended so before it was taken away with clear_output,
+// and notebooks run then by a Jupyter client keep it; a headless run has none.
 func withoutEmptyDisplays(outs []any) []any {
 	var kept []any
 	for _, o := range outs {

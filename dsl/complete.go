@@ -90,6 +90,10 @@ func (c completer) candidates(before, prefix string) []string {
 	case "reset":
 		return nil
 	}
+	if last.Kind == tIdent && (first == "export" && last.Text == "to" || first == "import" && last.Text == "from") ||
+		last.Kind == tIllegal && strings.HasPrefix(last.Text, `"`) {
+		return nil // a file name: nothing of the session fits there
+	}
 	if last.Kind == tNumber && len(toks) >= 2 && toks[len(toks)-2].Text == "points" {
 		return []string{"show", "with"} // a count takes no unit
 	}
@@ -175,6 +179,9 @@ func (c completer) candidates(before, prefix string) []string {
 	}
 	if first == "export" && len(toks) == 1 {
 		return append(c.st.pulseNames(), "sweep")
+	}
+	if first == "export" && len(toks) == 2 && last.Kind == tIdent {
+		return []string{"to"}
 	}
 	if contains([]string{"describe", "sweep", "report", "export"}, first) && (len(toks) == 1 || last.Kind == tComma && clause == "") {
 		return c.st.pulseNames()
@@ -291,4 +298,54 @@ func (s *Session) Inspect(code string, cursor int) (string, bool) {
 		return "", false
 	}
 	return strings.Join(parts, "\n\n"), true
+}
+
+// Vocabulary is the language's words by kind, taken from the tables the parser
+// and evaluator use, for editors' syntax highlighting (the kernelspec's
+// CodeMirror mode is written from it, so the two cannot drift apart).
+type Vocabulary struct {
+	Keywords   []string // statements and the words of their clauses (reserved)
+	Shapes     []string // pulse shapes (train among them)
+	Units      []string // unit spellings, written after a number or `in`
+	Names      []string // arguments, quantities, settings and axes
+	Comment    string   // starts a comment that runs to the end of the line
+	StringQuot string   // opens and closes a string on one line
+}
+
+// Words returns the language's Vocabulary, each list sorted.
+func Words() Vocabulary {
+	names := map[string]bool{}
+	add := func(ws ...string) {
+		for _, w := range ws {
+			names[w] = true
+		}
+	}
+	for _, s := range shapes {
+		add(argNamesOf(s.allArgs())...)
+	}
+	add(argNamesOf(trainArgs)...)
+	add(quantityNames()...)
+	for _, s := range settingTable {
+		add(s.Name)
+	}
+	add(spinAxisNames()...)
+	shapeList := shapeNames()
+	keywords := append([]string{}, reservedWords...)
+	for _, w := range append(append([]string{}, keywords...), shapeList...) {
+		delete(names, w)
+	}
+	v := Vocabulary{
+		Keywords:   keywords,
+		Shapes:     shapeList,
+		Units:      unitNames(),
+		Comment:    "#",
+		StringQuot: `"`,
+	}
+	for n := range names {
+		v.Names = append(v.Names, n)
+	}
+	for _, l := range [][]string{v.Keywords, v.Shapes, v.Units, v.Names} {
+		sort.Strings(l)
+	}
+	return v
 }

@@ -166,7 +166,7 @@ func TestIsComplete(t *testing.T) {
 
 func TestComplete(t *testing.T) {
 	s := NewSession(t.TempDir())
-	if err := s.Exec(context.Background(), "let te = 2 ms\npulse hard = rect(duration = 1 ms, flip = 90 deg)", Sink{}); err != nil {
+	if err := s.Exec(context.Background(), "let te = 2 ms\nlet tbw = 4\npulse hard = rect(duration = 1 ms, flip = 90 deg)", Sink{}); err != nil {
 		t.Fatal(err)
 	}
 	cases := []struct {
@@ -198,6 +198,13 @@ func TestComplete(t *testing.T) {
 		{"sweep hard over offset -1 kHz to 1 kHz ", []string{"points", "step"}, nil},
 		{"report hard as m", []string{"markdown"}, nil},
 		{"help sw", []string{"sweep"}, nil},
+		{"export sweep ", []string{"to"}, []string{"tbw", "te"}},
+	}
+	// A file name follows `to` and `from`: nothing of the session fits there.
+	for _, code := range []string{"export sweep to ", "export hard to ", "export sweep to t", `export sweep to "t`, `import w from `, `import w from "a`} {
+		if got, _, _ := s.Complete(code, len([]rune(code))); len(got) != 0 {
+			t.Errorf("Complete(%q) = %v, want nothing (a file name follows)", code, got)
+		}
 	}
 	for _, c := range cases {
 		got, start, end := s.Complete(c.code, len([]rune(c.code)))

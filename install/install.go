@@ -1,6 +1,7 @@
 // Package install writes and removes the Jupyter kernelspec of the nutate
-// kernel: a directory named "nutate" holding kernel.json and two logos
-// (logo-32x32.png, logo-64x64.png) inside a Jupyter "kernels" directory.
+// kernel: a directory named "nutate" holding kernel.json, two logos
+// (logo-32x32.png, logo-64x64.png) and the resources the caller gives (the
+// front end's kernel.js) inside a Jupyter "kernels" directory.
 //
 // Entry points: UserKernelsDir, PrefixKernelsDir and SysPrefixKernelsDir find
 // where to install; Install writes the spec (idempotently: running it again
@@ -14,6 +15,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 )
 
 // Name is the kernelspec's directory name, the kernel name clients select.
@@ -27,7 +29,13 @@ type Spec struct {
 	InterruptMode string            `json:"interrupt_mode,omitempty"`
 	Env           map[string]string `json:"env,omitempty"`
 	Metadata      map[string]any    `json:"metadata,omitempty"`
+	// Resources are further files of the kernelspec directory, by name (the
+	// front end's kernel.js); not part of kernel.json.
+	Resources map[string][]byte `json:"-"`
 }
+
+// resourceNames are the Resources Install may write, which Uninstall removes.
+var resourceNames = []string{"kernel.js"}
 
 // NewSpec returns the kernelspec that launches binary (an absolute path) as
 // `binary kernel --connection-file {connection_file}`. Interrupts travel as
@@ -100,6 +108,11 @@ func Install(kernelsDir string, spec Spec) (string, error) {
 	if len(spec.Argv) == 0 || !filepath.IsAbs(spec.Argv[0]) {
 		return "", fmt.Errorf("install: argv[0]: got %q, want an absolute path to the binary", first(spec.Argv))
 	}
+	for name := range spec.Resources {
+		if !slices.Contains(resourceNames, name) {
+			return "", fmt.Errorf("install: resource %q: got an unknown name, want one of %v", name, resourceNames)
+		}
+	}
 	dir := filepath.Join(kernelsDir, Name)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return "", fmt.Errorf("install: %w", err)
@@ -115,6 +128,14 @@ func Install(kernelsDir string, spec Spec) (string, error) {
 		{"kernel.json", append(js, '\n')},
 		{"logo-32x32.png", LogoPNG(32)},
 		{"logo-64x64.png", LogoPNG(64)},
+	}
+	for _, name := range resourceNames {
+		if data, ok := spec.Resources[name]; ok {
+			files = append(files, struct {
+				name string
+				data []byte
+			}{name, data})
+		}
 	}
 	for _, f := range files {
 		if err := writeAtomic(filepath.Join(dir, f.name), f.data); err != nil {
@@ -132,7 +153,7 @@ func Uninstall(kernelsDir string) (string, bool, error) {
 	if _, err := os.Stat(dir); errors.Is(err, os.ErrNotExist) {
 		return dir, false, nil
 	}
-	for _, name := range []string{"kernel.json", "logo-32x32.png", "logo-64x64.png"} {
+	for _, name := range append([]string{"kernel.json", "logo-32x32.png", "logo-64x64.png"}, resourceNames...) {
 		if err := os.Remove(filepath.Join(dir, name)); err != nil && !errors.Is(err, os.ErrNotExist) {
 			return dir, true, fmt.Errorf("uninstall: %w", err)
 		}

@@ -137,3 +137,36 @@ func keys(m map[string][]byte) []string {
 	}
 	return k
 }
+
+// TestInstallResources: a spec's resources (kernel.js) are written beside
+// kernel.json, not into it, and removed by Uninstall; an unknown name is refused.
+func TestInstallResources(t *testing.T) {
+	kernels := PrefixKernelsDir(t.TempDir())
+	spec := NewSpec("/opt/nutate/bin/nutate", "9.9")
+	js := []byte("define([], function () { return {onload: function () {}}; });\n")
+	spec.Resources = map[string][]byte{"kernel.js": js}
+	dir, err := Install(kernels, spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, err := os.ReadFile(filepath.Join(dir, "kernel.js")); err != nil || !bytes.Equal(got, js) {
+		t.Fatalf("kernel.js: got %q, %v; want the resource", got, err)
+	}
+	raw, err := os.ReadFile(filepath.Join(dir, "kernel.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if bytes.Contains(raw, []byte("define(")) || bytes.Contains(raw, []byte("Resources")) {
+		t.Errorf("kernel.json carries the resources: %s", raw)
+	}
+	if _, existed, err := Uninstall(kernels); err != nil || !existed {
+		t.Fatalf("Uninstall: existed %v, %v", existed, err)
+	}
+	if _, err := os.Stat(dir); !os.IsNotExist(err) {
+		t.Errorf("after Uninstall: %s still there (%v)", dir, err)
+	}
+	spec.Resources = map[string][]byte{"kernel.css": nil}
+	if _, err := Install(kernels, spec); err == nil {
+		t.Error("an unknown resource name was accepted")
+	}
+}

@@ -14,6 +14,9 @@ type Output struct {
 	// a display.
 	Stream string
 	Text   string
+	// Clear, when set, sends clear_output (wait false) instead: the front end
+	// drops the cell's outputs so far.
+	Clear bool
 }
 
 // Executor runs cells. Implementations keep session state between cells.
@@ -44,6 +47,25 @@ type LanguageInfo struct {
 	CodemirrorMode string
 	Banner         string
 	HelpLinks      []HelpLink
+}
+
+// Map returns language_info as kernel_info_reply carries it. A headless writer
+// stores the same map in a notebook's metadata, so that a front end opening the
+// notebook finds nothing to change (a difference marks it unsaved at once).
+// Without a CodeMirror mode of its own the language is edited as its mimetype.
+func (li LanguageInfo) Map() map[string]any {
+	mode := li.CodemirrorMode
+	if mode == "" {
+		mode = li.Mimetype
+	}
+	return map[string]any{
+		"name":            li.Name,
+		"version":         li.Version,
+		"mimetype":        li.Mimetype,
+		"file_extension":  li.FileExtension,
+		"pygments_lexer":  li.PygmentsLexer,
+		"codemirror_mode": mode,
+	}
 }
 
 // HelpLink is one entry of kernel_info's help_links.

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"log"
 	"runtime/debug"
+	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -148,19 +149,7 @@ func (d *dispatcher) kernelInfo(r request) {
 	for _, h := range li.HelpLinks {
 		links = append(links, map[string]string{"text": h.Text, "url": h.URL})
 	}
-	lang := map[string]any{
-		"name":           li.Name,
-		"version":        li.Version,
-		"mimetype":       li.Mimetype,
-		"file_extension": li.FileExtension,
-		"pygments_lexer": li.PygmentsLexer,
-	}
-	// Without a CodeMirror mode of its own the language is edited as its
-	// mimetype, which front ends show as plain text.
-	lang["codemirror_mode"] = li.CodemirrorMode
-	if li.CodemirrorMode == "" {
-		lang["codemirror_mode"] = li.Mimetype
-	}
+	lang := li.Map()
 	d.answer(r, "kernel_info_reply", map[string]any{
 		"status":                 "ok",
 		"protocol_version":       ProtocolVersion,
@@ -322,6 +311,10 @@ func (d *dispatcher) replyError(r request, msgType, ename, evalue string, extra 
 
 // emit publishes one output of a running cell.
 func (d *dispatcher) emit(req Message, o Output) {
+	if o.Clear {
+		d.pub(req, "clear_output", map[string]any{"wait": false})
+		return
+	}
 	if o.Stream != "" {
 		d.pub(req, "stream", map[string]any{"name": o.Stream, "text": o.Text})
 		return
@@ -449,6 +442,7 @@ func (d *dispatcher) historyRequest(r request) {
 		Stop           int    `json:"stop"`
 		N              int    `json:"n"`
 		Pattern        string `json:"pattern"`
+		Unique         bool   `json:"unique"`
 	}
 	json.Unmarshal(r.msg.Content, &c)
 	d.mu.Lock()
@@ -470,6 +464,11 @@ func (d *dispatcher) historyRequest(r request) {
 			picked = append(picked, entry{i + 1, cells[i]})
 		}
 	case "range":
+		// One session per kernel: 0 (the current one, as negative numbers
+		// count back from it) or its own number; earlier sessions hold nothing.
+		if c.Session != 0 && c.Session != historySession {
+			break
+		}
 		stop := c.Stop
 		if stop <= 0 || stop > len(cells)+1 {
 			stop = len(cells) + 1
@@ -482,6 +481,20 @@ func (d *dispatcher) historyRequest(r request) {
 			if globMatch(c.Pattern, code) {
 				picked = append(picked, entry{i + 1, code})
 			}
+		}
+		if c.Unique {
+			// Keep the latest run of each input, in order (as IPython's history
+			// search does).
+			seen := map[string]bool{}
+			kept := picked[:0:0]
+			for i := len(picked) - 1; i >= 0; i-- {
+				if !seen[picked[i].code] {
+					seen[picked[i].code] = true
+					kept = append(kept, picked[i])
+				}
+			}
+			slices.Reverse(kept)
+			picked = kept
 		}
 		if c.N > 0 && len(picked) > c.N {
 			picked = picked[len(picked)-c.N:]

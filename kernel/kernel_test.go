@@ -41,6 +41,7 @@ func (f *fakeExec) Execute(ctx context.Context, code string, emit func(Output)) 
 		emit(Output{Data: map[string]any{"text/plain": "0%"}, DisplayID: "p1"})
 		emit(Output{Data: map[string]any{"text/plain": "50%"}, DisplayID: "p1", Update: true})
 		emit(Output{Data: map[string]any{"text/plain": "100%"}, DisplayID: "p1", Update: true})
+		emit(Output{Clear: true})
 		return nil
 	case "panic":
 		panic("boom")
@@ -265,9 +266,12 @@ func TestProgressDisplayUpdates(t *testing.T) {
 	r := h.req("execute_request", map[string]any{"code": "progress"})
 	h.d.handle(r, false)
 	pubs := h.collect(t, r)
-	want := []string{"status", "execute_input", "display_data", "update_display_data", "update_display_data", "status"}
+	want := []string{"status", "execute_input", "display_data", "update_display_data", "update_display_data", "clear_output", "status"}
 	if !reflect.DeepEqual(types(pubs), want) {
 		t.Fatalf("iopub: got %v, want %v", types(pubs), want)
+	}
+	if c := content(pubs[5]); !reflect.DeepEqual(c, map[string]any{"wait": false}) {
+		t.Fatalf("clear_output content: got %v, want wait false", c)
 	}
 	for _, m := range pubs[2:5] {
 		tr, _ := field(m, "transient").(map[string]any)
@@ -374,7 +378,7 @@ func TestRequestReplies(t *testing.T) {
 
 func TestHistory(t *testing.T) {
 	h := newHarness()
-	for _, code := range []string{"a", "b", "c"} {
+	for _, code := range []string{"a", "b", "c", "a"} {
 		r := h.req("execute_request", map[string]any{"code": code})
 		h.d.handle(r, false)
 		h.collect(t, r)
@@ -385,9 +389,15 @@ func TestHistory(t *testing.T) {
 		content map[string]any
 		want    []any
 	}{
-		{"tail 2", map[string]any{"hist_access_type": "tail", "n": 2}, []any{[]any{1.0, 2.0, "b"}, []any{1.0, 3.0, "c"}}},
+		{"tail 2", map[string]any{"hist_access_type": "tail", "n": 2}, []any{[]any{1.0, 3.0, "c"}, []any{1.0, 4.0, "a"}}},
 		{"range", map[string]any{"hist_access_type": "range", "start": 1, "stop": 2}, []any{[]any{1.0, 1.0, "a"}}},
-		{"search", map[string]any{"hist_access_type": "search", "pattern": "?"}, []any{[]any{1.0, 1.0, "a"}, []any{1.0, 2.0, "b"}, []any{1.0, 3.0, "c"}}},
+		{"range this session", map[string]any{"hist_access_type": "range", "session": 1, "start": 2, "stop": 4}, []any{[]any{1.0, 2.0, "b"}, []any{1.0, 3.0, "c"}}},
+		{"range previous session", map[string]any{"hist_access_type": "range", "session": -1, "start": 1, "stop": 2}, []any{}},
+		{"range other session", map[string]any{"hist_access_type": "range", "session": 2, "start": 1, "stop": 2}, []any{}},
+		{"search", map[string]any{"hist_access_type": "search", "pattern": "?"}, []any{[]any{1.0, 1.0, "a"}, []any{1.0, 2.0, "b"}, []any{1.0, 3.0, "c"}, []any{1.0, 4.0, "a"}}},
+		{"search unique", map[string]any{"hist_access_type": "search", "pattern": "?", "unique": true}, []any{[]any{1.0, 2.0, "b"}, []any{1.0, 3.0, "c"}, []any{1.0, 4.0, "a"}}},
+		{"search unique a", map[string]any{"hist_access_type": "search", "pattern": "a", "unique": true}, []any{[]any{1.0, 4.0, "a"}}},
+		{"search n", map[string]any{"hist_access_type": "search", "pattern": "?", "n": 2}, []any{[]any{1.0, 3.0, "c"}, []any{1.0, 4.0, "a"}}},
 		{"search none", map[string]any{"hist_access_type": "search", "pattern": "z*"}, []any{}},
 	}
 	for _, tc := range tests {
