@@ -67,4 +67,3 @@ func TestOpenRegularOnly(t *testing.T) {
 	}
 	f.Close()
 }
-
