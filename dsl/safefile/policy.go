@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 )
 
@@ -151,5 +152,5 @@ func (p *Policy) Show(path string) string {
 
 // Outside explains a refusal to the person reading the notebook.
 func (p *Policy) Outside(name string) string {
-	return fmt.Sprintf("%s is outside the notebook's folder %s: files are read and written only inside it unless Nutate was started with --allow-files DIR (or NUTATE_ALLOW_FILES) naming a folder that holds it; a notebook cannot allow more itself", name, p.root)
+	return fmt.Sprintf("%s is outside the notebook's folder: files are read and written only inside it, unless Nutate was started with --allow-files DIR (or NUTATE_ALLOW_FILES) naming a folder that holds it; a notebook cannot allow more itself", strconv.Quote(name))
 }
