@@ -26,7 +26,9 @@ func cmdInstall(args []string) int {
 	prefix := fs.String("prefix", "", "")
 	sysPrefix := fs.Bool("sys-prefix", false, "")
 	uninstall := fs.Bool("uninstall", false, "")
-	const use = "usage: nutate install [--user | --prefix DIR | --sys-prefix] [--uninstall]"
+	var allow allowFlags
+	fs.Var(&allow, "allow-files", "")
+	const use = "usage: nutate install [--user | --prefix DIR | --sys-prefix] [--allow-files DIR]... [--uninstall]"
 	if err := fs.Parse(args); err != nil {
 		fmt.Fprintf(os.Stderr, "nutate install: %v\n%s\n", err, use)
 		return 2
@@ -92,7 +94,20 @@ func cmdInstall(args []string) int {
 		fmt.Fprintf(os.Stderr, "nutate install: %s is a temporary binary of `go run`, gone when it exits; build one to keep and install from it:\n  CGO_ENABLED=0 go build -o nutate . && ./nutate install\n", bin)
 		return 1
 	}
-	dir, err := install.Install(kernels, install.NewSpec(bin, version))
+	spec := install.NewSpec(bin, version)
+	// Folders the kernel may read and write files in beside the notebook's.
+	for _, d := range allow {
+		abs, err := filepath.Abs(d)
+		if err == nil {
+			_, err = os.Stat(abs)
+		}
+		if err != nil {
+			fmt.Fprintf(os.Stderr, "nutate install: --allow-files %s: %v\n", d, err)
+			return 2
+		}
+		spec.Argv = append(spec.Argv, "--allow-files", abs)
+	}
+	dir, err := install.Install(kernels, spec)
 	if err != nil {
 		fmt.Fprintf(os.Stderr, "nutate install: %v\n", err)
 		return 1

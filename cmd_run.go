@@ -32,12 +32,17 @@ func cmdRun(args []string) int {
 	check := fs.Bool("check", false, "notebooks: re-execute and fail if the stored outputs differ from fresh ones")
 	var sets setFlags
 	fs.Var(&sets, "set", "")
+	var allow allowFlags
+	fs.Var(&allow, "allow-files", "")
 	fs.Usage = func() {
-		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...
+		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... [--allow-files DIR]... FILE...
   --output F          notebooks: write the executed notebook to F instead of in place (one input file)
   --json              scripts: print one JSON object (the MIME bundle) per output
   --check             notebooks: re-execute and fail if the stored outputs differ from fresh ones
   --set NAME=VALUE    "let NAME = ..." in the file takes VALUE instead (repeatable)
+  --allow-files DIR   import and export may also use files in DIR (repeatable; also
+                      NUTATE_ALLOW_FILES, a list like PATH); otherwise only files inside
+                      the notebook's folder, and never by the notebook's own choice
 `)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
@@ -66,9 +71,14 @@ func cmdRun(args []string) int {
 		fmt.Fprintln(os.Stderr, "nutate run: --output takes one input file, got", len(files))
 		return 2
 	}
+	allowed, err := allowedFolders(allow)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate run:", err)
+		return 2
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
+	r := runner{json: *asJSON, check: *check, sets: sets, allow: allowed, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
 	for _, f := range files {
 		var err error
 		isNotebook := strings.EqualFold(filepath.Ext(f), ".ipynb")
@@ -95,6 +105,8 @@ func cmdRun(args []string) int {
 type runner struct {
 	json, check bool
 	sets        []string
+	allow       []string // folders allowed for files beside the notebook's
+	beforeWrite func()   // tests: runs between the run and writing the notebook
 	stdout      io.Writer
 	stderr      io.Writer
 	progress    bool
@@ -107,6 +119,9 @@ func (r *runner) session(file string) (*dsl.Session, error) {
 		return nil, err
 	}
 	s := dsl.NewSession(dir)
+	if err := s.AllowFiles(r.allow); err != nil {
+		return nil, err
+	}
 	for _, kv := range r.sets {
 		name, value, ok := strings.Cut(kv, "=")
 		if !ok || strings.TrimSpace(name) == "" {
@@ -142,7 +157,7 @@ func checkOverrides(s *dsl.Session) error {
 
 // script runs a script file, printing each output's text/plain (or JSON bundle).
 func (r *runner) script(ctx context.Context, file string) error {
-	src, err := os.ReadFile(file)
+	src, _, err := readFileState(file)
 	if err != nil {
 		return err
 	}
