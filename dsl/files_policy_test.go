@@ -243,3 +243,18 @@ func TestImportStreamsMemory(t *testing.T) {
 		}
 	}
 }
+
+// A failed write names the target alone (not the temporary file) and changes
+// nothing.
+func TestExportIntoMissingFolder(t *testing.T) {
+	dir := t.TempDir()
+	s := NewSession(dir)
+	runCell(t, s, `pulse r = rect(duration = 100 us, flip = 90 deg)`)
+	tb := errText(t, s, `export r to "sub/r.csv"`)
+	if !strings.Contains(tb, "cannot write sub/r.csv: ") || strings.Contains(tb, ".tmp-") || strings.Contains(tb, dir) {
+		t.Errorf("got %q, want it to name sub/r.csv only", tb)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+		t.Errorf("files left: %v", ents)
+	}
+}

@@ -55,7 +55,9 @@ func writeFile(fsys fileSystem, path string, write func(w io.Writer) error) (err
 		path = real
 	}
 	perm := os.FileMode(0o644)
+	existed := false
 	if info, err := os.Lstat(path); err == nil {
+		existed = true
 		if !info.Mode().IsRegular() {
 			return fmt.Errorf("%s is %s, not a regular file; refusing to replace it", path, kind(info.Mode()))
 		}
@@ -67,14 +69,18 @@ func writeFile(fsys fileSystem, path string, write func(w io.Writer) error) (err
 	}
 	f, err := fsys.createTemp(dir, "."+base+".tmp-*")
 	if err != nil {
-		return fmt.Errorf("cannot write %s: %w", path, err)
+		return fmt.Errorf("cannot write %s: %w", path, bare(err))
 	}
 	tmp := f.Name()
 	defer func() {
 		if err != nil {
 			f.Close()
 			fsys.remove(tmp)
-			err = fmt.Errorf("cannot write %s (it is unchanged): %w", path, err)
+			kept := ""
+			if existed {
+				kept = " (it is unchanged)"
+			}
+			err = fmt.Errorf("cannot write %s%s: %w", path, kept, bare(err))
 		}
 	}()
 	bw := bufio.NewWriterSize(f, 64<<10)
@@ -98,6 +104,20 @@ func writeFile(fsys fileSystem, path string, write func(w io.Writer) error) (err
 	}
 	syncDir(dir)
 	return nil
+}
+
+// bare drops the temporary file's name from an error: messages name the
+// target alone.
+func bare(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) && strings.Contains(filepath.Base(pe.Path), ".tmp-") {
+		return pe.Err
+	}
+	var le *os.LinkError
+	if errors.As(err, &le) {
+		return le.Err
+	}
+	return err
 }
 
 // syncDir makes a rename in dir durable; best effort (Windows cannot open a
