@@ -310,7 +310,7 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 		}
 		output = file
 	}
-	if err := writeAtomic(output, raw); err != nil {
+	if err := writeOutput(output, raw); err != nil {
 		return err
 	}
 	if runErr != nil {
@@ -327,6 +327,24 @@ func writeAtomic(path string, raw []byte) error {
 		_, err := w.Write(raw)
 		return err
 	})
+}
+
+// writeOutput writes an executed notebook: atomically over a regular file,
+// or straight into a device or pipe the person named with --output
+// (/dev/null, /dev/stdout).
+func writeOutput(path string, raw []byte) error {
+	if info, err := os.Stat(path); err == nil && !info.Mode().IsRegular() && !info.IsDir() {
+		f, err := os.OpenFile(path, os.O_WRONLY, 0)
+		if err != nil {
+			return err
+		}
+		_, err = f.Write(raw)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		return err
+	}
+	return writeAtomic(path, raw)
 }
 
 // besidePath is where an in-place run goes when the notebook changed during

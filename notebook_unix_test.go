@@ -5,6 +5,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
@@ -30,5 +31,20 @@ func TestRunRefusesNamedPipe(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), "named pipe") {
 			t.Errorf("%s: got %v, want a refusal naming a named pipe", name, err)
 		}
+	}
+}
+
+// --output may name a device the person chose, such as /dev/null (a run for
+// its errors alone); the notebook itself is left as it was.
+func TestRunOutputDevNull(t *testing.T) {
+	dir := t.TempDir()
+	f := writeNotebook(t, dir, "print 1 kHz in uT")
+	var out bytes.Buffer
+	r := runner{stdout: &out, stderr: &out}
+	if err := r.notebook(context.Background(), f, "/dev/null"); err != nil {
+		t.Fatalf("--output /dev/null: %v", err)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 1 {
+		t.Errorf("files in the folder: %v, want the notebook alone", ents)
 	}
 }
