@@ -3,6 +3,7 @@ package dsl
 import (
 	"bufio"
 	"bytes"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -245,7 +246,7 @@ func (ev *evaluator) importPulse(s *ImportStmt) error {
 		}
 		return errAt(s.PathP, "cannot read %s: %v", shown, strings.Replace(err.Error(), real, shown, 1))
 	}
-	smp, duration, role, err := readWaveformCSV(shown, safefile.LimitReader(f, maxImportBytes), ev.st.nucleus.GammaBar, set.dwell > 0)
+	smp, duration, role, err := readWaveformCSV(shown, ctxReader{ev.ctx, safefile.LimitReader(f, maxImportBytes)}, ev.st.nucleus.GammaBar, set.dwell > 0)
 	f.Close()
 	if err != nil {
 		return errAt(s.PathP, "%v", err)
@@ -468,6 +469,19 @@ func readRow(name string, row int, line string, smp *shape.Samples, colsp *[]csv
 	}
 	*rows++
 	return nil
+}
+
+// ctxReader stops reading once the context is done (an interrupt).
+type ctxReader struct {
+	ctx context.Context
+	r   io.Reader
+}
+
+func (c ctxReader) Read(p []byte) (int, error) {
+	if err := c.ctx.Err(); err != nil {
+		return 0, err
+	}
+	return c.r.Read(p)
 }
 
 // quoteFew quotes at most a few characters of a file's text, so that an error

@@ -2,6 +2,8 @@ package dsl
 
 import (
 	"bytes"
+	"context"
+	"errors"
 	"fmt"
 	"os"
 	"os/exec"
@@ -256,5 +258,36 @@ func TestExportIntoMissingFolder(t *testing.T) {
 	}
 	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
 		t.Errorf("files left: %v", ents)
+	}
+}
+
+// countdownCtx is done after its Err has been asked n times.
+type countdownCtx struct {
+	context.Context
+	n int
+}
+
+func (c *countdownCtx) Err() error {
+	if c.n--; c.n < 0 {
+		return context.Canceled
+	}
+	return nil
+}
+
+// An interrupt stops an import while it reads a large file.
+func TestImportInterrupted(t *testing.T) {
+	dir := t.TempDir()
+	writeFile(t, filepath.Join(dir, "blank.csv"), strings.Repeat("\n", 8<<20)+"0,1e-6\n1e-5,1e-6\n")
+	s := NewSession(dir)
+	ctx := &countdownCtx{Context: context.Background(), n: 20}
+	err := s.Exec(ctx, `import x from "blank.csv"`, Sink{})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("got %v, want an interrupt", err)
+	}
+	if ctx.n > 0 {
+		t.Fatalf("the import did not look at the interrupt (%d checks left)", ctx.n)
+	}
+	if out := execText(t, s, `import x from "blank.csv"`); !strings.Contains(out, "pulse x: imported") {
+		t.Errorf("uninterrupted: got %q", out)
 	}
 }
