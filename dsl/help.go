@@ -72,8 +72,8 @@ const filesHelp = `Files
   A malformed file is refused with the row and column of the fault (quoting at
   most 8 characters of it); an import reads at most 256 MiB, rows of at most 4096
   bytes, and 10⁶ samples.
-  Paths are relative to the notebook's folder and stay inside it: an absolute
-  path, one leaving the folder, or a symbolic link pointing out of it is refused,
+  Paths are relative to the notebook's folder and stay inside it: a path leaving
+  it (absolute elsewhere, .. above it, a symbolic link out of it) is refused,
   unless the person starting Nutate allowed the folder that holds it (nutate run
   --allow-files DIR, nutate install --allow-files DIR, or NUTATE_ALLOW_FILES);
   a notebook cannot allow it itself. Only regular files are read or written (no
