@@ -93,7 +93,7 @@ func writeNotebookFile(t *testing.T, path string, cells ...string) {
 // SVG and its text/plain, and adds a PNG (a grey 480×320 stand-in).
 func figureContract(t *testing.T, path string) {
 	t.Helper()
-	nb, err := readNotebook(path)
+	nb, _, err := readNotebook(path)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -26,7 +26,9 @@ func cmdInstall(args []string) int {
 	prefix := fs.String("prefix", "", "")
 	sysPrefix := fs.Bool("sys-prefix", false, "")
 	uninstall := fs.Bool("uninstall", false, "")
-	const use = "usage: nutate install [--user | --prefix DIR | --sys-prefix] [--uninstall]"
+	var allow allowFlags
+	fs.Var(&allow, "allow-files", "")
+	const use = "usage: nutate install [--user | --prefix DIR | --sys-prefix] [--allow-files DIR]... [--uninstall]"
 	if err := fs.Parse(args); err != nil {
 		fmt.Fprintf(os.Stderr, "nutate install: %v\n%s\n", err, use)
 		return 2
@@ -94,6 +96,18 @@ func cmdInstall(args []string) int {
 	}
 	spec := install.NewSpec(bin, version)
 	spec.Resources = map[string][]byte{"kernel.js": kernelJS()}
+	// Folders the kernel may read and write files in beside the notebook's.
+	for _, d := range allow {
+		abs, err := filepath.Abs(d)
+		if err == nil {
+			_, err = os.Stat(abs)
+		}
+		if err != nil {
+			fmt.Fprintf(os.Stderr, "nutate install: --allow-files %s: %v\n", d, err)
+			return 2
+		}
+		spec.Argv = append(spec.Argv, "--allow-files", abs)
+	}
 	dir, err := install.Install(kernels, spec)
 	if err != nil {
 		fmt.Fprintf(os.Stderr, "nutate install: %v\n", err)

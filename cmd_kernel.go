@@ -17,8 +17,10 @@ func cmdKernel(args []string) int {
 	fs := flag.NewFlagSet("kernel", flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	conn := fs.String("connection-file", "", "Jupyter connection file")
+	var allow allowFlags
+	fs.Var(&allow, "allow-files", "")
 	if err := fs.Parse(args); err != nil {
-		fmt.Fprintf(os.Stderr, "nutate kernel: %v\nusage: nutate kernel --connection-file FILE\n", err)
+		fmt.Fprintf(os.Stderr, "nutate kernel: %v\nusage: nutate kernel --connection-file FILE [--allow-files DIR]...\n", err)
 		return 2
 	}
 	if *conn == "" && fs.NArg() == 1 {
@@ -32,7 +34,19 @@ func cmdKernel(args []string) int {
 	if err != nil {
 		dir = "."
 	}
-	if err := kernel.Run(context.Background(), *conn, newExecutor(dir)); err != nil {
+	// Files beyond the notebook's folder: --allow-files in the kernelspec's
+	// argv (`nutate install --allow-files DIR`) or NUTATE_ALLOW_FILES.
+	allowed, err := allowedFolders(allow)
+	if err != nil {
+		fmt.Fprintf(os.Stderr, "nutate kernel: %v\n", err)
+		return 2
+	}
+	ex := newExecutor(dir)
+	if err := ex.s.AllowFiles(allowed); err != nil {
+		fmt.Fprintf(os.Stderr, "nutate kernel: --allow-files: %v\n", err)
+		return 2
+	}
+	if err := kernel.Run(context.Background(), *conn, ex); err != nil {
 		fmt.Fprintf(os.Stderr, "nutate kernel: %v\n", err)
 		return 1
 	}

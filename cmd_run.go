@@ -33,8 +33,10 @@ func cmdRun(args []string) int {
 	gatherOnly := fs.Bool("gather", false, "notebooks already run: print all their sweeps' values as one CSV table (gather.go)")
 	var sets setFlags
 	fs.Var(&sets, "set", "")
+	var allow allowFlags
+	fs.Var(&allow, "allow-files", "")
 	fs.Usage = func() {
-		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...
+		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... [--allow-files DIR]... FILE...
        nutate run --gather NOTEBOOK... > table.csv
   --output F          notebooks: write the executed notebook to F instead of in place (one input file)
   --json              scripts: print one JSON object (the MIME bundle) per output
@@ -42,6 +44,9 @@ func cmdRun(args []string) int {
   --set NAME=VALUE    "let NAME = ..." in the file takes VALUE instead (repeatable)
   --gather            notebooks already run (e.g. by a job array): print every sweep value
                       as one CSV table, a column per --set name; nothing is executed
+  --allow-files DIR   import and export may also use files in DIR (repeatable; also
+                      NUTATE_ALLOW_FILES, a list like PATH); otherwise only files inside
+                      the notebook's folder, and never by the notebook's own choice
 `)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
@@ -77,9 +82,14 @@ func cmdRun(args []string) int {
 		fmt.Fprintln(os.Stderr, "nutate run: --output takes one input file, got", len(files))
 		return 2
 	}
+	allowed, err := allowedFolders(allow)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate run:", err)
+		return 2
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
+	r := runner{json: *asJSON, check: *check, sets: sets, allow: allowed, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
 	for _, f := range files {
 		var err error
 		isNotebook := strings.EqualFold(filepath.Ext(f), ".ipynb")
@@ -106,6 +116,8 @@ func cmdRun(args []string) int {
 type runner struct {
 	json, check bool
 	sets        []string
+	allow       []string // folders allowed for files beside the notebook's
+	beforeWrite func()   // tests: runs between the run and writing the notebook
 	stdout      io.Writer
 	stderr      io.Writer
 	progress    bool // a status line on stderr (a terminal)
@@ -119,6 +131,9 @@ func (r *runner) session(file string) (*dsl.Session, error) {
 		return nil, err
 	}
 	s := dsl.NewSession(dir)
+	if err := s.AllowFiles(r.allow); err != nil {
+		return nil, err
+	}
 	for _, kv := range r.sets {
 		name, value, ok := strings.Cut(kv, "=")
 		if !ok || strings.TrimSpace(name) == "" {
@@ -154,7 +169,7 @@ func checkOverrides(s *dsl.Session) error {
 
 // script runs a script file, printing each output's text/plain (or JSON bundle).
 func (r *runner) script(ctx context.Context, file string) error {
-	src, err := os.ReadFile(file)
+	src, _, err := readFileState(file)
 	if err != nil {
 		return err
 	}

@@ -120,6 +120,7 @@ func TestBinary(t *testing.T) {
 	t.Run("prebind_init_order", func(t *testing.T) { testPrebindInitOrder(t, bin) })
 	t.Run("install", func(t *testing.T) { testInstallCommand(t, bin) })
 	t.Run("install_refuses_go_run_binary", func(t *testing.T) { testInstallRefusesGoRun(t, bin) })
+	t.Run("install_allow_files", func(t *testing.T) { testInstallAllowFiles(t, bin) })
 	t.Run("command_errors", func(t *testing.T) { testKernelCommandErrors(t, bin) })
 	t.Run("parent_death", func(t *testing.T) { testKernelExitsWhenParentDies(t, bin) })
 	t.Run("signals", func(t *testing.T) { testKernelSignals(t, bin) })

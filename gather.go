@@ -26,7 +26,7 @@ func gather(files []string, w io.Writer) error {
 	var jobs []job
 	names := map[string]bool{}
 	for _, f := range files {
-		nb, err := readNotebook(f)
+		nb, _, err := readNotebook(f)
 		if err != nil {
 			return fmt.Errorf("%s: %v", f, err)
 		}

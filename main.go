@@ -46,11 +46,14 @@ const usage = `usage: nutate COMMAND [ARGS]
 
 commands:
   kernel --connection-file F   run as a Jupyter kernel (what the kernelspec launches)
-  install [--user | --prefix DIR | --sys-prefix] [--uninstall]
+  install [--user | --prefix DIR | --sys-prefix] [--allow-files DIR] [--uninstall]
                                install the kernelspec "nutate"
-  run [--output F] [--json] [--check] [--set NAME=VALUE] FILE...
+  run [--output F] [--json] [--check] [--set NAME=VALUE] [--allow-files DIR] FILE...
                                execute notebooks (.ipynb) or scripts headless
   run --gather NOTEBOOK...     print every sweep value of notebooks already run as CSV
+
+Files: cells read and write only inside the notebook's folder; --allow-files DIR
+(repeatable; or NUTATE_ALLOW_FILES, a list like PATH) allows another folder.
   help [TOPIC]                 the language reference (statements, shapes, arguments,
                                quantities, units, conventions)
   version                      print the version`

@@ -3,16 +3,22 @@ package main
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
+	"time"
+	"unicode/utf8"
 
 	"Nutate/display"
 	"Nutate/dsl"
+	"Nutate/dsl/safefile"
 )
 
 // nbformat 4 notebooks are kept as generic JSON so that fields this program does not
@@ -22,10 +28,63 @@ import (
 
 type notebook map[string]any
 
-func readNotebook(file string) (notebook, error) {
-	raw, err := os.ReadFile(file)
+// maxFileBytes bounds a notebook or script read from disk, counted while
+// reading.
+const maxFileBytes = 512 << 20
+
+// diskState is what a notebook file was when read: an in-place run writes it
+// back only when it is still the same (no edit saved meanwhile).
+type diskState struct {
+	size int64
+	mod  time.Time
+	sum  [sha256.Size]byte
+}
+
+func (a diskState) same(b diskState) bool {
+	return a.size == b.size && a.mod.Equal(b.mod) && a.sum == b.sum
+}
+
+// readFileState reads a regular file (a named pipe or device is refused, not
+// waited on), at most maxFileBytes, with its size, time and hash.
+func readFileState(file string) ([]byte, diskState, error) {
+	f, err := safefile.Open(file)
 	if err != nil {
-		return nil, err
+		return nil, diskState{}, err
+	}
+	defer f.Close()
+	info, err := f.Stat()
+	if err != nil {
+		return nil, diskState{}, err
+	}
+	raw, err := io.ReadAll(safefile.LimitReader(f, maxFileBytes))
+	if err != nil {
+		return nil, diskState{}, err
+	}
+	return raw, diskState{size: info.Size(), mod: info.ModTime(), sum: sha256.Sum256(raw)}, nil
+}
+
+func readNotebook(file string) (notebook, diskState, error) {
+	raw, st, err := readFileState(file)
+	if err != nil {
+		return nil, st, err
+	}
+	nb, err := parseNotebook(raw)
+	return nb, st, err
+}
+
+// parseNotebook reads nbformat 4 (any minor version) JSON: UTF-8 only (the
+// first other byte is named by its offset), one object and nothing after it.
+func parseNotebook(raw []byte) (notebook, error) {
+	if !utf8.Valid(raw) {
+		off := 0
+		for off < len(raw) {
+			r, n := utf8.DecodeRune(raw[off:])
+			if r == utf8.RuneError && n == 1 {
+				break
+			}
+			off += n
+		}
+		return nil, fmt.Errorf("byte %d (line %d) is not UTF-8 (0x%02x): a notebook is UTF-8 JSON", off, bytes.Count(raw[:off], []byte("\n"))+1, raw[off])
 	}
 	dec := json.NewDecoder(bytes.NewReader(raw))
 	dec.UseNumber()
@@ -33,8 +92,19 @@ func readNotebook(file string) (notebook, error) {
 	if err := dec.Decode(&nb); err != nil {
 		return nil, fmt.Errorf("not a notebook (JSON): %v", err)
 	}
-	if v, _ := nb["nbformat"].(json.Number); v.String() != "4" {
+	if end := dec.InputOffset(); len(bytes.TrimSpace(raw[end:])) > 0 {
+		off := int(end) + len(raw[end:]) - len(bytes.TrimLeft(raw[end:], " \t\r\n"))
+		return nil, fmt.Errorf("not a notebook (JSON): data after the notebook's object at byte %d (line %d)", off, bytes.Count(raw[:off], []byte("\n"))+1)
+	}
+	v, _ := nb["nbformat"].(json.Number)
+	if f, err := v.Float64(); err != nil || f != 4 {
 		return nil, fmt.Errorf("nbformat %v: want 4", nb["nbformat"])
+	}
+	if m, ok := nb["nbformat_minor"]; ok {
+		n, isNum := m.(json.Number)
+		if f, err := n.Float64(); !isNum || err != nil || f < 0 || f != math.Trunc(f) {
+			return nil, fmt.Errorf("nbformat_minor %v: want a whole number (0 to 5 are known)", m)
+		}
 	}
 	if _, ok := nb["cells"].([]any); !ok {
 		return nil, errors.New("notebook has no cells list")
@@ -188,7 +258,7 @@ func (r *runner) execute(ctx context.Context, file string, nb notebook) error {
 // notebook executes a notebook and writes it back (or to output); with check set it
 // compares instead of writing.
 func (r *runner) notebook(ctx context.Context, file, output string) error {
-	nb, err := readNotebook(file)
+	nb, before, err := readNotebook(file)
 	if err != nil {
 		return err
 	}
@@ -196,7 +266,7 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 		return fmt.Errorf("a notebook for the %q kernel, not Nutate: nothing was run or written", k)
 	}
 	if r.check {
-		stored, err := readNotebook(file)
+		stored, _, err := readNotebook(file)
 		if err != nil {
 			return err
 		}
@@ -227,10 +297,24 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 	if err != nil {
 		return err
 	}
+	if r.beforeWrite != nil {
+		r.beforeWrite()
+	}
 	if output == "" {
+		// In place: only over the bytes that were run. An edit saved during
+		// the run (from a notebook server, an editor) is kept, and the run
+		// goes beside it. (A save in the instant between this check and
+		// the rename is not seen.)
+		if _, now, err := readFileState(file); err != nil || !now.same(before) {
+			beside := besidePath(file)
+			if err := writeAtomic(beside, raw); err != nil {
+				return fmt.Errorf("%s changed on disk during the run, so it was not overwritten; writing the run beside it failed: %v", file, err)
+			}
+			return fmt.Errorf("%s changed on disk during the run (an edit saved meanwhile?), so it was not overwritten: the run is written beside it to %s", file, beside)
+		}
 		output = file
 	}
-	if err := os.WriteFile(output, raw, 0o644); err != nil {
+	if err := writeOutput(output, raw); err != nil {
 		return err
 	}
 	if runErr != nil {
@@ -238,6 +322,40 @@ func (r *runner) notebook(ctx context.Context, file, output string) error {
 	}
 	fmt.Fprintf(r.stdout, "%s: executed, written to %s\n", file, output)
 	return nil
+}
+
+// writeAtomic replaces a file with raw through a synced temporary file in its
+// folder: on any failure (a full disk) the file keeps its bytes.
+func writeAtomic(path string, raw []byte) error {
+	return safefile.WriteFile(path, func(w io.Writer) error {
+		_, err := w.Write(raw)
+		return err
+	})
+}
+
+// writeOutput writes an executed notebook: atomically over a regular file,
+// or straight into a device or pipe the person named with --output
+// (/dev/null, /dev/stdout).
+func writeOutput(path string, raw []byte) error {
+	if info, err := os.Stat(path); err == nil && !info.Mode().IsRegular() && !info.IsDir() {
+		f, err := os.OpenFile(path, os.O_WRONLY, 0)
+		if err != nil {
+			return err
+		}
+		_, err = f.Write(raw)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		return err
+	}
+	return writeAtomic(path, raw)
+}
+
+// besidePath is where an in-place run goes when the notebook changed during
+// it: nb.ipynb → nb.nutate-run.ipynb.
+func besidePath(file string) string {
+	ext := filepath.Ext(file)
+	return strings.TrimSuffix(file, ext) + ".nutate-run" + ext
 }
 
 // kernelOf is the kernel a notebook's metadata names, or the language it

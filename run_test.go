@@ -124,7 +124,7 @@ func TestRunStopsAtFirstError(t *testing.T) {
 	if err := r.notebook(context.Background(), f, partial); err == nil || !strings.Contains(err.Error(), "written to "+partial) {
 		t.Fatalf("run with --output: err %v, want a failure naming where it wrote", err)
 	}
-	nb, err := readNotebook(partial)
+	nb, _, err := readNotebook(partial)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -172,7 +172,7 @@ func TestCheckUsesRecordedSettingsAndIgnoresProgressLeftovers(t *testing.T) {
 	}
 	// A Jupyter client's run keeps the finished progress display as an empty
 	// display_data output.
-	nb, err := readNotebook(f)
+	nb, _, err := readNotebook(f)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -17,8 +17,8 @@ var statementHelp = []struct{ Name, Syntax, Help string }{
 	{"describe", "describe NAME[, NAME...] [with tr = EXPR]", "plot each pulse's waveform (amplitude, phase, frequency, gradient) and list its properties: duration, samples, peak in µT and Hz, flip, bandwidth, TBW, transition, ripple, energy, slice. The properties come from a simulated profile; for a long pulse (tens of thousands of samples and up) this takes a while and shows its progress, and an interrupt stops it"},
 	{"sweep", "sweep NAME[, NAME...] over AXIS[, AXIS] [show QUANTITY, ...] [with SETTING = EXPR, ...]\nAXIS: KIND FROM to TO (points N | step S)", "simulate the pulses over one axis (curves; several pulses overlay) or two (a map of one quantity, the first axis horizontal). Axes: offset, b1, position, t1, t2, or any argument of the pulse's shape (the pulse is rebuilt at each point and pulse properties can be shown). Without `show`, the quantities follow the first pulse's role. `export sweep to \"file.csv\"` saves the data"},
 	{"print", "print EXPR[, EXPR...]", "show values; `EXPR in UNIT` converts (`1 kHz in uT` through the nucleus, `12 ppm in Hz` through the nucleus and field)"},
-	{"export", "export NAME to \"file.csv\"\nexport sweep to \"file.csv\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration, dwell and role (if any). The phase is B1's own in the carrier frame (any offset's ramp included); the frequency offset is the pulse's centre, or its instantaneous frequency when swept (see `help files`). `export sweep to \"file.csv\"` writes the last sweep's data (axes, then one column per curve). A file that is not an export is never overwritten"},
-	{"import", "import NAME from \"file.csv\" [with dwell = EXPR, flip = EXPR | peak = EXPR, role = ROLE]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), a plain two-column time/amplitude file, or with `with dwell = EXPR` a plain one-column file of amplitudes (T), one sample a row; a file with a time column refuses dwell. Amplitudes are in tesla unless the header names a unit; `flip` or `peak` scales the waveform (a normalised shape), `role` says what it is for (an export's own role otherwise); a peak over 10 mT read as given is refused as a unit mistake. A constant frequency offset column is the pulse's centre, a varying one a frequency modulation (see `help files`). Paths are relative to the notebook's folder"},
+	{"export", "export NAME to \"file.csv\"\nexport sweep to \"file.csv\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration, dwell and role (if any). The phase is B1's own in the carrier frame (any offset's ramp included); the frequency offset is the pulse's centre, or its instantaneous frequency when swept (see `help files`). `export sweep to \"file.csv\"` writes the last sweep's data (axes, then one column per curve). A file that is not an export is never overwritten; the write is atomic, and the path stays in the notebook's folder (see `help files`)"},
+	{"import", "import NAME from \"file.csv\" [with dwell = EXPR, flip = EXPR | peak = EXPR, role = ROLE]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), a plain two-column time/amplitude file, or with `with dwell = EXPR` a plain one-column file of amplitudes (T), one sample a row; a file with a time column refuses dwell. Amplitudes are in tesla unless the header names a unit; `flip` or `peak` scales the waveform (a normalised shape), `role` says what it is for (an export's own role otherwise); a peak over 10 mT read as given is refused as a unit mistake. A constant frequency offset column is the pulse's centre, a varying one a frequency modulation (see `help files`). Paths are relative to the notebook's folder and stay inside it unless the person starting Nutate allowed more (see `help files`)"},
 	{"report", "report NAME[, NAME...] [as markdown | as latex]", "a methods-section table of the pulses: shape, duration, samples, peak in µT and Hz, flip, bandwidth, TBW, energy (with its caution), adiabatic threshold. Like describe, it shows its progress for long pulses"},
 	{"help", "help [TOPIC]", "topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors, or any statement, shape, argument, quantity or unit name"},
 	{"reset", "reset", "forget every name; nucleus 1H, no field"},
@@ -69,8 +69,17 @@ const filesHelp = `Files
   measured around the same centre as the original and gives the same bandwidth,
   rotation, ripples and threshold (design figures such as the TBW are not carried). With dwell it reads a plain column of
   amplitudes (T), one sample a row; a file with a time column refuses dwell.
-  A malformed file is refused with the row and column of the fault. Paths are
-  relative to the notebook's folder.`
+  A malformed file is refused with the row and column of the fault (quoting at
+  most 8 characters of it); an import reads at most 256 MiB, rows of at most 4096
+  bytes, and 10⁶ samples.
+  Paths are relative to the notebook's folder and stay inside it: a path leaving
+  it (absolute elsewhere, .. above it, a symbolic link out of it) is refused,
+  unless the person starting Nutate allowed the folder that holds it (nutate run
+  --allow-files DIR, nutate install --allow-files DIR, or NUTATE_ALLOW_FILES);
+  a notebook cannot allow it itself. Only regular files are read or written (no
+  devices, pipes or /proc files). Outputs name the file by its resolved path.
+  Writes go through a temporary file renamed over the target, so a failed write
+  (a full disk) leaves the old file as it was.`
 
 const errorsHelp = `Errors
   An error names the line and column, repeats the line with a caret under the fault,

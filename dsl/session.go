@@ -52,6 +52,7 @@ type Sink struct {
 // cancellation may come from another goroutine through the context.
 type Session struct {
 	dir       string
+	allow     []string   // further folders for files (AllowFiles)
 	mu        sync.Mutex // guards st (the pointer; a committed state is never changed)
 	st        *state
 	overrides map[string]override

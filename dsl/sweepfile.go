@@ -1,8 +1,8 @@
 package dsl
 
 import (
-	"bytes"
 	"fmt"
+	"io"
 	"strconv"
 	"strings"
 )
@@ -51,19 +51,24 @@ func colName(name, unit string) string {
 // sweepMarker starts the comment line of a sweep export.
 const sweepMarker = "# nutate sweep export"
 
-// csv writes the table with its comment line and header row.
-func (t *sweepTable) csv() []byte {
-	var b bytes.Buffer
-	fmt.Fprintf(&b, "%s: %s, %d points\n", sweepMarker, t.title, len(t.rows))
-	b.WriteString(strings.Join(t.columns, ",") + "\n")
+// writeCSV writes the table with its comment line and header row.
+func (t *sweepTable) writeCSV(w io.Writer) error {
+	if _, err := fmt.Fprintf(w, "%s: %s, %d points\n%s\n", sweepMarker, t.title, len(t.rows), strings.Join(t.columns, ",")); err != nil {
+		return err
+	}
+	var line []byte
 	for _, r := range t.rows {
+		line = line[:0]
 		for i, v := range r {
 			if i > 0 {
-				b.WriteByte(',')
+				line = append(line, ',')
 			}
-			b.WriteString(strconv.FormatFloat(v, 'g', -1, 64))
+			line = strconv.AppendFloat(line, v, 'g', -1, 64)
 		}
-		b.WriteByte('\n')
+		line = append(line, '\n')
+		if _, err := w.Write(line); err != nil {
+			return err
+		}
 	}
-	return b.Bytes()
+	return nil
 }

@@ -133,5 +133,8 @@ func (ev *evaluator) buildTrain(elems []trainElem, named map[string]argVal, call
 	if err != nil {
 		return nil, errAt(callPos, "%s", strings.TrimPrefix(err.Error(), "train: "))
 	}
+	if n := p.Wave.Len(); n > maxPulseSamples {
+		return nil, errAt(callPos, "the train has %d samples in all, over the limit of %d per pulse; use fewer or coarser elements", n, maxPulseSamples)
+	}
 	return p, nil
 }
