@@ -157,6 +157,9 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 		}
 	}
 	span := to.Q.V - from.Q.V
+	if math.IsInf(span, 0) {
+		return nil, errAt(ax.To.Position(), "%s axis from %s to %s spans more than the largest number; want a narrower axis", a.kind, from, to)
+	}
 	if ax.Points != nil {
 		pv, err := ev.evalExpr(ax.Points)
 		if err != nil {

@@ -117,8 +117,11 @@ func (ev *evaluator) buildTrain(elems []trainElem, named map[string]argVal, call
 		b.vals[n] = x
 	}
 	gap := b.num("gap", 0)
-	if gap < 0 || math.IsInf(gap, 0) {
+	if gap < 0 {
 		return nil, errAt(named["gap"].Pos, "gap must not be negative, got %s", named["gap"].Val)
+	}
+	if gap > maxDuration {
+		return nil, errAt(named["gap"].Pos, "gap must be at most %s, got %s", Quantity{maxDuration, dimTime}, named["gap"].Val)
 	}
 	cm := shape.NewCommon()
 	cm.Duration = math.NaN()
