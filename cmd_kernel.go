@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 
+	"Nutate/dsl"
 	"Nutate/kernel"
 )
 
@@ -17,24 +18,41 @@ func cmdKernel(args []string) int {
 	fs := flag.NewFlagSet("kernel", flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	conn := fs.String("connection-file", "", "Jupyter connection file")
+	memory := fs.String("memory", "", "session memory budget")
 	if err := fs.Parse(args); err != nil {
-		fmt.Fprintf(os.Stderr, "nutate kernel: %v\nusage: nutate kernel --connection-file FILE\n", err)
+		fmt.Fprintf(os.Stderr, "nutate kernel: %v\nusage: nutate kernel --connection-file FILE [--memory SIZE]\n", err)
 		return 2
 	}
 	if *conn == "" && fs.NArg() == 1 {
 		*conn = fs.Arg(0)
 	}
 	if *conn == "" || fs.NArg() > 1 {
-		fmt.Fprintln(os.Stderr, "nutate kernel: --connection-file: got none, want the path Jupyter passes\nusage: nutate kernel --connection-file FILE")
+		fmt.Fprintln(os.Stderr, "nutate kernel: --connection-file: got none, want the path Jupyter passes\nusage: nutate kernel --connection-file FILE [--memory SIZE]")
+		return 2
+	}
+	budget, err := memoryBudget(*memory)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate kernel: --memory:", err)
 		return 2
 	}
 	dir, err := os.Getwd()
 	if err != nil {
 		dir = "."
 	}
-	if err := kernel.Run(context.Background(), *conn, newExecutor(dir)); err != nil {
+	ex := newExecutor(dir)
+	ex.s.SetMemoryBudget(budget)
+	if err := kernel.Run(context.Background(), *conn, ex); err != nil {
 		fmt.Fprintf(os.Stderr, "nutate kernel: %v\n", err)
 		return 1
 	}
 	return 0
+}
+
+// memoryBudget is the session memory budget: the --memory flag's value if
+// given, else the environment's (dsl.MemoryBudgetEnv), else the default.
+func memoryBudget(flagValue string) (int64, error) {
+	if flagValue != "" {
+		return dsl.ParseMemory(flagValue)
+	}
+	return dsl.MemoryBudgetFromEnv(os.Getenv)
 }

@@ -32,12 +32,14 @@ func cmdRun(args []string) int {
 	check := fs.Bool("check", false, "notebooks: re-execute and fail if the stored outputs differ from fresh ones")
 	var sets setFlags
 	fs.Var(&sets, "set", "")
+	memory := fs.String("memory", "", "")
 	fs.Usage = func() {
 		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...
   --output F          notebooks: write the executed notebook to F instead of in place (one input file)
   --json              scripts: print one JSON object (the MIME bundle) per output
   --check             notebooks: re-execute and fail if the stored outputs differ from fresh ones
   --set NAME=VALUE    "let NAME = ..." in the file takes VALUE instead (repeatable)
+  --memory SIZE       session memory budget, e.g. 4GiB (default 2GiB, or $NUTATE_MEMORY)
 `)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
@@ -66,9 +68,14 @@ func cmdRun(args []string) int {
 		fmt.Fprintln(os.Stderr, "nutate run: --output takes one input file, got", len(files))
 		return 2
 	}
+	budget, err := memoryBudget(*memory)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate run: --memory:", err)
+		return 2
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
+	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr), budget: budget}
 	for _, f := range files {
 		var err error
 		isNotebook := strings.EqualFold(filepath.Ext(f), ".ipynb")
@@ -98,6 +105,7 @@ type runner struct {
 	stdout      io.Writer
 	stderr      io.Writer
 	progress    bool
+	budget      int64 // session memory budget in bytes; 0: the default
 }
 
 // session returns a fresh session for a file, with the --set overrides applied.
@@ -107,6 +115,9 @@ func (r *runner) session(file string) (*dsl.Session, error) {
 		return nil, err
 	}
 	s := dsl.NewSession(dir)
+	if r.budget > 0 {
+		s.SetMemoryBudget(r.budget)
+	}
 	for _, kv := range r.sets {
 		name, value, ok := strings.Cut(kv, "=")
 		if !ok || strings.TrimSpace(name) == "" {

@@ -23,7 +23,11 @@
 // within the engine's step budget (physics.DefaultMaxSteps), at most 100 000
 // points per axis and 10⁶ per map; a pulse of at most 10⁶ samples with a dwell of
 // at least 10 ns (describe's JSON keeps at most 4096 of them), a peak of at most
-// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns.
+// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns;
+// a duration from 10 ns to 100 s. What a session holds (pulses' samples, arrays
+// shared between copies counted once, and the last sweep's table) and what a
+// sweep needs while it runs stay within its memory budget (memory.go; 2 GiB
+// unless SetMemoryBudget says otherwise).
 package dsl
 
 import (
@@ -56,6 +60,7 @@ type Session struct {
 	st        *state
 	overrides map[string]override
 	used      map[string]bool
+	budget    int64 // memory budget in bytes (memory.go); 0: none
 }
 
 type override struct {
@@ -65,7 +70,7 @@ type override struct {
 
 // NewSession returns a session whose relative file paths resolve against dir.
 func NewSession(dir string) *Session {
-	return &Session{dir: dir, st: newState(), overrides: map[string]override{}, used: map[string]bool{}}
+	return &Session{dir: dir, st: newState(), overrides: map[string]override{}, used: map[string]bool{}, budget: DefaultMemoryBudget}
 }
 
 // Exec runs the statements of src in order, sending each output to sink. The whole
@@ -114,7 +119,8 @@ func cancelled(src string, p Pos, cause error) *CellError {
 // run executes one statement on a copy of the state, with the one recover at the
 // edge of execution.
 func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err error) {
-	ev := &evaluator{ctx: ctx, sess: s, st: s.state().clone(), sink: sink}
+	old := s.state()
+	ev := &evaluator{ctx: ctx, sess: s, st: old.clone(), sink: sink}
 	usedBefore := make(map[string]bool, len(s.used))
 	for k, v := range s.used {
 		usedBefore[k] = v
@@ -138,6 +144,9 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 		if ctxErr := ctx.Err(); ctxErr != nil {
 			return cancelled(src, st.Position(), ctxErr)
 		}
+		return toCellError(src, st, e)
+	}
+	if e := s.checkMemory(st, old, ev.st); e != nil {
 		return toCellError(src, st, e)
 	}
 	s.mu.Lock()

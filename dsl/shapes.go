@@ -760,6 +760,7 @@ func (ev *evaluator) copyPulse(name string, old *pulseDef, c *Call) (*pulseDef, 
 	if err != nil {
 		return nil, inheritedFault(err, name, old, args, changes, c)
 	}
+	shareSamples(p, old.Pulse)
 	nuc := ev.st.nucleus
 	if old.Kind == "train" {
 		nuc = old.Nucleus

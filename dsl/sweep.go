@@ -398,6 +398,9 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	if total > physics.DefaultMaxSteps {
 		return errAt(s.P, "sweep needs %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
 	}
+	if err := ev.needMemory("the sweep", sweepMemory(runs, len(axes), len(qs), n0*n1)); err != nil {
+		return errAt(s.P, "%v", err)
+	}
 	curves, err := ev.runSweep(runs, axes, qs, set, skip, n0, n1, total, "sweep "+joinNames(s.Names))
 	if err != nil {
 		return err
@@ -591,6 +594,20 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 		}
 	}
 	return runs, total, nil
+}
+
+// sweepMemory estimates the bytes a sweep holds while it runs: the rebuilt
+// pulses kept from planning, per cell the quantities' values and magnitudes,
+// one simulated spin's result and a row of the table kept for export.
+func sweepMemory(runs []*sweepRun, axes, quantities, cells int) int64 {
+	var kept int64
+	for _, r := range runs {
+		if r.args != nil && r.p != nil {
+			kept += int64(r.p.Wave.Len())
+		}
+	}
+	perCell := int64(16*quantities + 48 + 24 + 8*(axes+quantities))
+	return kept*40 + int64(cells)*perCell
 }
 
 func pointText(axes []*sweepAxis, fixed map[int]int) string {

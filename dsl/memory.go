@@ -1,0 +1,213 @@
+package dsl
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"Nutate/physics/shape"
+)
+
+// The session memory budget bounds what a session holds from statement to
+// statement (the samples of its pulses, the last sweep's table) and what a sweep
+// needs while it runs. It is set by whoever starts Nutate (`nutate run
+// --memory`, `nutate kernel --memory`, or the environment variable named by
+// MemoryBudgetEnv), never by a notebook.
+const (
+	// DefaultMemoryBudget is the budget of a new session: 2 GiB.
+	DefaultMemoryBudget int64 = 2 << 30
+	// MemoryBudgetEnv names the environment variable that sets the budget
+	// where no --memory flag is given (e.g. NUTATE_MEMORY=4GiB).
+	MemoryBudgetEnv = "NUTATE_MEMORY"
+	// minMemoryBudget keeps a budget typed in the wrong unit from refusing
+	// everything.
+	minMemoryBudget int64 = 64 << 20
+)
+
+// SetMemoryBudget sets the session's memory budget in bytes.
+func (s *Session) SetMemoryBudget(bytes int64) { s.budget = bytes }
+
+// MemoryBudget returns the session's memory budget in bytes.
+func (s *Session) MemoryBudget() int64 { return s.budget }
+
+// ParseMemory reads a memory size: a number with B, KiB, MiB, GiB or TiB (KB,
+// MB, GB, TB and K, M, G, T are read as the same binary units), at least 64 MiB.
+func ParseMemory(text string) (int64, error) {
+	t := strings.TrimSpace(text)
+	i := strings.IndexFunc(t, func(r rune) bool { return !(r >= '0' && r <= '9' || r == '.') })
+	if i < 0 {
+		i = len(t)
+	}
+	num, unit := t[:i], strings.ToLower(strings.TrimSpace(t[i:]))
+	x, err := strconv.ParseFloat(num, 64)
+	shift := map[string]uint{"": 0, "b": 0, "k": 10, "kb": 10, "kib": 10, "m": 20, "mb": 20, "mib": 20, "g": 30, "gb": 30, "gib": 30, "t": 40, "tb": 40, "tib": 40}
+	sh, ok := shift[unit]
+	if err != nil || !ok || math.IsInf(x, 0) || math.IsNaN(x) {
+		return 0, fmt.Errorf("memory: got %q, want a size such as 2GiB or 512MiB", text)
+	}
+	b := x * float64(uint64(1)<<sh)
+	if b < float64(minMemoryBudget) || b > 1<<60 {
+		return 0, fmt.Errorf("memory: got %q, want from 64MiB to 1EiB", text)
+	}
+	return int64(b), nil
+}
+
+// MemoryBudgetFromEnv returns the budget named by the environment variable
+// MemoryBudgetEnv (value as given by getenv), or DefaultMemoryBudget when unset.
+func MemoryBudgetFromEnv(getenv func(string) string) (int64, error) {
+	v := getenv(MemoryBudgetEnv)
+	if v == "" {
+		return DefaultMemoryBudget, nil
+	}
+	n, err := ParseMemory(v)
+	if err != nil {
+		return 0, fmt.Errorf("%s: %v", MemoryBudgetEnv, err)
+	}
+	return n, nil
+}
+
+// formatMemory writes a size for messages: "2 GiB", "24.4 MiB", "512 KiB".
+func formatMemory(n int64) string {
+	units := []string{"B", "KiB", "MiB", "GiB", "TiB"}
+	x, u := float64(n), 0
+	for x >= 1024 && u < len(units)-1 {
+		x /= 1024
+		u++
+	}
+	return formatNumber(roundSig(x, 3)) + " " + units[u]
+}
+
+// memoryUse counts the bytes a state holds, each shared array once.
+type memoryUse struct {
+	seen   map[any]bool
+	bytes  int64
+	pulses int
+}
+
+func (m *memoryUse) add(p any, n int64) {
+	if n == 0 || m.seen[p] {
+		return
+	}
+	m.seen[p] = true
+	m.bytes += n
+}
+
+func (m *memoryUse) pulse(p *shape.Pulse) {
+	if p == nil {
+		return
+	}
+	w := &p.Wave
+	if len(w.B1) > 0 {
+		m.add(&w.B1[0], 16*int64(len(w.B1)))
+	}
+	if len(w.Dwell) > 0 {
+		m.add(&w.Dwell[0], 8*int64(len(w.Dwell)))
+	}
+	if len(w.Gradient) > 0 {
+		m.add(&w.Gradient[0], 8*int64(len(w.Gradient)))
+	}
+	if len(p.Freq) > 0 {
+		m.add(&p.Freq[0], 8*int64(len(p.Freq)))
+	}
+}
+
+func (m *memoryUse) def(d *pulseDef) {
+	if d == nil || m.seen[d] {
+		return
+	}
+	m.seen[d] = true
+	m.pulses++
+	m.pulse(d.Pulse)
+	for _, e := range d.Elems {
+		m.def(e.Def)
+	}
+}
+
+// stateMemory counts what st holds: its pulses' samples (arrays shared between
+// pulses once) and the last sweep's table.
+func stateMemory(st *state) memoryUse {
+	m := memoryUse{seen: map[any]bool{}}
+	for _, b := range st.names {
+		m.def(b.pulse)
+	}
+	if t := st.last; t != nil {
+		m.bytes += int64(len(t.rows)) * (24 + 8*int64(len(t.columns)))
+	}
+	return m
+}
+
+// budgetError is the error of a statement that would take the session past
+// its memory budget.
+func (s *Session) budgetError(what string, need, held int64, pulses int) error {
+	holds := formatMemory(held)
+	if pulses > 0 {
+		holds += fmt.Sprintf(" in %d pulses", pulses)
+	}
+	return fmt.Errorf("session memory budget of %s reached: %s needs %s and the session holds %s; "+
+		"free some with `reset` or by redefining names, or start Nutate with a larger budget (`nutate run --memory 4GiB`, `nutate kernel --memory 4GiB`, or %s=4GiB)",
+		formatMemory(s.budget), what, formatMemory(need), holds, MemoryBudgetEnv)
+}
+
+// checkMemory refuses a statement whose new state would pass the budget while
+// holding more than the committed one.
+func (s *Session) checkMemory(stmt Stmt, old, next *state) error {
+	if s.budget <= 0 {
+		return nil
+	}
+	after := stateMemory(next)
+	if after.bytes <= s.budget {
+		return nil
+	}
+	before := stateMemory(old)
+	if after.bytes <= before.bytes {
+		return nil
+	}
+	what := "this statement"
+	switch x := stmt.(type) {
+	case *PulseStmt:
+		what = "pulse " + x.Name.Name
+	case *ImportStmt:
+		what = "imported pulse " + x.Name.Name
+	case *SweepStmt:
+		what = "the sweep's table"
+	}
+	return s.budgetError(what, after.bytes-before.bytes, before.bytes, before.pulses)
+}
+
+// needMemory refuses work that needs bytes beyond what the committed state
+// leaves of the budget (a sweep's arrays while it runs).
+func (ev *evaluator) needMemory(what string, bytes int64) error {
+	s := ev.sess
+	if s.budget <= 0 {
+		return nil
+	}
+	held := stateMemory(ev.st)
+	if held.bytes+bytes <= s.budget {
+		return nil
+	}
+	return s.budgetError(what, bytes, held.bytes, held.pulses)
+}
+
+// shareSamples makes p use src's arrays where they hold the same numbers, so a
+// copy that changes nothing, or only what does not touch the samples' timing,
+// holds no second copy of them. Arrays of a built pulse are never written
+// again, so sharing them is safe.
+func shareSamples(p, src *shape.Pulse) {
+	if p == nil || src == nil {
+		return
+	}
+	if slices.Equal(p.Wave.B1, src.Wave.B1) {
+		p.Wave.B1 = src.Wave.B1
+	}
+	if slices.Equal(p.Wave.Dwell, src.Wave.Dwell) {
+		p.Wave.Dwell = src.Wave.Dwell
+	}
+	if p.Wave.Gradient != nil && slices.Equal(p.Wave.Gradient, src.Wave.Gradient) {
+		p.Wave.Gradient = src.Wave.Gradient
+	}
+	if p.Freq != nil && slices.Equal(p.Freq, src.Freq) {
+		p.Freq = src.Freq
+	}
+}

@@ -1,0 +1,171 @@
+package dsl
+
+import (
+	"context"
+	"fmt"
+	"os"
+	"os/exec"
+	"strconv"
+	"strings"
+	"syscall"
+	"testing"
+)
+
+func TestParseMemory(t *testing.T) {
+	for _, c := range []struct {
+		in   string
+		want int64
+	}{
+		{"2GiB", 2 << 30}, {"2G", 2 << 30}, {"512MiB", 512 << 20}, {"512 MB", 512 << 20},
+		{"1.5GiB", 3 << 29}, {"67108864", 64 << 20}, {"1TiB", 1 << 40},
+	} {
+		got, err := ParseMemory(c.in)
+		if err != nil || got != c.want {
+			t.Errorf("ParseMemory(%q) = %d, %v; want %d", c.in, got, err, c.want)
+		}
+	}
+	for _, bad := range []string{"", "2", "1MiB", "2 parsecs", "-1GiB", "GiB", "1e400GiB"} {
+		if n, err := ParseMemory(bad); err == nil {
+			t.Errorf("ParseMemory(%q) = %d, want an error", bad, n)
+		}
+	}
+	env := func(v string) func(string) string { return func(string) string { return v } }
+	if n, err := MemoryBudgetFromEnv(env("")); err != nil || n != DefaultMemoryBudget {
+		t.Errorf("unset: got %d, %v; want the default", n, err)
+	}
+	if n, err := MemoryBudgetFromEnv(env("3GiB")); err != nil || n != 3<<30 {
+		t.Errorf("3GiB: got %d, %v", n, err)
+	}
+	if _, err := MemoryBudgetFromEnv(env("lots")); err == nil || !strings.Contains(err.Error(), MemoryBudgetEnv) {
+		t.Errorf("lots: got %v, want an error naming %s", err, MemoryBudgetEnv)
+	}
+}
+
+// TestMemoryCountsSharedSamplesOnce: a copy that changes nothing shares every
+// array of its original; a copy with another phase shares the dwell times and
+// holds its own amplitudes (16 bytes a sample).
+func TestMemoryCountsSharedSamplesOnce(t *testing.T) {
+	s := NewSession(t.TempDir())
+	held := func() int64 { return stateMemory(s.state()).bytes }
+	run := func(src string) {
+		t.Helper()
+		if err := s.Exec(context.Background(), src, Sink{}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	const n = 100_000
+	run(fmt.Sprintf("pulse p = rect(duration = 10 ms, flip = 90 deg, samples = %d)", n))
+	if got, want := held(), int64(24*n); got != want {
+		t.Fatalf("one pulse: %d bytes, want %d (16 a sample for B1, 8 for the dwell)", got, want)
+	}
+	run("pulse q = p()\npulse r = q()")
+	if got, want := held(), int64(24*n); got != want {
+		t.Fatalf("two unchanged copies: %d bytes, want %d (all shared)", got, want)
+	}
+	run("pulse u = p(phase = 90 deg)")
+	if got, want := held(), int64(40*n); got != want {
+		t.Fatalf("a copy with another phase: %d bytes, want %d (its own B1)", got, want)
+	}
+}
+
+func TestMemoryBudgetRefuses(t *testing.T) {
+	s := NewSession(t.TempDir())
+	s.SetMemoryBudget(64 << 20)
+	ctx := context.Background()
+	if err := s.Exec(ctx, "pulse p = rect(duration = 10 ms, flip = 90 deg, samples = 1000000)", Sink{}); err != nil {
+		t.Fatal(err)
+	}
+	var err error
+	i := 1
+	for ; i <= 10 && err == nil; i++ {
+		err = s.Exec(ctx, fmt.Sprintf("pulse p%d = p(phase = %d deg)", i, i), Sink{})
+	}
+	// 24 MB for p, 16 MB for each copy: p1, p2 fit in 64 MiB, p3 does not.
+	want := "session memory budget of 64 MiB reached: pulse p3 needs 15.3 MiB and the session holds 53.4 MiB in 3 pulses"
+	if err == nil || i-1 != 3 || !strings.Contains(err.Error(), want) || !strings.Contains(err.Error(), "--memory") {
+		t.Fatalf("copy %d: got %v, want %q naming how to raise it", i-1, err, want)
+	}
+	if _, ok := s.state().names["p3"]; ok {
+		t.Fatal("the refused pulse was kept")
+	}
+	// A sweep's arrays count too: a 1000 × 1000 map needs more than is left.
+	err = s.Exec(ctx, "pulse h = rect(duration = 1 ms, flip = 90 deg)\nsweep h over offset -1 kHz to 1 kHz points 1000, b1 0.5 to 1.5 points 1000", Sink{})
+	if err == nil || !strings.Contains(err.Error(), "session memory budget of 64 MiB reached: the sweep needs") {
+		t.Fatalf("map: got %v, want the budget error", err)
+	}
+	// Freed by redefining: p1 again with its own phase fits.
+	if err := s.Exec(ctx, "reset\npulse p = rect(duration = 10 ms, flip = 90 deg, samples = 1000000)\npulse p1 = p(phase = 1 deg)", Sink{}); err != nil {
+		t.Fatalf("after reset: %v", err)
+	}
+}
+
+// memoryChildEnv makes the test binary run TestMemoryBudgetCappedChild's
+// child: the script of the report (a 10⁶-sample pulse, then 200 short
+// lines each copying it with another phase, 16 MB each, 3.2 GB in all).
+const memoryChildEnv = "NUTATE_DSL_MEMORY_CHILD"
+
+// childHeadroom caps the child's address space at what it has mapped when it
+// starts plus this much: far below the 3.2 GB the 200 copies would take, well
+// above a 256 MiB budget plus the garbage of the builds.
+const childHeadroom = 1 << 30
+
+func TestMemoryBudgetCappedChild(t *testing.T) {
+	if os.Getenv(memoryChildEnv) == "1" {
+		memoryChild()
+		return
+	}
+	if testing.Short() {
+		t.Skip("runs a child process")
+	}
+	cmd := exec.Command(os.Args[0], "-test.run=^TestMemoryBudgetCappedChild$")
+	cmd.Env = append(os.Environ(), memoryChildEnv+"=1")
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		t.Fatalf("child killed or failed (%v): %s", err, lastLines(string(out), 5))
+	}
+	if !strings.Contains(string(out), "session memory budget of 256 MiB reached: pulse p") {
+		t.Fatalf("child output: %s", lastLines(string(out), 5))
+	}
+	t.Log(lastLines(string(out), 2))
+}
+
+func memoryChild() {
+	size := vmSize()
+	lim := syscall.Rlimit{Cur: uint64(size + childHeadroom), Max: uint64(size + childHeadroom)}
+	if err := syscall.Setrlimit(syscall.RLIMIT_AS, &lim); size == 0 || err != nil {
+		fmt.Println("cannot cap the address space")
+		os.Exit(2)
+	}
+	s := NewSession(os.TempDir())
+	s.SetMemoryBudget(256 << 20)
+	var src strings.Builder
+	src.WriteString("pulse p = rect(duration = 10 ms, flip = 90 deg, samples = 1000000)\n")
+	for i := 1; i <= 200; i++ {
+		fmt.Fprintf(&src, "pulse p%d = p(phase = %d deg)\n", i, i)
+	}
+	err := s.Exec(context.Background(), src.String(), Sink{})
+	fmt.Printf("peak RSS %d MiB\n%v\n", vmField("VmHWM:")>>20, err)
+	os.Exit(0)
+}
+
+func vmSize() int { return vmField("VmSize:") }
+
+// vmField reads a size field of /proc/self/status in bytes, 0 if absent.
+func vmField(name string) int {
+	b, err := os.ReadFile("/proc/self/status")
+	if err != nil {
+		return 0
+	}
+	for _, l := range strings.Split(string(b), "\n") {
+		if f := strings.Fields(l); len(f) == 3 && f[0] == name {
+			kb, _ := strconv.Atoi(f[1])
+			return kb << 10
+		}
+	}
+	return 0
+}
+
+func lastLines(s string, n int) string {
+	lines := strings.Split(strings.TrimSpace(s), "\n")
+	return strings.Join(lines[max(0, len(lines)-n):], "\n")
+}
