@@ -33,6 +33,7 @@ func cmdRun(args []string) int {
 	var sets setFlags
 	fs.Var(&sets, "set", "")
 	memory := fs.String("memory", "", "")
+	work := fs.String("work", "", "")
 	fs.Usage = func() {
 		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... FILE...
   --output F          notebooks: write the executed notebook to F instead of in place (one input file)
@@ -40,6 +41,7 @@ func cmdRun(args []string) int {
   --check             notebooks: re-execute and fail if the stored outputs differ from fresh ones
   --set NAME=VALUE    "let NAME = ..." in the file takes VALUE instead (repeatable)
   --memory SIZE       session memory budget, e.g. 4GiB (default 2GiB, or $NUTATE_MEMORY)
+  --work STEPS        work budget of a sweep, describe or report in isochromat-steps (default 4e10, or $NUTATE_WORK)
 `)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
@@ -73,9 +75,14 @@ func cmdRun(args []string) int {
 		fmt.Fprintln(os.Stderr, "nutate run: --memory:", err)
 		return 2
 	}
+	workBudget, err := workBudget(*work)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate run: --work:", err)
+		return 2
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr), budget: budget}
+	r := runner{json: *asJSON, check: *check, sets: sets, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr), budget: budget, work: workBudget}
 	for _, f := range files {
 		var err error
 		isNotebook := strings.EqualFold(filepath.Ext(f), ".ipynb")
@@ -105,7 +112,8 @@ type runner struct {
 	stdout      io.Writer
 	stderr      io.Writer
 	progress    bool
-	budget      int64 // session memory budget in bytes; 0: the default
+	budget      int64   // session memory budget in bytes; 0: the default
+	work        float64 // work budget in isochromat-steps; 0: the default
 }
 
 // session returns a fresh session for a file, with the --set overrides applied.
@@ -117,6 +125,9 @@ func (r *runner) session(file string) (*dsl.Session, error) {
 	s := dsl.NewSession(dir)
 	if r.budget > 0 {
 		s.SetMemoryBudget(r.budget)
+	}
+	if r.work > 0 {
+		s.SetWorkBudget(r.work)
 	}
 	for _, kv := range r.sets {
 		name, value, ok := strings.Cut(kv, "=")

@@ -395,13 +395,13 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	if err != nil {
 		return err
 	}
-	if total > physics.DefaultMaxSteps {
-		return errAt(s.P, "sweep needs %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+	if err := ev.checkWork("sweep", total); err != nil {
+		return errAt(s.P, "%v", err)
 	}
 	if err := ev.needMemory("the sweep", sweepMemory(runs, len(axes), len(qs), n0*n1)); err != nil {
 		return errAt(s.P, "%v", err)
 	}
-	curves, err := ev.runSweep(runs, axes, qs, set, skip, n0, n1, total, "sweep "+joinNames(s.Names))
+	curves, err := ev.runSweep(runs, axes, qs, set, skip, n0, n1, total, workLabel("sweep "+joinNames(s.Names), total))
 	if err != nil {
 		return err
 	}
@@ -581,8 +581,8 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 			if needMeasure {
 				total += measureCost * n
 			}
-			if total > physics.DefaultMaxSteps {
-				return nil, 0, errAt(axes[0].pos, "sweep needs more than %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+			if total > ev.workBudget() {
+				return nil, 0, errAt(axes[0].pos, "%s", strings.Replace(ev.checkWork("sweep", total).Error(), "needs", "needs more than", 1))
 			}
 			if r.args != nil {
 				// Keep rebuilt pulses while they are small; rebuild the rest when run.
@@ -741,7 +741,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			return err
 		}
 		iso = keepSpins(iso, skip)
-		opt := physics.Options{Start: set.start}
+		opt := physics.Options{Start: set.start, MaxSteps: ev.workBudget()}
 		base := 0.0
 		if prog != nil {
 			prog.mu.Lock()

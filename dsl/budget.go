@@ -1,12 +1,16 @@
 package dsl
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
+	"time"
 
+	"Nutate/physics"
 	"Nutate/physics/shape"
 )
 
@@ -210,4 +214,113 @@ func shareSamples(p, src *shape.Pulse) {
 	if p.Freq != nil && slices.Equal(p.Freq, src.Freq) {
 		p.Freq = src.Freq
 	}
+}
+
+// The work budget bounds the isochromat-steps (spins × samples simulated) of
+// one statement: a sweep, or the measurements of describe and report. Its
+// default is the engine's (physics.DefaultMaxSteps); whoever starts Nutate may
+// change it (`--work`, or the environment variable named by WorkBudgetEnv).
+const WorkBudgetEnv = "NUTATE_WORK"
+
+// SetWorkBudget sets the session's work budget in isochromat-steps.
+func (s *Session) SetWorkBudget(steps float64) { s.work = steps }
+
+// WorkBudget returns the session's work budget in isochromat-steps.
+func (s *Session) WorkBudget() float64 { return s.work }
+
+// ParseWork reads a work budget: a number of isochromat-steps from 1e6 to
+// 1e15 (e.g. 1e11).
+func ParseWork(text string) (float64, error) {
+	x, err := strconv.ParseFloat(strings.TrimSpace(text), 64)
+	if err != nil || !(x >= 1e6 && x <= 1e15) {
+		return 0, fmt.Errorf("work: got %q, want a number of isochromat-steps from 1e6 to 1e15, such as 1e11", text)
+	}
+	return x, nil
+}
+
+// WorkBudgetFromEnv returns the budget named by WorkBudgetEnv, or
+// physics.DefaultMaxSteps when unset.
+func WorkBudgetFromEnv(getenv func(string) string) (float64, error) {
+	v := getenv(WorkBudgetEnv)
+	if v == "" {
+		return physics.DefaultMaxSteps, nil
+	}
+	x, err := ParseWork(v)
+	if err != nil {
+		return 0, fmt.Errorf("%s: %v", WorkBudgetEnv, err)
+	}
+	return x, nil
+}
+
+// workBudget is the session's budget, the engine's default when unset.
+func (ev *evaluator) workBudget() float64 {
+	if ev.sess == nil || ev.sess.work <= 0 {
+		return physics.DefaultMaxSteps
+	}
+	return ev.sess.work
+}
+
+// checkWork refuses work of steps isochromat-steps over the work budget,
+// saying how long it would take here and how to raise the budget.
+func (ev *evaluator) checkWork(what string, steps float64) error {
+	if steps <= ev.workBudget() {
+		return nil
+	}
+	return fmt.Errorf("%s needs %.3g isochromat-steps (%s here), over the session's work budget of %.3g; use fewer points or samples, or start Nutate with a larger budget (`nutate run --work 1e11`, `nutate kernel --work 1e11`, or %s=1e11)",
+		what, steps, durationText(steps/engineRate()), ev.workBudget(), WorkBudgetEnv)
+}
+
+// workLabel is a progress label with the time the work will take here, when
+// that is long enough to be worth saying (5 s or more).
+func workLabel(task string, steps float64) string {
+	if steps < 1e8 {
+		return task // under 5 s even at a slow 2e7 steps/s: no need to time the engine
+	}
+	if t := steps / engineRate(); t >= 5 {
+		return task + " (" + durationText(t) + ")"
+	}
+	return task
+}
+
+// durationText says roughly how long t seconds is: "about 40 s", "about 3 min".
+func durationText(t float64) string {
+	switch {
+	case t < 90:
+		return fmt.Sprintf("about %.0f s", math.Max(1, t))
+	case t < 90*60:
+		return fmt.Sprintf("about %.0f min", t/60)
+	default:
+		return fmt.Sprintf("about %.1f h", t/3600)
+	}
+}
+
+var (
+	rateOnce sync.Once
+	rate     float64
+)
+
+// engineRate is the engine's speed on this machine in isochromat-steps per
+// second, timed once on a small simulation (a million steps) over all cores,
+// as sweeps and measurements run. Estimates made with it are rough: other
+// work on the machine changes it.
+func engineRate() float64 {
+	rateOnce.Do(func() {
+		const spins, samples = 256, 4096
+		w := physics.Waveform{Dwell: make([]float64, samples), B1: make([]complex128, samples)}
+		for j := range w.Dwell {
+			w.Dwell[j], w.B1[j] = 1e-6, 1e-6
+		}
+		iso := &physics.Isochromats{Offset: make([]float64, spins)}
+		for i := range iso.Offset {
+			iso.Offset[i] = float64(i)
+		}
+		t0 := time.Now()
+		_, err := physics.Simulate(context.Background(), &w, 2.675e8, iso, physics.Options{})
+		el := time.Since(t0).Seconds()
+		rate = 2e7 // a cautious figure if the timing fails
+		if err == nil && el > 0 {
+			rate = spins * samples / el
+		}
+	})
+	return rate
 }

@@ -169,3 +169,55 @@ func lastLines(s string, n int) string {
 	lines := strings.Split(strings.TrimSpace(s), "\n")
 	return strings.Join(lines[max(0, len(lines)-n):], "\n")
 }
+
+// TestWorkBudgetCoversMeasurements: describe and report are refused before
+// they start when their measurements pass the work budget, with the steps, a
+// time estimate and how to raise the budget.
+func TestWorkBudgetCoversMeasurements(t *testing.T) {
+	s := NewSession(t.TempDir())
+	ctx := context.Background()
+	if err := s.Exec(ctx, "pulse h = hsec(duration = 10 ms, peak = 20 uT, bandwidth = 4 kHz, samples = 100000, role = invert)", Sink{}); err != nil {
+		t.Fatal(err)
+	}
+	s.SetWorkBudget(1e7)
+	for _, stmt := range []string{"describe h", "report h"} {
+		progress := 0
+		err := s.Exec(ctx, stmt, Sink{Progress: func(string, int, int) { progress++ }})
+		want := stmt + " needs 2.25e+08 isochromat-steps (about "
+		if err == nil || !strings.Contains(err.Error(), want) || !strings.Contains(err.Error(), "over the session's work budget of 1e+07") || !strings.Contains(err.Error(), "--work 1e11") {
+			t.Errorf("%s: got %v, want %q with the budget and how to raise it", stmt, err, want)
+		}
+		if progress != 0 {
+			t.Errorf("%s: %d progress reports, want the refusal before any work", stmt, progress)
+		}
+	}
+	if err := s.Exec(ctx, "sweep h over offset -1 kHz to 1 kHz points 200", Sink{}); err == nil || !strings.Contains(err.Error(), "sweep needs more than 2e+07 isochromat-steps") {
+		t.Errorf("sweep: got %v, want it under the same budget", err)
+	}
+	s.SetWorkBudget(3e8)
+	if err := s.Exec(ctx, "sweep h over offset -1 kHz to 1 kHz points 200", Sink{}); err != nil {
+		t.Errorf("sweep within a raised budget: %v", err)
+	}
+}
+
+func TestWorkBudgetText(t *testing.T) {
+	for _, c := range []struct {
+		t    float64
+		want string
+	}{{0.2, "about 1 s"}, {30, "about 30 s"}, {600, "about 10 min"}, {7200, "about 2.0 h"}} {
+		if got := durationText(c.t); got != c.want {
+			t.Errorf("durationText(%g) = %q, want %q", c.t, got, c.want)
+		}
+	}
+	if got := workLabel("sweep p", 1e6); got != "sweep p" {
+		t.Errorf("short work: label %q, want no estimate", got)
+	}
+	for _, bad := range []string{"", "lots", "1e3", "1e20", "NaN"} {
+		if x, err := ParseWork(bad); err == nil {
+			t.Errorf("ParseWork(%q) = %g, want an error", bad, x)
+		}
+	}
+	if x, err := ParseWork("1e11"); err != nil || x != 1e11 {
+		t.Errorf("ParseWork(1e11) = %g, %v", x, err)
+	}
+}
