@@ -45,11 +45,13 @@ func realMain(args []string) int {
 const usage = `usage: nutate COMMAND [ARGS]
 
 commands:
-  kernel --connection-file F   run as a Jupyter kernel (what the kernelspec launches)
+  kernel --connection-file F [--memory SIZE] [--work STEPS]
+                               run as a Jupyter kernel (what the kernelspec launches)
   install [--user | --prefix DIR | --sys-prefix] [--uninstall]
                                install the kernelspec "nutate"
-  run [--output F] [--json] [--check] [--set NAME=VALUE] FILE...
+  run [--output F] [--json] [--check] [--set NAME=VALUE] [--memory SIZE] [--work STEPS] FILE...
                                execute notebooks (.ipynb) or scripts headless
+                               (--memory, --work: the session's budgets; see the README's Limits)
   help [TOPIC]                 the language reference (statements, shapes, arguments,
                                quantities, units, conventions)
   version                      print the version`
