@@ -129,6 +129,9 @@ func (r *runner) session(file string) (*dsl.Session, error) {
 	if r.work > 0 {
 		s.SetWorkBudget(r.work)
 	}
+	if strings.EqualFold(filepath.Ext(file), ".ipynb") {
+		s.KeepOutputs() // held until the notebook is written
+	}
 	for _, kv := range r.sets {
 		name, value, ok := strings.Cut(kv, "=")
 		if !ok || strings.TrimSpace(name) == "" {

@@ -2,6 +2,7 @@ package dsl
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"math"
 	"slices"
@@ -10,6 +11,7 @@ import (
 	"sync"
 	"time"
 
+	"Nutate/display"
 	"Nutate/physics"
 	"Nutate/physics/shape"
 )
@@ -29,6 +31,31 @@ const (
 	// everything.
 	minMemoryBudget int64 = 64 << 20
 )
+
+// KeepOutputs tells the session that its host keeps every output (a notebook
+// run headless holds them until it writes the notebook): their bytes then
+// count against the memory budget too.
+func (s *Session) KeepOutputs() { s.keep = true }
+
+// outputBytes estimates the bytes of outputs as they are kept.
+func outputBytes(out []display.Bundle) int64 {
+	var n int64
+	for _, b := range out {
+		for mime, v := range b {
+			n += int64(len(mime))
+			switch x := v.(type) {
+			case string:
+				n += int64(len(x))
+			case []byte:
+				n += int64(len(x))
+			default:
+				j, _ := json.Marshal(x)
+				n += int64(len(j))
+			}
+		}
+	}
+	return n
+}
 
 // SetMemoryBudget sets the session's memory budget in bytes.
 func (s *Session) SetMemoryBudget(bytes int64) { s.budget = bytes }
@@ -146,26 +173,47 @@ func stateMemory(st *state) memoryUse {
 // its memory budget.
 func (s *Session) budgetError(what string, need, held int64, pulses int) error {
 	holds := formatMemory(held)
-	if pulses > 0 {
-		holds += fmt.Sprintf(" in %d pulses", pulses)
+	var parts []string
+	switch {
+	case pulses == 1:
+		parts = append(parts, "1 pulse")
+	case pulses > 1:
+		parts = append(parts, fmt.Sprintf("%d pulses", pulses))
+	}
+	free := "free some with `reset` or by redefining names"
+	if s.outputs > 0 {
+		parts = append(parts, formatMemory(s.outputs)+" of outputs kept")
+		free += " (outputs stay until the notebook is written: split a long notebook)"
+	}
+	if len(parts) > 0 {
+		holds += " (" + strings.Join(parts, ", ") + ")"
 	}
 	return fmt.Errorf("session memory budget of %s reached: %s needs %s and the session holds %s; "+
-		"free some with `reset` or by redefining names, or start Nutate with a larger budget (`nutate run --memory 4GiB`, `nutate kernel --memory 4GiB`, or %s=4GiB)",
-		formatMemory(s.budget), what, formatMemory(need), holds, MemoryBudgetEnv)
+		"%s, or start Nutate with a larger budget (`nutate run --memory 4GiB`, `nutate kernel --memory 4GiB`, or %s=4GiB)",
+		formatMemory(s.budget), what, formatMemory(need), holds, free, MemoryBudgetEnv)
 }
 
-// checkMemory refuses a statement whose new state would pass the budget while
-// holding more than the committed one.
-func (s *Session) checkMemory(stmt Stmt, old, next *state) error {
+// checkMemory refuses a statement whose new state (with its outputs, when
+// they are kept) would pass the budget while holding more than the committed
+// one. On success it counts the outputs kept.
+func (s *Session) checkMemory(stmt Stmt, old, next *state, out []display.Bundle) error {
 	if s.budget <= 0 {
 		return nil
 	}
+	var outs int64
+	if s.keep {
+		outs = outputBytes(out)
+	}
 	after := stateMemory(next)
+	after.bytes += s.outputs + outs
 	if after.bytes <= s.budget {
+		s.outputs += outs
 		return nil
 	}
 	before := stateMemory(old)
+	before.bytes += s.outputs
 	if after.bytes <= before.bytes {
+		s.outputs += outs
 		return nil
 	}
 	what := "this statement"
@@ -175,7 +223,9 @@ func (s *Session) checkMemory(stmt Stmt, old, next *state) error {
 	case *ImportStmt:
 		what = "imported pulse " + x.Name.Name
 	case *SweepStmt:
-		what = "the sweep's table"
+		what = "the sweep's table and outputs"
+	case *DescribeStmt, *ReportStmt:
+		what = "the outputs of this statement"
 	}
 	return s.budgetError(what, after.bytes-before.bytes, before.bytes, before.pulses)
 }
@@ -188,6 +238,7 @@ func (ev *evaluator) needMemory(what string, bytes int64) error {
 		return nil
 	}
 	held := stateMemory(ev.st)
+	held.bytes += s.outputs
 	if held.bytes+bytes <= s.budget {
 		return nil
 	}

@@ -9,6 +9,8 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+
+	"Nutate/display"
 )
 
 func TestParseMemory(t *testing.T) {
@@ -81,7 +83,7 @@ func TestMemoryBudgetRefuses(t *testing.T) {
 		err = s.Exec(ctx, fmt.Sprintf("pulse p%d = p(phase = %d deg)", i, i), Sink{})
 	}
 	// 24 MB for p, 16 MB for each copy: p1, p2 fit in 64 MiB, p3 does not.
-	want := "session memory budget of 64 MiB reached: pulse p3 needs 15.3 MiB and the session holds 53.4 MiB in 3 pulses"
+	want := "session memory budget of 64 MiB reached: pulse p3 needs 15.3 MiB and the session holds 53.4 MiB (3 pulses)"
 	if err == nil || i-1 != 3 || !strings.Contains(err.Error(), want) || !strings.Contains(err.Error(), "--memory") {
 		t.Fatalf("copy %d: got %v, want %q naming how to raise it", i-1, err, want)
 	}
@@ -219,5 +221,44 @@ func TestWorkBudgetText(t *testing.T) {
 	}
 	if x, err := ParseWork("1e11"); err != nil || x != 1e11 {
 		t.Errorf("ParseWork(1e11) = %g, %v", x, err)
+	}
+}
+
+// TestMemoryBudgetCountsKeptOutputs: a host that keeps every output (a
+// notebook run headless) has their bytes counted; one that passes them on
+// (the kernel) does not.
+func TestMemoryBudgetCountsKeptOutputs(t *testing.T) {
+	ctx := context.Background()
+	sweep := "sweep h over offset -10 kHz to 10 kHz points 100000"
+	for _, keep := range []bool{true, false} {
+		s := NewSession(t.TempDir())
+		s.SetMemoryBudget(64 << 20)
+		if keep {
+			s.KeepOutputs()
+		}
+		if err := s.Exec(ctx, "pulse h = rect(duration = 1 ms, flip = 90 deg)", Sink{}); err != nil {
+			t.Fatal(err)
+		}
+		before := s.outputs
+		var kept int64
+		if err := s.Exec(ctx, sweep, Sink{Display: func(b display.Bundle) { kept += outputBytes([]display.Bundle{b}) }}); err != nil {
+			t.Fatal(err)
+		}
+		if keep != (s.outputs-before == kept && kept > 0) || !keep && s.outputs != 0 {
+			t.Fatalf("keep %v: counted %d bytes of outputs, the sweep's were %d", keep, s.outputs, kept)
+		}
+		if !keep {
+			continue
+		}
+		limit := int(64<<20/kept) + 2
+		var err error
+		for i := 0; i < limit && err == nil; i++ {
+			err = s.Exec(ctx, sweep, Sink{})
+		}
+		// Refused before running (the sweep's arrays do not fit beside the
+		// outputs kept) or after (its outputs do not).
+		if err == nil || !strings.Contains(err.Error(), "the sweep") || !strings.Contains(err.Error(), "(1 pulse, ") || !strings.Contains(err.Error(), "of outputs kept") {
+			t.Fatalf("after %d sweeps of %d bytes of outputs: got %v, want the budget error", limit, kept, err)
+		}
 	}
 }

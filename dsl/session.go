@@ -26,8 +26,9 @@
 // at least 10 ns (describe's JSON keeps at most 4096 of them), a peak of at most
 // 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns;
 // a duration from 10 ns to 100 s. What a session holds (pulses' samples, arrays
-// shared between copies counted once, and the last sweep's table) and what a
-// sweep needs while it runs stay within its memory budget (budget.go; 2 GiB
+// shared between copies counted once, the last sweep's table, and the outputs
+// when the host keeps them) and what a sweep needs while it runs stay within its
+// memory budget (budget.go; 2 GiB
 // unless SetMemoryBudget says otherwise).
 package dsl
 
@@ -64,6 +65,8 @@ type Session struct {
 	used      map[string]bool
 	budget    int64   // memory budget in bytes (budget.go); 0: none
 	work      float64 // work budget in isochromat-steps (budget.go)
+	keep      bool    // the host keeps every output (KeepOutputs)
+	outputs   int64   // bytes of the outputs kept so far
 }
 
 type override struct {
@@ -149,7 +152,7 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 		}
 		return toCellError(src, st, e)
 	}
-	if e := s.checkMemory(st, old, ev.st); e != nil {
+	if e := s.checkMemory(st, old, ev.st, ev.out); e != nil {
 		return toCellError(src, st, e)
 	}
 	s.mu.Lock()
