@@ -129,12 +129,20 @@ func (ev *evaluator) buildTrain(elems []trainElem, named map[string]argVal, call
 	cm.Center = b.num("center", 0)
 	cm.Role, _ = shape.ParseRole(b.word("role", ""))
 	var se []shape.Element
+	n := 0
 	for _, e := range elems {
 		se = append(se, shape.Element{Pulse: e.Def.Pulse, Phase: e.Phase})
+		n += e.Def.Pulse.Wave.Len()
+	}
+	if n > maxPulseSamples {
+		return nil, errAt(callPos, "the elements have %d samples together, over the limit of %d per pulse", n, maxPulseSamples)
 	}
 	p, err := shape.Train(se, gap, cm)
 	if err != nil {
 		return nil, errAt(callPos, "%s", strings.TrimPrefix(err.Error(), "train: "))
+	}
+	if p.Wave.Len() > maxPulseSamples {
+		return nil, errAt(callPos, "the train has %d samples, over the limit of %d per pulse", p.Wave.Len(), maxPulseSamples)
 	}
 	return p, nil
 }
