@@ -8,6 +8,7 @@ import (
 	"io"
 	"log"
 	"net"
+	"os"
 	"testing"
 	"time"
 
@@ -297,5 +298,54 @@ func TestFrameGuardCountsUncheckedBytes(t *testing.T) {
 	cmd := frameGuard{holdCommands: true}
 	if err := cmd.feed([]byte{0x06, 0, 0, 0, 0, 0, 1, 0, 1}); !errors.Is(err, ErrFrameTooLarge) {
 		t.Fatalf("command frame over 64 KiB: got %v, want ErrFrameTooLarge", err)
+	}
+}
+
+// TestGuardedListenerBoundsConnections: past maxConns open connections, new
+// ones are closed at once; closing one makes room again.
+func TestGuardedListenerBoundsConnections(t *testing.T) {
+	inner, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		t.Fatal(err)
+	}
+	l := newGuardedListener(inner)
+	defer l.Close()
+	accepted := make(chan net.Conn, maxConns+2)
+	go func() {
+		for {
+			c, err := l.Accept()
+			if err != nil {
+				return
+			}
+			accepted <- c
+		}
+	}()
+	sig := make([]byte, zmtpSignature)
+	sig[0], sig[9] = 0xff, 0x7f
+	dialSig := func() net.Conn {
+		c, err := net.Dial("tcp", inner.Addr().String())
+		if err != nil {
+			t.Fatal(err)
+		}
+		c.Write(sig)
+		return c
+	}
+	var held []net.Conn
+	for i := 0; i < maxConns; i++ {
+		c := dialSig()
+		defer c.Close()
+		held = append(held, <-accepted)
+	}
+	extra := dialSig()
+	defer extra.Close()
+	extra.SetReadDeadline(time.Now().Add(10 * time.Second)) // a bound for a failing test, not a wait
+	if _, err := extra.Read(make([]byte, 1)); err == nil || errors.Is(err, os.ErrDeadlineExceeded) {
+		t.Fatalf("connection %d: got %v, want it closed by the kernel", maxConns+1, err)
+	}
+	held[0].Close()
+	again := dialSig()
+	defer again.Close()
+	if c := <-accepted; c == nil {
+		t.Fatal("no connection accepted after one closed")
 	}
 }
