@@ -195,25 +195,27 @@ func (s *Session) budgetError(what string, need, held int64, pulses int) error {
 
 // checkMemory refuses a statement whose new state (with its outputs, when
 // they are kept) would pass the budget while holding more than the committed
-// one. On success it counts the outputs kept.
-func (s *Session) checkMemory(stmt Stmt, old, next *state, out []display.Bundle) error {
-	if s.budget <= 0 {
-		return nil
-	}
+// one. On success it counts the outputs kept. The state is counted again only
+// after statements that make pulses or tables (or reset); other statements add
+// at most outputs, so a cell of many short lines stays linear.
+func (s *Session) checkMemory(stmt Stmt, next *state, out []display.Bundle) error {
 	var outs int64
 	if s.keep {
 		outs = outputBytes(out)
 	}
-	after := stateMemory(next)
-	after.bytes += s.outputs + outs
-	if after.bytes <= s.budget {
-		s.outputs += outs
-		return nil
-	}
-	before := stateMemory(old)
+	before := s.held
 	before.bytes += s.outputs
-	if after.bytes <= before.bytes {
+	after := s.held
+	switch stmt.(type) {
+	case *PulseStmt, *ImportStmt, *SweepStmt, *ResetStmt:
+		after = stateMemory(next)
+	}
+	after.seen = nil
+	held := after
+	after.bytes += s.outputs + outs
+	if s.budget <= 0 || after.bytes <= s.budget || after.bytes <= before.bytes {
 		s.outputs += outs
+		s.held = held
 		return nil
 	}
 	what := "this statement"

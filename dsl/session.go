@@ -63,10 +63,11 @@ type Session struct {
 	st        *state
 	overrides map[string]override
 	used      map[string]bool
-	budget    int64   // memory budget in bytes (budget.go); 0: none
-	work      float64 // work budget in isochromat-steps (budget.go)
-	keep      bool    // the host keeps every output (KeepOutputs)
-	outputs   int64   // bytes of the outputs kept so far
+	budget    int64     // memory budget in bytes (budget.go); 0: none
+	work      float64   // work budget in isochromat-steps (budget.go)
+	keep      bool      // the host keeps every output (KeepOutputs)
+	outputs   int64     // bytes of the outputs kept so far
+	held      memoryUse // what the committed state holds, as last counted
 }
 
 type override struct {
@@ -125,8 +126,7 @@ func cancelled(src string, p Pos, cause error) *CellError {
 // run executes one statement on a copy of the state, with the one recover at the
 // edge of execution.
 func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err error) {
-	old := s.state()
-	ev := &evaluator{ctx: ctx, sess: s, st: old.clone(), sink: sink}
+	ev := &evaluator{ctx: ctx, sess: s, st: s.state().clone(), sink: sink}
 	usedBefore := make(map[string]bool, len(s.used))
 	for k, v := range s.used {
 		usedBefore[k] = v
@@ -152,7 +152,7 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 		}
 		return toCellError(src, st, e)
 	}
-	if e := s.checkMemory(st, old, ev.st, ev.out); e != nil {
+	if e := s.checkMemory(st, ev.st, ev.out); e != nil {
 		return toCellError(src, st, e)
 	}
 	s.mu.Lock()
