@@ -35,8 +35,11 @@ func cmdRun(args []string) int {
 	fs.Var(&sets, "set", "")
 	var allow allowFlags
 	fs.Var(&allow, "allow-files", "")
+	memory := fs.String("memory", "", "")
+	work := fs.String("work", "", "")
 	fs.Usage = func() {
-		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... [--allow-files DIR]... FILE...
+		fmt.Fprint(os.Stderr, `usage: nutate run [--output F] [--json] [--check] [--set NAME=VALUE]... [--allow-files DIR]...
+                  [--memory SIZE] [--work STEPS] FILE...
        nutate run --gather NOTEBOOK... > table.csv
   --output F          notebooks: write the executed notebook to F instead of in place (one input file)
   --json              scripts: print one JSON object (the MIME bundle) per output
@@ -47,6 +50,8 @@ func cmdRun(args []string) int {
   --allow-files DIR   import and export may also use files in DIR (repeatable; also
                       NUTATE_ALLOW_FILES, a list like PATH); otherwise only files inside
                       the notebook's folder, and never by the notebook's own choice
+  --memory SIZE       session memory budget, e.g. 4GiB (default 2GiB, or $NUTATE_MEMORY)
+  --work STEPS        work budget of a sweep, describe or report in isochromat-steps (default 4e10, or $NUTATE_WORK)
 `)
 	}
 	// Flags may stand before or after the files (`run x.ipynb --output y.ipynb`):
@@ -87,9 +92,19 @@ func cmdRun(args []string) int {
 		fmt.Fprintln(os.Stderr, "nutate run:", err)
 		return 2
 	}
+	budget, err := memoryBudget(*memory)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate run: --memory:", err)
+		return 2
+	}
+	workBudget, err := workBudget(*work)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "nutate run: --work:", err)
+		return 2
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	r := runner{json: *asJSON, check: *check, sets: sets, allow: allowed, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr)}
+	r := runner{json: *asJSON, check: *check, sets: sets, allow: allowed, stdout: os.Stdout, stderr: os.Stderr, progress: isTerminal(os.Stderr), budget: budget, work: workBudget}
 	for _, f := range files {
 		var err error
 		isNotebook := strings.EqualFold(filepath.Ext(f), ".ipynb")
@@ -122,6 +137,8 @@ type runner struct {
 	stderr      io.Writer
 	progress    bool // a status line on stderr (a terminal)
 	cell, cells int  // the code cell being run, of how many (progress.go)
+	budget      int64   // session memory budget in bytes; 0: the default
+	work        float64 // work budget in isochromat-steps; 0: the default
 }
 
 // session returns a fresh session for a file, with the --set overrides applied.
@@ -133,6 +150,15 @@ func (r *runner) session(file string) (*dsl.Session, error) {
 	s := dsl.NewSession(dir)
 	if err := s.AllowFiles(r.allow); err != nil {
 		return nil, err
+	}
+	if r.budget > 0 {
+		s.SetMemoryBudget(r.budget)
+	}
+	if r.work > 0 {
+		s.SetWorkBudget(r.work)
+	}
+	if strings.EqualFold(filepath.Ext(file), ".ipynb") {
+		s.KeepOutputs() // held until the notebook is written
 	}
 	for _, kv := range r.sets {
 		name, value, ok := strings.Cut(kv, "=")

@@ -45,11 +45,14 @@ func realMain(args []string) int {
 const usage = `usage: nutate COMMAND [ARGS]
 
 commands:
-  kernel --connection-file F   run as a Jupyter kernel (what the kernelspec launches)
+  kernel --connection-file F [--allow-files DIR] [--memory SIZE] [--work STEPS]
+                               run as a Jupyter kernel (what the kernelspec launches)
   install [--user | --prefix DIR | --sys-prefix] [--allow-files DIR] [--uninstall]
                                install the kernelspec "nutate"
-  run [--output F] [--json] [--check] [--set NAME=VALUE] [--allow-files DIR] FILE...
+  run [--output F] [--json] [--check] [--set NAME=VALUE] [--allow-files DIR]
+      [--memory SIZE] [--work STEPS] FILE...
                                execute notebooks (.ipynb) or scripts headless
+                               (--memory, --work: the session's budgets; see the README's Limits)
   run --gather NOTEBOOK...     print every sweep value of notebooks already run as CSV
 
 Files: cells read and write only inside the notebook's folder; --allow-files DIR

@@ -48,22 +48,27 @@ func (ev *evaluator) measureOptions(d *pulseDef, tr float64) shape.MeasureOption
 
 // measureProgress starts a progress display for measuring the pulses of defs
 // when the work is long (over progressSteps isochromat-steps, as for sweeps; a
-// sinc of about 40 000 samples and up), nil otherwise. done ends it at 100 %.
-func (ev *evaluator) measureProgress(task string, defs []*pulseDef) (prog *progress, done func()) {
+// sinc of about 40 000 samples and up), nil otherwise, its label saying how
+// long the work will take when that is long. done ends it at 100 %. Work over
+// the session's work budget is refused before it starts.
+func (ev *evaluator) measureProgress(task string, defs []*pulseDef) (prog *progress, done func(), err error) {
 	total := 0.0
 	for _, d := range defs {
 		total += shape.MeasureCost(d.Pulse, ev.measureOptions(d, 0))
 	}
-	if total <= progressSteps || ev.sink.Progress == nil {
-		return nil, func() {}
+	if err := ev.checkWork(task, total); err != nil {
+		return nil, nil, err
 	}
-	prog = &progress{sink: ev.sink.Progress, task: task, total: total, last: -1}
+	if total <= progressSteps || ev.sink.Progress == nil {
+		return nil, func() {}, nil
+	}
+	prog = &progress{sink: ev.sink.Progress, task: workLabel(task, total), total: total, last: -1}
 	prog.report(0)
 	return prog, func() {
 		if prog.last < 100 {
 			prog.sink(prog.task, 100, 100)
 		}
-	}
+	}, nil
 }
 
 // withoutPrefix drops a package's prefix from an error shown to the user, keeping
@@ -111,7 +116,10 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 	if err != nil {
 		return err
 	}
-	prog, done := ev.measureProgress("describe "+joinNames(s.Names), defs)
+	prog, done, err := ev.measureProgress("describe "+joinNames(s.Names), defs)
+	if err != nil {
+		return errAt(s.P, "%v", err)
+	}
 	defer done()
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {

@@ -1,6 +1,7 @@
 package dsl
 
 import (
+	"context"
 	"fmt"
 	"sort"
 	"strings"
@@ -117,49 +118,121 @@ func errAt(p Pos, format string, args ...any) error {
 	return &posError{pos: p, msg: fmt.Sprintf(format, args...)}
 }
 
-// suggest returns " (did you mean X?)" for the closest candidate to word within a
+// maxSuggestRunes bounds the words that get a suggestion: a longer word (or
+// candidate) is not a typo of a name, and comparing it would cost its length
+// squared.
+const maxSuggestRunes = 64
+
+// suggest returns "; did you mean X?" for the closest candidate to word within a
 // small edit distance, or "".
 func suggest(word string, candidates []string) string {
-	best, bestD := "", 1<<30
+	s, _ := suggestWork(context.Background(), word, candidates)
+	return s
+}
+
+// suggest is suggest for names a session holds, which may be many: it stops,
+// suggesting nothing, once the statement is interrupted.
+func (ev *evaluator) suggest(word string, candidates []string) string {
+	s, _ := suggestWork(ev.ctx, word, candidates)
+	return s
+}
+
+// suggestWork is suggest with the context checked before each candidate; it also
+// returns the number of edit-distance cells computed (the work done), for tests.
+// The work is bounded: words and candidates of more than maxSuggestRunes runes are
+// skipped, a candidate whose length alone puts it beyond the allowed distance is
+// skipped, and the distance is computed in a band of that width, given up as
+// soon as a row exceeds it.
+func suggestWork(ctx context.Context, word string, candidates []string) (string, int) {
+	if len(word) > 4*maxSuggestRunes || utf8.RuneCountInString(word) > maxSuggestRunes {
+		return "", 0
+	}
+	lw := []rune(strings.ToLower(word))
+	limit := (len(lw) + 1) / 3
+	best, bestD := "", limit+1
 	first := func(s string) rune { r, _ := utf8.DecodeRuneInString(s); return r }
+	work := 0
 	for _, c := range candidates {
-		d := editDistance(strings.ToLower(word), strings.ToLower(c))
+		if ctx.Err() != nil {
+			return "", work
+		}
+		if len(c) > 4*maxSuggestRunes {
+			continue
+		}
+		lc := []rune(strings.ToLower(c))
+		if len(lc) > maxSuggestRunes || abs(len(lc)-len(lw)) > limit {
+			continue
+		}
+		d, cells := boundedDistance(lw, lc, min(limit, bestD))
+		work += cells
 		// Ties go to a candidate that starts as the word does (dg → deg, not
 		// G), then to the first in order.
 		better := d < bestD
-		if d == bestD {
+		if d == bestD && best != "" {
 			cf, bf := first(c) == first(word), first(best) == first(word)
 			better = cf && !bf || cf == bf && c < best
 		}
-		if better {
+		if better && d <= limit {
 			best, bestD = c, d
 		}
 	}
-	limit := (utf8.RuneCountInString(word) + 1) / 3
-	if best == "" || bestD > limit || bestD == 0 && best == word {
-		return ""
+	if best == "" || bestD == 0 && best == word {
+		return "", work
 	}
-	return "; did you mean " + best + "?"
+	return "; did you mean " + best + "?", work
 }
 
-// editDistance is the Levenshtein distance between a and b in runes.
-func editDistance(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
+func abs(x int) int {
+	if x < 0 {
+		return -x
 	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
+	return x
+}
+
+// boundedDistance is the Levenshtein distance between a and b when it is at most
+// k, else some value above k; cells counts the table cells computed. Only the
+// band |i−j| ≤ k can hold a distance ≤ k, and once a whole row exceeds k so
+// does the result (Ukkonen 1985).
+func boundedDistance(a, b []rune, k int) (d, cells int) {
+	if abs(len(a)-len(b)) > k {
+		return k + 1, 0
+	}
+	inf := k + 1
+	prev := make([]int, len(b)+1)
+	cur := make([]int, len(b)+1)
+	for j := range prev {
+		prev[j] = min(j, inf)
+	}
+	for i := 1; i <= len(a); i++ {
+		lo, hi := max(1, i-k), min(len(b), i+k)
+		cur[0] = min(i, inf)
+		if lo > 1 {
+			cur[lo-1] = inf
+		}
+		rowMin := cur[0]
+		if lo > 1 {
+			rowMin = inf
+		}
+		for j := lo; j <= hi; j++ {
 			c := prev[j-1]
-			if ra[i-1] != rb[j-1] {
+			if a[i-1] != b[j-1] {
 				c++
 			}
-			cur[j] = min(c, prev[j]+1, cur[j-1]+1)
+			up := inf
+			if j <= i-1+k {
+				up = prev[j] + 1
+			}
+			cur[j] = min(c, up, cur[j-1]+1, inf)
+			rowMin = min(rowMin, cur[j])
+			cells++
+		}
+		if hi < len(b) {
+			cur[hi+1] = inf
+		}
+		if rowMin > k {
+			return inf, cells
 		}
 		prev, cur = cur, prev
 	}
-	return prev[len(rb)]
+	return prev[len(b)], cells
 }

@@ -187,7 +187,7 @@ func (ev *evaluator) checkRedefine(id Ident, pulse bool) error {
 func (ev *evaluator) pulseNamed(id Ident) (*pulseDef, error) {
 	b, ok := ev.st.names[id.Name]
 	if !ok {
-		return nil, errAt(id.P, "unknown pulse %s%s", quoteText(id.Name), suggest(id.Name, ev.st.pulseNames()))
+		return nil, errAt(id.P, "unknown pulse %s%s", quoteText(id.Name), ev.suggest(id.Name, ev.st.pulseNames()))
 	}
 	if b.pulse == nil {
 		return nil, errAt(id.P, "%s is a quantity (%s), not a pulse", quoteText(id.Name), b.val)

@@ -53,7 +53,10 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	var rows [][]string
 	var warnings []string
 	unmet := false
-	prog, done := ev.measureProgress("report "+joinNames(s.Names), defs)
+	prog, done, err := ev.measureProgress("report "+joinNames(s.Names), defs)
+	if err != nil {
+		return errAt(s.P, "%v", err)
+	}
 	defer done()
 	for _, d := range defs {
 		if err := ev.checkCtx(); err != nil {

@@ -20,10 +20,16 @@
 // package display), help.go and complete.go (help texts, completion, inspection).
 //
 // Limits: a cell of at most 1 MiB, expressions nested at most 100 deep, sweeps
-// within the engine's step budget (physics.DefaultMaxSteps), at most 100 000
+// and describe and report within the work budget (budget.go; by default the
+// engine's step budget, physics.DefaultMaxSteps), at most 100 000
 // points per axis and 10⁶ per map; a pulse of at most 10⁶ samples with a dwell of
 // at least 10 ns (describe's JSON keeps at most 4096 of them), a peak of at most
-// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns.
+// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns;
+// a duration from 10 ns to 100 s. What a session holds (pulses' samples, arrays
+// shared between copies counted once, the last sweep's table, and the outputs
+// when the host keeps them) and what a sweep needs while it runs stay within its
+// memory budget (budget.go; 2 GiB
+// unless SetMemoryBudget says otherwise).
 package dsl
 
 import (
@@ -38,6 +44,7 @@ import (
 	"sync"
 
 	"Nutate/display"
+	"Nutate/physics"
 )
 
 // Sink receives a cell's outputs in order. Progress, when non-nil, is told of long
@@ -57,6 +64,11 @@ type Session struct {
 	st        *state
 	overrides map[string]override
 	used      map[string]bool
+	budget    int64     // memory budget in bytes (budget.go); 0: none
+	work      float64   // work budget in isochromat-steps (budget.go)
+	keep      bool      // the host keeps every output (KeepOutputs)
+	outputs   int64     // bytes of the outputs kept so far
+	held      memoryUse // what the committed state holds, as last counted
 }
 
 type override struct {
@@ -66,7 +78,7 @@ type override struct {
 
 // NewSession returns a session whose relative file paths resolve against dir.
 func NewSession(dir string) *Session {
-	return &Session{dir: dir, st: newState(), overrides: map[string]override{}, used: map[string]bool{}}
+	return &Session{dir: dir, st: newState(), overrides: map[string]override{}, used: map[string]bool{}, budget: DefaultMemoryBudget, work: physics.DefaultMaxSteps}
 }
 
 // Exec runs the statements of src in order, sending each output to sink. The whole
@@ -139,6 +151,9 @@ func (s *Session) run(ctx context.Context, src string, st Stmt, sink Sink) (err 
 		if ctxErr := ctx.Err(); ctxErr != nil {
 			return cancelled(src, st.Position(), ctxErr)
 		}
+		return toCellError(src, st, e)
+	}
+	if e := s.checkMemory(st, ev.st, ev.out); e != nil {
 		return toCellError(src, st, e)
 	}
 	s.mu.Lock()

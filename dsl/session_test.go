@@ -118,7 +118,7 @@ func TestSweepRefusedOverBudget(t *testing.T) {
 	src := "pulse p = sinc(duration = 5 ms, tbw = 8, flip = 90 deg, samples = 1000000)\n" +
 		"sweep p over offset -5 kHz to 5 kHz points 100000, b1 0.5 to 1.5 points 10"
 	err := s.Exec(context.Background(), src, Sink{})
-	if err == nil || !strings.Contains(err.Error(), "isochromat-steps, over the limit of 4e+10") || !strings.Contains(err.Error(), "1e+12") {
+	if err == nil || !strings.Contains(err.Error(), "isochromat-steps (about ") || !strings.Contains(err.Error(), "here), over the session's work budget of 4e+10; use fewer points or samples, or start Nutate with a larger budget") || !strings.Contains(err.Error(), "1e+12") {
 		t.Errorf("error = %v, want a refusal naming the size and the limit", err)
 	}
 }

@@ -368,7 +368,7 @@ func (ev *evaluator) evalArg(as argSpec, e Expr, namePos Pos) (argVal, error) {
 	}
 	if id, ok := e.(*Ident); ok {
 		if _, known := ev.st.names[id.Name]; !known && as.Kind == argQuantity {
-			return argVal{}, errAt(p, "unknown name %s%s", quoteText(id.Name), suggest(id.Name, ev.st.nameList()))
+			return argVal{}, errAt(p, "unknown name %s%s", quoteText(id.Name), ev.suggest(id.Name, ev.st.nameList()))
 		}
 	}
 	v, err := ev.evalExpr(e)
@@ -401,6 +401,9 @@ func (ev *evaluator) checkArgValue(as argSpec, v Value, p Pos) error {
 		return nil
 	}
 	x, err := ev.want(v, as.Dim, as.Name, p)
+	if err == nil && as.Name == "duration" && as.Dim == dimTime && x > 0 && !(x >= minDwell && x <= maxDuration) {
+		return errAt(p, "duration must be from %s to %s, got %s", Quantity{minDwell, dimTime}, Quantity{maxDuration, dimTime}, v)
+	}
 	if err == nil && as.Positive && !(x > 0) {
 		return errAt(p, "%s must be positive, got %s (leave it out for the default, %s)", as.Name, v, as.Default)
 	}
@@ -487,6 +490,9 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 const (
 	minDwell        = 10e-9
 	maxPulseSamples = 1_000_000
+	// maxDuration is a typo guard: saturation pulses last seconds, and far
+	// longer durations only overflow the amplitude or the sample count.
+	maxDuration = 100 // s
 )
 
 // Slice bounds (typo guards): no MR gradient system reaches 1 T/m, a gradient
@@ -724,7 +730,7 @@ func (ev *evaluator) definePulse(name string, c *Call) (*pulseDef, error) {
 		return nil, errAt(c.Fun.P, "%s is a quantity (%s), not a shape or a pulse", quoteText(fn), b.val)
 	}
 	cands := append(shapeNames(), ev.st.pulseNames()...)
-	return nil, errAt(c.Fun.P, "unknown shape or pulse %s%s (shapes: %s)", quoteText(fn), suggest(fn, cands), strings.Join(shapeNames(), ", "))
+	return nil, errAt(c.Fun.P, "unknown shape or pulse %s%s (shapes: %s)", quoteText(fn), ev.suggest(fn, cands), strings.Join(shapeNames(), ", "))
 }
 
 // copyPulse rebuilds pulse old with some arguments changed; an argument replaces
@@ -754,6 +760,7 @@ func (ev *evaluator) copyPulse(name string, old *pulseDef, c *Call) (*pulseDef, 
 	if err != nil {
 		return nil, inheritedFault(err, name, old, args, changes, c)
 	}
+	shareSamples(p, old.Pulse)
 	nuc := ev.st.nucleus
 	if old.Kind == "train" {
 		nuc = old.Nucleus

@@ -157,6 +157,9 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 		}
 	}
 	span := to.Q.V - from.Q.V
+	if math.IsInf(span, 0) {
+		return nil, errAt(ax.To.Position(), "%s axis from %s to %s spans more than the largest number; want a narrower axis", a.kind, from, to)
+	}
 	if ax.Points != nil {
 		pv, err := ev.evalExpr(ax.Points)
 		if err != nil {
@@ -392,10 +395,13 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	if err != nil {
 		return err
 	}
-	if total > physics.DefaultMaxSteps {
-		return errAt(s.P, "sweep needs %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+	if err := ev.checkWork("sweep", total); err != nil {
+		return errAt(s.P, "%v", err)
 	}
-	curves, err := ev.runSweep(runs, axes, qs, set, skip, n0, n1, total, "sweep "+joinNames(s.Names))
+	if err := ev.needMemory("the sweep", sweepMemory(runs, len(axes), len(qs), n0*n1)); err != nil {
+		return errAt(s.P, "%v", err)
+	}
+	curves, err := ev.runSweep(runs, axes, qs, set, skip, n0, n1, total, workLabel("sweep "+joinNames(s.Names), total))
 	if err != nil {
 		return err
 	}
@@ -575,8 +581,8 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 			if needMeasure {
 				total += measureCost * n
 			}
-			if total > physics.DefaultMaxSteps {
-				return nil, 0, errAt(axes[0].pos, "sweep needs more than %.3g isochromat-steps, over the limit of %.3g; use fewer points or samples", total, physics.DefaultMaxSteps)
+			if total > ev.workBudget() {
+				return nil, 0, errAt(axes[0].pos, "%s", strings.Replace(ev.checkWork("sweep", total).Error(), "needs", "needs more than", 1))
 			}
 			if r.args != nil {
 				// Keep rebuilt pulses while they are small; rebuild the rest when run.
@@ -588,6 +594,20 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 		}
 	}
 	return runs, total, nil
+}
+
+// sweepMemory estimates the bytes a sweep holds while it runs: the rebuilt
+// pulses kept from planning, per cell the quantities' values and magnitudes,
+// one simulated spin's result and a row of the table kept for export.
+func sweepMemory(runs []*sweepRun, axes, quantities, cells int) int64 {
+	var kept int64
+	for _, r := range runs {
+		if r.args != nil && r.p != nil {
+			kept += int64(r.p.Wave.Len())
+		}
+	}
+	perCell := int64(16*quantities + 48 + 24 + 8*(axes+quantities))
+	return kept*40 + int64(cells)*perCell
 }
 
 func pointText(axes []*sweepAxis, fixed map[int]int) string {
@@ -721,7 +741,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			return err
 		}
 		iso = keepSpins(iso, skip)
-		opt := physics.Options{Start: set.start}
+		opt := physics.Options{Start: set.start, MaxSteps: ev.workBudget()}
 		base := 0.0
 		if prog != nil {
 			prog.mu.Lock()

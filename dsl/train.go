@@ -117,8 +117,11 @@ func (ev *evaluator) buildTrain(elems []trainElem, named map[string]argVal, call
 		b.vals[n] = x
 	}
 	gap := b.num("gap", 0)
-	if gap < 0 || math.IsInf(gap, 0) {
+	if gap < 0 {
 		return nil, errAt(named["gap"].Pos, "gap must not be negative, got %s", named["gap"].Val)
+	}
+	if gap > maxDuration {
+		return nil, errAt(named["gap"].Pos, "gap must be at most %s, got %s", Quantity{maxDuration, dimTime}, named["gap"].Val)
 	}
 	cm := shape.NewCommon()
 	cm.Duration = math.NaN()
@@ -126,8 +129,13 @@ func (ev *evaluator) buildTrain(elems []trainElem, named map[string]argVal, call
 	cm.Center = b.num("center", 0)
 	cm.Role, _ = shape.ParseRole(b.word("role", ""))
 	var se []shape.Element
+	n := 0
 	for _, e := range elems {
 		se = append(se, shape.Element{Pulse: e.Def.Pulse, Phase: e.Phase})
+		n += e.Def.Pulse.Wave.Len()
+	}
+	if n > maxPulseSamples {
+		return nil, errAt(callPos, "the elements have %d samples together, over the limit of %d per pulse", n, maxPulseSamples)
 	}
 	p, err := shape.Train(se, gap, cm)
 	if err != nil {

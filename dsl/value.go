@@ -48,7 +48,7 @@ func (ev *evaluator) evalExpr(e Expr) (Value, error) {
 			if u, isUnit := lookupUnit(x.Name); isUnit {
 				return Value{Q: Quantity{u.Factor, u.Dim}, Unit: u.Name}, nil
 			}
-			return Value{}, errAt(x.P, "unknown name %s%s", quoteText(x.Name), suggest(x.Name, ev.st.nameList()))
+			return Value{}, errAt(x.P, "unknown name %s%s", quoteText(x.Name), ev.suggest(x.Name, ev.st.nameList()))
 		}
 		if b.pulse != nil {
 			return Value{}, errAt(x.P, "%s is a pulse, not a quantity", quoteText(x.Name))

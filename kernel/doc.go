@@ -32,7 +32,9 @@
 // otherwise) over header, parent header, metadata and content, compared in
 // constant time; messages with bad, missing or replayed signatures and
 // malformed messages are dropped without stopping. An empty key means
-// unsigned.
+// unsigned, and the kernel says so on standard error. A connection file must
+// give transport, ip and the five ports (a kernel on ports of its own choosing
+// would be reported nowhere).
 //
 // Transport: each socket is an endpoint built on zmq4's connection API
 // (zmq4.Open, SendMsg, RecvMsg) over GuardedTransport. Every peer has its own
@@ -40,8 +42,11 @@
 // loses messages (after a 100 ms grace) without slowing anyone else. The
 // guarded transport accepts on its own goroutine and hands a connection over
 // only once its 10-byte ZMTP signature has arrived, bounds the handshake with
-// a deadline, refuses frames over 256 MiB (and messages over 256 MiB or 65536
-// frames) before anything is allocated, bounds every write, and answers ZMTP
+// a deadline, refuses frames over 8 MiB (and messages over 8 MiB or 65536
+// frames, command frames over 64 KiB) before anything is allocated, holds the
+// bytes of messages not yet checked to 20 MiB over all connections (a message
+// must arrive whole within 10 s), keeps at most 128 connections per socket,
+// bounds every write, and answers ZMTP
 // heartbeat PINGs itself, between messages (zmq4 answers them from its reader
 // while a writer may be halfway through a message, which breaks the stream).
 //

@@ -91,9 +91,11 @@ func (e *endpoint) open(c net.Conn) {
 	p := &peer{
 		ep:   e,
 		conn: zc,
-		addr: c.RemoteAddr().String(),
-		out:  make(chan outItem, e.queueLen),
-		done: make(chan struct{}),
+		// A guarded connection counts the bytes of messages not yet checked.
+		consumed: consumedFunc(c),
+		addr:     c.RemoteAddr().String(),
+		out:      make(chan outItem, e.queueLen),
+		done:     make(chan struct{}),
 	}
 	e.mu.Lock()
 	if e.closed {
@@ -194,6 +196,7 @@ type peer struct {
 	dropped  atomic.Int64
 	done     chan struct{}
 	once     sync.Once
+	consumed func() // nil, or tells the connection a message was handled
 }
 
 func (p *peer) close() {
@@ -214,10 +217,12 @@ func (p *peer) readLoop() {
 		if err != nil {
 			return
 		}
-		if msg.Type == zmq4.CmdMsg {
-			continue
+		if msg.Type != zmq4.CmdMsg {
+			p.ep.onMsg(p, msg.Frames)
 		}
-		p.ep.onMsg(p, msg.Frames)
+		if p.consumed != nil {
+			p.consumed() // checked and queued or dropped: no longer in flight
+		}
 	}
 }
 

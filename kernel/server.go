@@ -10,6 +10,7 @@ import (
 	"os"
 	"os/signal"
 	"strconv"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"syscall"
@@ -35,7 +36,9 @@ type ConnectionInfo struct {
 	KernelName      string `json:"kernel_name,omitempty"`
 }
 
-// ReadConnectionFile reads and checks a connection file.
+// ReadConnectionFile reads and checks a connection file. Every field a client
+// needs is required (transport, ip, the five ports), as Jupyter writes them: a
+// kernel that picked its own ports would listen where no client looks.
 func ReadConnectionFile(path string) (ConnectionInfo, error) {
 	var ci ConnectionInfo
 	b, err := os.ReadFile(path)
@@ -45,17 +48,35 @@ func ReadConnectionFile(path string) (ConnectionInfo, error) {
 	if err := json.Unmarshal(b, &ci); err != nil {
 		return ci, fmt.Errorf("connection file %s: %w", path, err)
 	}
+	var missing []string
 	if ci.Transport == "" {
-		ci.Transport = "tcp"
+		missing = append(missing, "transport")
+	}
+	if ci.IP == "" {
+		missing = append(missing, "ip")
+	}
+	for _, p := range []struct {
+		name string
+		port int
+	}{{"shell_port", ci.ShellPort}, {"iopub_port", ci.IOPubPort}, {"stdin_port", ci.StdinPort}, {"control_port", ci.ControlPort}, {"hb_port", ci.HBPort}} {
+		if p.port < 0 || p.port > 65535 {
+			return ci, fmt.Errorf("connection file %s: %s: got %d, want a port from 1 to 65535", path, p.name, p.port)
+		}
+		if p.port == 0 {
+			missing = append(missing, p.name)
+		}
+	}
+	if len(missing) > 0 {
+		return ci, fmt.Errorf("connection file %s: missing %s (ports must be given, not 0); want the file Jupyter writes, with transport, ip and the five ports", path, strings.Join(missing, ", "))
 	}
 	if ci.Transport != "tcp" && ci.Transport != "ipc" {
 		return ci, fmt.Errorf("connection file %s: transport: got %q, want tcp or ipc", path, ci.Transport)
 	}
-	if ci.IP == "" {
-		ci.IP = "127.0.0.1"
-	}
 	return ci, nil
 }
+
+// unsignedWarning is logged (on standard error) when the key is empty.
+const unsignedWarning = "warning: the connection file's key is empty, so messages are not signed: any process that can reach these ports can run cells in this kernel; let Jupyter write the connection file (it sets a key)"
 
 // Server is a running kernel: five endpoints, the shell and control goroutines
 // and the dispatcher.
@@ -103,6 +124,9 @@ func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- str
 	if err != nil {
 		return nil, err
 	}
+	if info.Key == "" {
+		lg.Print(unsignedWarning)
+	}
 	RegisterTransports()
 	if info.Transport == "" {
 		info.Transport = "tcp"
@@ -148,7 +172,7 @@ func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- str
 	if s.iopub, err = listen("iopub", &s.info.IOPubPort, zmq4.Pub, func(*peer, [][]byte) {}); err != nil {
 		return fail(err)
 	}
-	if s.hb, err = listen("hb", &s.info.HBPort, zmq4.Rep, func(p *peer, f [][]byte) { p.send(f) }); err != nil {
+	if s.hb, err = listen("hb", &s.info.HBPort, zmq4.Rep, echoHeartbeat); err != nil {
 		return fail(err)
 	}
 	if s.stdin, err = listen("stdin", &s.info.StdinPort, zmq4.Router, func(*peer, [][]byte) {}); err != nil {
@@ -166,6 +190,22 @@ func start(info ConnectionInfo, exec Executor, lg *log.Logger, joined chan<- str
 	go s.waitShutdown()
 	return s, nil
 }
+
+// echoHeartbeat echoes a heartbeat. Heartbeats are unsigned, so only short
+// ones are echoed and a peer that does not read its echoes gets no more: the
+// bytes an unauthenticated peer makes the kernel hold stay small.
+func echoHeartbeat(p *peer, f [][]byte) {
+	n := 0
+	for _, b := range f {
+		n += len(b)
+	}
+	if n <= maxHeartbeat && p.bytes.Load() < 64*maxHeartbeat {
+		p.send(f)
+	}
+}
+
+// maxHeartbeat bounds an echoed heartbeat (clients send a few bytes).
+const maxHeartbeat = 1 << 10
 
 // listen returns a guarded listener on port, taking the socket bound at start
 // (package prebind) when there is one. A port prebind did not bind releases the

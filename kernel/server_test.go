@@ -9,6 +9,7 @@ import (
 	"net"
 	"os"
 	"strconv"
+	"strings"
 	"testing"
 	"time"
 
@@ -395,15 +396,23 @@ func TestReadConnectionFile(t *testing.T) {
 		ok         bool
 	}{
 		{"good.json", `{"transport":"tcp","ip":"127.0.0.1","shell_port":1,"iopub_port":2,"stdin_port":3,"control_port":4,"hb_port":5,"key":"k","signature_scheme":"hmac-sha256"}`, true},
-		{"defaults.json", `{"shell_port":1}`, true},
+		// A kernel on ports of its own choosing would be reported nowhere.
+		{"empty.json", `{}`, false},
+		{"noports.json", `{"transport":"tcp","ip":"127.0.0.1","key":"k"}`, false},
+		{"zeroport.json", `{"transport":"tcp","ip":"127.0.0.1","shell_port":1,"iopub_port":2,"stdin_port":3,"control_port":0,"hb_port":5}`, false},
+		{"noip.json", `{"transport":"tcp","shell_port":1,"iopub_port":2,"stdin_port":3,"control_port":4,"hb_port":5}`, false},
+		{"badport.json", `{"transport":"tcp","ip":"127.0.0.1","shell_port":70000,"iopub_port":2,"stdin_port":3,"control_port":4,"hb_port":5}`, false},
 		{"bad.json", `{"shell_port":`, false},
-		{"udp.json", `{"transport":"udp"}`, false},
+		{"udp.json", `{"transport":"udp","ip":"127.0.0.1","shell_port":1,"iopub_port":2,"stdin_port":3,"control_port":4,"hb_port":5}`, false},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			ci, err := ReadConnectionFile(write(tc.name, tc.body))
 			if (err == nil) != tc.ok {
 				t.Fatalf("got error %v, want ok=%v", err, tc.ok)
+			}
+			if tc.name == "empty.json" && !strings.Contains(err.Error(), "missing transport, ip, shell_port, iopub_port, stdin_port, control_port, hb_port") {
+				t.Fatalf("empty file: got %v, want every missing field named", err)
 			}
 			if tc.ok && (ci.Transport != "tcp" || ci.IP != "127.0.0.1") {
 				t.Fatalf("defaults: got %+v", ci)
@@ -412,5 +421,20 @@ func TestReadConnectionFile(t *testing.T) {
 	}
 	if _, err := ReadConnectionFile(dir + "/missing.json"); err == nil {
 		t.Fatal("missing file: got nil error")
+	}
+}
+
+func TestServerWarnsWithoutKey(t *testing.T) {
+	for _, key := range []string{"", testKey} {
+		var logged bytes.Buffer
+		s, err := Start(ConnectionInfo{IP: "127.0.0.1", Key: key}, &fakeExec{started: make(chan struct{}, 1)}, log.New(&logged, "", 0))
+		if err != nil {
+			t.Fatal(err)
+		}
+		s.Shutdown()
+		<-s.Done()
+		if warned := strings.Contains(logged.String(), "key is empty, so messages are not signed"); warned != (key == "") {
+			t.Errorf("key %q: warned %v; log %q", key, warned, logged.String())
+		}
 	}
 }

@@ -18,14 +18,31 @@ import (
 // Limits of the guarded transport.
 const (
 	// MaxFrameSize is the largest ZMTP frame accepted. A frame header claiming more
-	// closes that connection before anything is allocated.
-	MaxFrameSize = 256 << 20
+	// closes that connection before anything is allocated. Requests are small:
+	// a cell holds at most 1 MiB, 6 MiB once JSON escapes every byte.
+	MaxFrameSize = 8 << 20
 	// MaxMessageSize bounds the sum of the frames of one multipart message, and
 	// MaxMessageFrames their number (zmq4 keeps every frame of a message in
 	// memory, so a stream of empty "more" frames would otherwise grow without
 	// end).
-	MaxMessageSize   = 256 << 20
+	MaxMessageSize   = 8 << 20
 	MaxMessageFrames = 1 << 16
+	// MaxInFlight bounds the bytes of incoming messages not yet checked, summed
+	// over every connection of the process: zmq4 allocates a frame as soon as
+	// its header arrives, and the signature is checked only once the whole
+	// message is in. A frame that would pass the bound waits for room for up to
+	// inFlightWait (longer than messageTimeout, so that peers stalling with
+	// the room taken are closed first), then its connection is closed.
+	MaxInFlight  = 20 << 20
+	inFlightWait = 15 * time.Second
+	// messageTimeout bounds the time from a message's first frame header to its
+	// last byte, so a peer cannot hold its share of MaxInFlight by stalling.
+	messageTimeout = 10 * time.Second
+	// maxCommandSize bounds a ZMTP command frame (READY, PING: a few bytes).
+	maxCommandSize = 64 << 10
+	// maxConns bounds the connections one listener keeps open (a Jupyter client
+	// opens one per channel).
+	maxConns = 128
 	// handshakeTimeout bounds the time from accept to the peer's READY command.
 	handshakeTimeout = 5 * time.Second
 	// writeTimeout bounds one write to a peer; a peer that does not read for this
@@ -41,11 +58,78 @@ const (
 
 // ErrFrameTooLarge is returned by a guarded connection's Read when the peer
 // announces a frame larger than MaxFrameSize.
-var ErrFrameTooLarge = errors.New("kernel: zmtp frame larger than 256 MiB refused")
+var ErrFrameTooLarge = errors.New("kernel: zmtp frame larger than 8 MiB refused")
 
 // ErrMessageTooLarge is returned when one multipart message exceeds
 // MaxMessageSize bytes or MaxMessageFrames frames.
 var ErrMessageTooLarge = errors.New("kernel: zmtp message too large refused")
+
+// ErrInFlight is returned when the bytes of unchecked messages over all
+// connections stay at MaxInFlight for inFlightWait.
+var ErrInFlight = errors.New("kernel: unchecked incoming messages over 20 MiB in total; connection closed")
+
+// inFlight counts the bytes of incoming messages announced by their frame
+// headers and not yet consumed: a semaphore in bytes whose waiters give up
+// after a timeout.
+type inFlight struct {
+	mu    sync.Mutex
+	used  int64
+	max   int64
+	freed chan struct{} // closed and replaced on every release
+}
+
+// unchecked is the process-wide count for all guarded connections.
+var unchecked = newInFlight(MaxInFlight)
+
+func newInFlight(max int64) *inFlight { return &inFlight{max: max, freed: make(chan struct{})} }
+
+// acquire takes n bytes, waiting up to wait for room; false if none came or
+// abort was closed.
+func (f *inFlight) acquire(n int64, wait time.Duration, abort <-chan struct{}) bool {
+	var timer *time.Timer
+	for {
+		f.mu.Lock()
+		if f.used+n <= f.max {
+			f.used += n
+			f.mu.Unlock()
+			if timer != nil {
+				timer.Stop()
+			}
+			return true
+		}
+		ch := f.freed
+		f.mu.Unlock()
+		if timer == nil {
+			timer = time.NewTimer(wait)
+		}
+		select {
+		case <-ch:
+		case <-timer.C:
+			return false
+		case <-abort:
+			timer.Stop()
+			return false
+		}
+	}
+}
+
+func (f *inFlight) release(n int64) {
+	if n == 0 {
+		return
+	}
+	f.mu.Lock()
+	f.used -= n
+	close(f.freed)
+	f.freed = make(chan struct{})
+	f.mu.Unlock()
+}
+
+// inUse reports the bytes held (tests).
+func (f *inFlight) inUse() int64 {
+	f.mu.Lock()
+	defer f.mu.Unlock()
+	return f.used
+}
 
 // GuardedTransport is a zmq4 transport (TCP or Unix sockets) hardened for a
 // kernel that any local process may connect to:
@@ -56,7 +140,12 @@ var ErrMessageTooLarge = errors.New("kernel: zmtp message too large refused")
 //   - the handshake has a deadline, lifted when the peer's first command (READY)
 //     has been read;
 //   - every frame header is parsed as it passes and a frame over MaxFrameSize
-//     closes the connection before zmq4 allocates its body;
+//     closes the connection before zmq4 allocates its body; the bytes frame
+//     headers announce count against MaxInFlight (all connections together)
+//     until zmq4 has handed the message on and asks for the next (the kernel
+//     checks the signature in between), and a message must arrive whole within
+//     messageTimeout;
+//   - a listener keeps at most maxConns connections open;
 //   - each write has a deadline, so a peer that never reads is eventually dropped.
 //
 // It is registered with zmq4 as "guarded-tcp" and "guarded-ipc" (see
@@ -116,6 +205,7 @@ type guardedListener struct {
 	done    chan struct{}
 	once    sync.Once
 	pending atomic.Int32
+	open    atomic.Int32 // connections accepted and not yet closed
 }
 
 func newGuardedListener(inner net.Listener) *guardedListener {
@@ -135,11 +225,12 @@ func (l *guardedListener) acceptLoop() {
 			l.Close()
 			return
 		}
-		if l.pending.Load() >= maxPending {
+		if l.pending.Load() >= maxPending || l.open.Load() >= maxConns {
 			c.Close()
 			continue
 		}
 		l.pending.Add(1)
+		l.open.Add(1)
 		go l.screen(c)
 	}
 }
@@ -152,13 +243,15 @@ func (l *guardedListener) screen(c net.Conn) {
 	sig := make([]byte, zmtpSignature)
 	if _, err := io.ReadFull(c, sig); err != nil || sig[0] != 0xff || sig[9] != 0x7f {
 		c.Close()
+		l.open.Add(-1)
 		return
 	}
-	gc := newGuardedConn(c, sig)
+	gc := newGuardedConn(c, sig, unchecked)
+	gc.onClose = func() { l.open.Add(-1) }
 	select {
 	case l.ready <- gc:
 	case <-l.done:
-		c.Close()
+		gc.Close()
 	}
 }
 
@@ -203,22 +296,63 @@ type guardedConn struct {
 	buf   []byte     // network read buffer
 	guard frameGuard
 
+	// Bytes of unchecked messages (see MaxInFlight): delivered counts the
+	// bytes Read has returned; ends holds, for each message whose last frame
+	// has passed the guard, the stream offset just after it. When zmq4 reads
+	// beyond a message's end, it has handed that message on (the endpoint's
+	// reader checks it before receiving again) and its bytes are released.
+	delivered uint64
+	closeOnce sync.Once
+	closed    chan struct{} // closed by Close: stops a wait for room
+	onClose   func()
+
 	wmu     sync.Mutex // held for each network write
 	smu     sync.Mutex // out and pending
 	out     frameGuard // follows outgoing frames to find message boundaries
 	pending [][]byte   // PONG frames waiting for a boundary
 }
 
-func newGuardedConn(c net.Conn, prefix []byte) *guardedConn {
-	gc := &guardedConn{Conn: c, prefix: prefix, buf: make([]byte, 32<<10)}
-	gc.guard = frameGuard{greeting: zmtpGreeting, holdCommands: true}
+func newGuardedConn(c net.Conn, prefix []byte, limit *inFlight) *guardedConn {
+	gc := &guardedConn{Conn: c, prefix: prefix, buf: make([]byte, 32<<10), closed: make(chan struct{})}
+	gc.guard = frameGuard{greeting: zmtpGreeting, holdCommands: true, limit: limit, abort: gc.closed}
 	gc.out = frameGuard{greeting: zmtpGreeting, noLimits: true}
 	return gc
+}
+
+// consumedFunc returns, for a guarded connection, the function that releases
+// the messages zmq4 has read in full (the endpoint calls it after handling
+// each), else nil.
+func consumedFunc(c net.Conn) func() {
+	gc, ok := c.(*guardedConn)
+	if !ok {
+		return nil
+	}
+	return func() {
+		gc.rmu.Lock()
+		gc.guard.releaseUpTo(gc.delivered)
+		gc.rmu.Unlock()
+	}
+}
+
+// Close closes the connection and releases the bytes its messages held.
+func (c *guardedConn) Close() error {
+	err := c.Conn.Close()
+	c.closeOnce.Do(func() {
+		close(c.closed)
+		c.rmu.Lock()
+		c.guard.releaseAll()
+		c.rmu.Unlock()
+		if c.onClose != nil {
+			c.onClose()
+		}
+	})
+	return err
 }
 
 func (c *guardedConn) Read(p []byte) (int, error) {
 	c.rmu.Lock()
 	defer c.rmu.Unlock()
+	c.guard.releaseUpTo(c.delivered)
 	for len(c.in) == 0 && c.rerr == nil {
 		var chunk []byte
 		if len(c.prefix) > 0 {
@@ -227,16 +361,22 @@ func (c *guardedConn) Read(p []byte) (int, error) {
 			n, err := c.Conn.Read(c.buf)
 			chunk, c.rerr = c.buf[:n], err
 		}
-		commands := c.guard.commands
+		commands, started := c.guard.commands, c.guard.started
 		var pings [][]byte
 		var gerr error
 		c.in, pings, gerr = c.guard.filter(chunk, c.in[:0])
 		if gerr != nil {
 			c.Conn.Close()
+			c.guard.releaseAll()
 			c.in, c.rerr = nil, gerr
 			break
 		}
-		if commands == 0 && c.guard.commands > 0 {
+		switch {
+		case c.guard.started > started && c.guard.msgFrames > 0:
+			// A message has begun and is still coming in.
+			c.Conn.SetReadDeadline(time.Now().Add(messageTimeout))
+		case commands == 0 && c.guard.commands > 0, c.guard.started > started:
+			// The handshake is done, or the messages begun are complete.
 			c.Conn.SetReadDeadline(time.Time{})
 		}
 		for _, body := range pings {
@@ -248,6 +388,7 @@ func (c *guardedConn) Read(p []byte) (int, error) {
 	}
 	n := copy(p, c.in)
 	c.in = c.in[n:]
+	c.delivered += uint64(n)
 	return n, nil
 }
 
@@ -332,6 +473,46 @@ type frameGuard struct {
 
 	msgFrames int    // frames of the current multipart message so far
 	msgBytes  uint64 // their bytes
+
+	// Incoming side: the bytes announced by frame headers are taken from limit
+	// (nil: not counted) and held in reserved for the current message; a
+	// complete message's share moves to ends with its end offset in the output
+	// stream, emitted counting the bytes passed on so far.
+	limit    *inFlight
+	wait     time.Duration   // how long a frame waits for room (0: inFlightWait)
+	abort    <-chan struct{} // closed when the connection closes
+	reserved int64
+	ends     []msgEnd
+	emitted  uint64
+	outStart int // where this call's output began in out
+	started  int // messages whose first frame header has passed
+}
+
+type msgEnd struct {
+	offset uint64
+	bytes  int64
+}
+
+// releaseUpTo releases the messages that end at or before offset.
+func (g *frameGuard) releaseUpTo(offset uint64) {
+	k := 0
+	for k < len(g.ends) && g.ends[k].offset <= offset {
+		g.limit.release(g.ends[k].bytes)
+		k++
+	}
+	g.ends = g.ends[k:]
+}
+
+// releaseAll releases everything held (the connection is closed).
+func (g *frameGuard) releaseAll() {
+	for _, e := range g.ends {
+		g.limit.release(e.bytes)
+	}
+	g.ends = nil
+	if g.limit != nil {
+		g.limit.release(g.reserved)
+	}
+	g.reserved = 0
 }
 
 // atBoundary reports whether the stream is between messages.
@@ -348,6 +529,9 @@ func (g *frameGuard) feed(p []byte) error {
 // filter checks in and appends to out the bytes to pass on; complete PING
 // commands are left out and their bodies returned.
 func (g *frameGuard) filter(in, out []byte) ([]byte, [][]byte, error) {
+	start := len(out)
+	g.outStart = start
+	defer func() { g.emitted += uint64(len(out) - start) }()
 	var pings [][]byte
 	pass := func(b []byte) {
 		if g.holding {
@@ -394,11 +578,30 @@ func (g *frameGuard) filter(in, out []byte) ([]byte, [][]byte, error) {
 				if g.body > MaxFrameSize {
 					return out, pings, fmt.Errorf("%w (header claims %d bytes)", ErrFrameTooLarge, g.body)
 				}
+				if g.flags&0x04 != 0 && g.body > maxCommandSize {
+					return out, pings, fmt.Errorf("%w (a command frame of %d bytes, want at most %d)", ErrFrameTooLarge, g.body, maxCommandSize)
+				}
 				if g.flags&0x04 == 0 {
+					if g.msgFrames == 0 {
+						g.started++
+					}
 					g.msgFrames++
 					g.msgBytes += g.body
 					if g.msgFrames > MaxMessageFrames || g.msgBytes > MaxMessageSize {
 						return out, pings, fmt.Errorf("%w (%d frames, %d bytes so far)", ErrMessageTooLarge, g.msgFrames, g.msgBytes)
+					}
+					if g.limit != nil {
+						// zmq4 allocates the body when it reads this header;
+						// a frame header costs it a slice header too.
+						n := int64(g.body) + 64
+						wait := g.wait
+						if wait == 0 {
+							wait = inFlightWait
+						}
+						if !g.limit.acquire(n, wait, g.abort) {
+							return out, pings, ErrInFlight
+						}
+						g.reserved += n
 					}
 				}
 			}
@@ -430,6 +633,10 @@ func (g *frameGuard) endFrame(out []byte, pings [][]byte) ([]byte, [][]byte) {
 		g.more = g.flags&0x01 != 0
 		if !g.more {
 			g.msgFrames, g.msgBytes = 0, 0 // the last frame of a message
+			if g.reserved > 0 {
+				g.ends = append(g.ends, msgEnd{offset: g.emitted + uint64(len(out)-g.outStart), bytes: g.reserved})
+				g.reserved = 0
+			}
 		}
 		return out, pings
 	}

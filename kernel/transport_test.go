@@ -8,7 +8,9 @@ import (
 	"io"
 	"log"
 	"net"
+	"os"
 	"testing"
+	"time"
 
 	"github.com/go-zeromq/zmq4"
 )
@@ -250,5 +252,100 @@ func TestFrameGuardBoundaries(t *testing.T) {
 		if g.atBoundary() != s.boundary {
 			t.Fatalf("step %d: atBoundary %v, want %v", i, g.atBoundary(), s.boundary)
 		}
+	}
+}
+
+// TestFrameGuardCountsUncheckedBytes follows one connection's share of the
+// in-flight bound: taken when a data frame's header passes, kept until the
+// reader has gone past the message's end, and given back on close.
+func TestFrameGuardCountsUncheckedBytes(t *testing.T) {
+	limit := newInFlight(3 * (1000 + 64))
+	g := frameGuard{limit: limit, wait: time.Millisecond}
+	msg := append(zmtpFrame(0x01, make([]byte, 1000)), zmtpFrame(0x00, make([]byte, 1000))...)
+	out, _, err := g.filter(msg[:1200], nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := limit.inUse(); got != 2*(1000+64) {
+		t.Fatalf("two frame headers passed: in use %d, want %d", got, 2*(1000+64))
+	}
+	out, _, err = g.filter(msg[1200:], out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	g.releaseUpTo(uint64(len(out)) - 1)
+	if got := limit.inUse(); got != 2*(1000+64) {
+		t.Fatalf("message not yet read to its end: in use %d, want it held", got)
+	}
+	g.releaseUpTo(uint64(len(out)))
+	if got := limit.inUse(); got != 0 {
+		t.Fatalf("message read: in use %d, want 0", got)
+	}
+	// A second connection holding most of the room: a frame that does not fit
+	// waits, then is refused.
+	other := frameGuard{limit: limit, wait: time.Millisecond}
+	if err := other.feed(zmtpFrame(0x01, make([]byte, 2000))[:9]); err != nil {
+		t.Fatal(err)
+	}
+	if err := g.feed(zmtpFrame(0x00, make([]byte, 1200))[:9]); !errors.Is(err, ErrInFlight) {
+		t.Fatalf("frame over the room left: got %v, want ErrInFlight", err)
+	}
+	other.releaseAll()
+	if got := limit.inUse(); got != 0 {
+		t.Fatalf("after close: in use %d, want 0", got)
+	}
+	// Command frames are bounded on their own.
+	cmd := frameGuard{holdCommands: true}
+	if err := cmd.feed([]byte{0x06, 0, 0, 0, 0, 0, 1, 0, 1}); !errors.Is(err, ErrFrameTooLarge) {
+		t.Fatalf("command frame over 64 KiB: got %v, want ErrFrameTooLarge", err)
+	}
+}
+
+// TestGuardedListenerBoundsConnections: past maxConns open connections, new
+// ones are closed at once; closing one makes room again.
+func TestGuardedListenerBoundsConnections(t *testing.T) {
+	inner, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		t.Fatal(err)
+	}
+	l := newGuardedListener(inner)
+	defer l.Close()
+	accepted := make(chan net.Conn, maxConns+2)
+	go func() {
+		for {
+			c, err := l.Accept()
+			if err != nil {
+				return
+			}
+			accepted <- c
+		}
+	}()
+	sig := make([]byte, zmtpSignature)
+	sig[0], sig[9] = 0xff, 0x7f
+	dialSig := func() net.Conn {
+		c, err := net.Dial("tcp", inner.Addr().String())
+		if err != nil {
+			t.Fatal(err)
+		}
+		c.Write(sig)
+		return c
+	}
+	var held []net.Conn
+	for i := 0; i < maxConns; i++ {
+		c := dialSig()
+		defer c.Close()
+		held = append(held, <-accepted)
+	}
+	extra := dialSig()
+	defer extra.Close()
+	extra.SetReadDeadline(time.Now().Add(10 * time.Second)) // a bound for a failing test, not a wait
+	if _, err := extra.Read(make([]byte, 1)); err == nil || errors.Is(err, os.ErrDeadlineExceeded) {
+		t.Fatalf("connection %d: got %v, want it closed by the kernel", maxConns+1, err)
+	}
+	held[0].Close()
+	again := dialSig()
+	defer again.Close()
+	if c := <-accepted; c == nil {
+		t.Fatal("no connection accepted after one closed")
 	}
 }
