@@ -135,8 +135,8 @@ type runner struct {
 	beforeWrite func()   // tests: runs between the run and writing the notebook
 	stdout      io.Writer
 	stderr      io.Writer
-	progress    bool // a status line on stderr (a terminal)
-	cell, cells int  // the code cell being run, of how many (progress.go)
+	progress    bool    // a status line on stderr (a terminal)
+	cell, cells int     // the code cell being run, of how many (progress.go)
 	budget      int64   // session memory budget in bytes; 0: the default
 	work        float64 // work budget in isochromat-steps; 0: the default
 }
