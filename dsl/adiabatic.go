@@ -61,18 +61,112 @@ func pulseAction(p *shape.Pulse, object string) string {
 }
 
 // thresholdWarning is the plain warning for an adiabatic pulse played below its
-// threshold th (T; NaN when the search found none), or "" when the peak is
-// enough. met is meetsAdiabaticTarget's answer, which speaks when th is NaN.
-func thresholdWarning(p *shape.Pulse, th float64, met bool) string {
+// threshold, or above its upper B1 limit, or "" when the peak is enough. met is
+// meetsAdiabaticTarget's answer, which speaks when no threshold was found.
+func thresholdWarning(p *shape.Pulse, pr shape.Properties, met bool) string {
 	gb := gammaBarOf(p)
-	peak := Quantity{p.Peak(), dimField}.format("uT")
+	peak := fmtField(p.Peak(), gb)
+	th, up := pr.Threshold, pr.ThresholdUpper
 	switch {
-	case !p.Adiabatic || p.Role == shape.RoleNone:
+	case !p.Adiabatic || (p.Role == shape.RoleNone && !p.Plane):
 		return ""
 	case !math.IsNaN(th) && th > p.Peak():
-		return fmt.Sprintf("peak %s is below the adiabatic threshold %s: this pulse will not %s", peak, fmtField(th, gb), pulseAction(p, "its band"))
+		return fmt.Sprintf("peak %s is below the adiabatic threshold %s: this pulse will not %s", peak, fmtField(th, gb), pulseAction(p, thresholdObject(p)))
+	case !math.IsNaN(up) && p.Peak() >= up:
+		return fmt.Sprintf("peak %s is above the upper B1 limit %s, where the target fails again: this pulse will not %s; keep the peak between %s and the limit", peak, fmtField(up, gb), pulseAction(p, thresholdObject(p)), fmtField(th, gb))
 	case math.IsNaN(th) && !met:
-		return fmt.Sprintf("peak %s does not %s, and no adiabatic threshold was found up to 32 times this peak", peak, pulseAction(p, "even the centre of the band"))
+		return fmt.Sprintf("peak %s does not %s, and no adiabatic threshold was found (`describe` says why)", peak, pulseAction(p, "even the centre of the band"))
 	}
 	return ""
+}
+
+// thresholdBanded reports whether p's threshold is judged over a band (±¼ of
+// its design bandwidth, or of a file's sweep) rather than at its centre alone
+// (BIR-4: no design band; see shape.Properties.Threshold).
+func thresholdBanded(p *shape.Pulse) bool {
+	return p.Bandwidth != 0 || (imported(p) && p.Sweep > 0)
+}
+
+// thresholdObject is what the threshold is judged on, for messages.
+func thresholdObject(p *shape.Pulse) string {
+	if thresholdBanded(p) {
+		return "±¼ of its band"
+	}
+	return "its centre"
+}
+
+// thresholdLabel is the name of the threshold row, saying where it is judged.
+func thresholdLabel(p *shape.Pulse) string {
+	if thresholdBanded(p) {
+		return "adiabatic threshold (over ±¼ of the band)"
+	}
+	return "adiabatic threshold (at the centre)"
+}
+
+// thresholdTargetText states the target the threshold asks of p.
+func thresholdTargetText(p *shape.Pulse) string {
+	var t string
+	switch p.Role {
+	case shape.RoleInvert:
+		t = "Mz ≤ −0.9"
+	case shape.RoleExcite:
+		t = "|Mxy| ≥ 0.9·sin flip"
+	case shape.RoleRefocus:
+		t = "|β|² ≥ 0.9"
+	case shape.RoleSaturate:
+		t = "|Mz| ≤ 0.1"
+	default:
+		t = "|Mz − cos flip| ≤ 0.1"
+	}
+	if p.Plane {
+		t += ", and M within 0.1 of the promised rotation, phase included"
+	}
+	return t
+}
+
+// thresholdReason says why an adiabatic pulse has no threshold (pr.Threshold is
+// NaN): the target, where it is asked, the range of peak B1 searched, and where
+// the search came closest.
+func thresholdReason(p *shape.Pulse, pr shape.Properties) string {
+	if p.Role == shape.RoleNone && !p.Plane && (imported(p) || math.IsNaN(p.Flip)) {
+		return "no target to meet: the pulse has no role and no nominal flip (give role)"
+	}
+	gb := gammaBarOf(p)
+	where := "at every offset within ±¼ of the band"
+	if !thresholdBanded(p) {
+		where = "at the centre (it has no design band)"
+	}
+	s := fmt.Sprintf("no peak B1 from %s to %s meets the target (%s) %s over half an octave of B1 (the search range follows the sweep rate and stops at 45° of nutation per sample; the peak the pulse was given plays no part)", fmtField(pr.ThresholdScan[0], gb), fmtField(pr.ThresholdScan[1], gb), thresholdTargetText(p), where)
+	if n := pr.ThresholdNear; !math.IsNaN(n.B1) {
+		var got string
+		switch p.Role {
+		case shape.RoleInvert, shape.RoleSaturate:
+			got = "Mz = " + formatNumber(roundSig(n.Mz, 3))
+		case shape.RoleExcite:
+			got = "|Mxy| = " + formatNumber(roundSig(math.Hypot(n.Mx, n.My), 3))
+		case shape.RoleRefocus:
+			got = "|β|² = " + formatNumber(roundSig(n.Beta2, 3))
+		default:
+			got = fmt.Sprintf("M = (%s, %s, %s)", formatNumber(roundSig(n.Mx, 3)), formatNumber(roundSig(n.My, 3)), formatNumber(roundSig(n.Mz, 3)))
+		}
+		s += fmt.Sprintf("; closest at %s, where the offset %s from the carrier reaches %s", fmtField(n.B1, gb), Quantity{n.Offset, dimFrequency}.String(), got)
+	}
+	return s
+}
+
+// thresholdText is the threshold as describe prints it: the value, or "not
+// met: " and the reason.
+func thresholdText(p *shape.Pulse, pr shape.Properties) string {
+	if math.IsNaN(pr.Threshold) {
+		return "not met: " + thresholdReason(p, pr)
+	}
+	return fmtField(pr.Threshold, gammaBarOf(p))
+}
+
+// upperLimitText is the upper B1 limit as describe prints it.
+func upperLimitText(p *shape.Pulse, pr shape.Properties) string {
+	if math.IsNaN(pr.ThresholdUpper) {
+		return "none up to " + fmtField(pr.ThresholdScan[1], gammaBarOf(p)) + " (the top of the search)"
+	}
+	return fmtField(pr.ThresholdUpper, gammaBarOf(p)) + " (the target fails again above it)"
 }

@@ -88,11 +88,6 @@ func fmtField(b, gammaBar float64) string {
 // energyUnit shows ∫B1² dt in µT²·ms.
 func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
 
-// thresholdUnmet says what an adiabatic threshold of "not met" means (the search of
-// shape.Measure: octaves up to 32× the pulse's peak, target over ±¼ of the bandwidth, met at
-// two successive octaves).
-const thresholdUnmet = "no peak B1 up to 32× the pulse's own meets the role's target over ±¼ of the bandwidth and still meets it at twice that peak, as a threshold must (a sweep without amplitude taper may meet it only in windows of B1: sweep b1 to see them)"
-
 func fmtOpt(v float64, f func(float64) string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "—"
@@ -179,7 +174,7 @@ func (ev *evaluator) thresholdWarning(d *pulseDef, pr shape.Properties) (string,
 			return "", err
 		}
 	}
-	return thresholdWarning(d.Pulse, pr.Threshold, met), nil
+	return thresholdWarning(d.Pulse, pr, met), nil
 }
 
 // centreText is a pulse's centre in Hz, and in ppm too once the field is set
@@ -273,17 +268,10 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		[]string{"ripple (pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct)},
 	)
 	if p.Adiabatic {
-		th := fmtOpt(pr.Threshold, func(v float64) string { return fmtField(v, gb) })
-		label, unmet := "adiabatic threshold", thresholdUnmet
-		if p.Bandwidth == 0 && !imported(p) {
-			// No design band (bir4): the target is asked at the centre only.
-			label = "adiabatic threshold (at the centre)"
-			unmet = strings.Replace(unmet, "over ±¼ of the bandwidth", "at the centre (it has no design band)", 1)
+		rows = append(rows, []string{thresholdLabel(p), thresholdText(p, pr)})
+		if !math.IsNaN(pr.Threshold) {
+			rows = append(rows, []string{"upper B1 limit", upperLimitText(p, pr)})
 		}
-		if math.IsNaN(pr.Threshold) {
-			th = "not met: " + unmet
-		}
-		rows = append(rows, []string{label, th})
 	}
 	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
 	if tr > 0 {

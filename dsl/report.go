@@ -52,7 +52,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	}
 	var rows [][]string
 	var warnings []string
-	unmet := false
+	var unmet []string
 	prog, done := ev.measureProgress("report "+joinNames(s.Names), defs)
 	defer done()
 	for _, d := range defs {
@@ -99,9 +99,12 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			th := "—"
 			if p.Adiabatic {
 				th = fmtOpt(pr.Threshold, func(v float64) string { return formatNumber(roundSig(v*1e6, 4)) })
+				if !thresholdBanded(p) && !math.IsNaN(pr.Threshold) {
+					th += " (at the centre)"
+				}
 				if math.IsNaN(pr.Threshold) {
 					th = "not met†"
-					unmet = true
+					unmet = append(unmet, d.Name+": "+thresholdReason(p, pr))
 				}
 			}
 			row = append(row, th)
@@ -139,8 +142,11 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
 	}
-	if unmet {
-		notes = append(notes, "† "+thresholdUnmet)
+	if adiabatic {
+		notes = append(notes, "Adiabatic threshold: the lowest peak B1 at which the simulated pulse meets its role's target (invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9·sin flip, refocus |β|² ≥ 0.9, saturate |Mz| ≤ 0.1; bir4 also its rotation, phase included) at every offset within ±¼ of its band, or at its centre where marked (no design band), and keeps meeting it over half an octave of B1 above.")
+	}
+	if len(unmet) > 0 {
+		notes = append(notes, "† adiabatic threshold not met: "+strings.Join(unmet, "; "))
 	}
 	notes = append(notes, warnings...)
 	t := display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}

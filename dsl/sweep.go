@@ -415,6 +415,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		leftCells = left * n0 * n1 / len(skip) // every build leaves out the same spins
 	}
 	notes := axisNotes(axes, leftCells, n0*n1)
+	notes = append(notes, sweepRunNotes(runs, axes)...)
 	if t2FromT1(axes, set) {
 		notes = append(notes, t2FromT1Note)
 	}
@@ -499,6 +500,10 @@ type sweepRun struct {
 	fixed   map[int]int       // axis index → point index fixed by this build
 	spins   int               // isochromats simulated
 	callPos Pos               // where build errors point
+	// fail, when not "", says why the pulse cannot be built at this point of
+	// the shape axes: the point is left out (NaN) and the reason goes in the
+	// notes. note is a remark on a figure of this point (a threshold not found).
+	fail, note string
 }
 
 // planSweep builds every pulse the sweep needs (one per point of the shape axes)
@@ -535,6 +540,8 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 	}
 	var runs []*sweepRun
 	total, kept := 0.0, 0
+	var firstErr error
+	built := 0
 	for pi, d := range defs {
 		for b := 0; b < builds; b++ {
 			if err := ev.checkCtx(); err != nil {
@@ -555,14 +562,22 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 				r.callPos = axes[shapeIdx[0]].pos
 				p, err := ev.rebuild(d, r.args, r.callPos)
 				if err != nil {
-					var pe *posError
+					if cerr := ev.checkCtx(); cerr != nil {
+						return nil, 0, cerr
+					}
 					msg := err.Error()
 					if e, ok := err.(*posError); ok {
-						pe = e
-						msg = pe.msg
+						msg = e.msg
 					}
-					return nil, 0, errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+					if firstErr == nil {
+						firstErr = errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+					}
+					// An impossible point is left out; the rest is drawn.
+					r.fail, r.p = msg, nil
+					runs = append(runs, r)
+					continue
 				}
+				built++
 				r.p = p
 			}
 			if axisNamed(axes, "position") && r.p.Wave.Gradient == nil {
@@ -587,7 +602,46 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 			runs = append(runs, r)
 		}
 	}
+	if firstErr != nil && built == 0 && len(shapeIdx) > 0 {
+		return nil, 0, firstErr // no point can be built: nothing to draw
+	}
 	return runs, total, nil
+}
+
+// sweepRunNotes are the notes of a sweep's impossible points (left out) and of
+// figures that could not be found at some points (a threshold not met).
+func sweepRunNotes(runs []*sweepRun, axes []*sweepAxis) []string {
+	var out []string
+	left := 0
+	var why []string
+	for _, r := range runs {
+		if r.fail != "" {
+			left++
+			if len(why) < 4 {
+				why = append(why, r.def.Name+" at "+pointText(axes, r.fixed)+": "+r.fail)
+			}
+		}
+	}
+	if left > 0 {
+		more := ""
+		if left > len(why) {
+			more = fmt.Sprintf("; and %d more", left-len(why))
+		}
+		out = append(out, fmt.Sprintf("%d of %d pulses could not be built and are left out (blank in the figure, \"—\" in tables, null in the JSON): %s%s.", left, len(runs), strings.Join(why, "; "), more))
+	}
+	notes := 0
+	for _, r := range runs {
+		if r.note != "" {
+			if notes < 3 {
+				out = append(out, r.note)
+			}
+			notes++
+		}
+	}
+	if notes > 3 {
+		out = append(out, fmt.Sprintf("(and %d more points where a figure was not found)", notes-3))
+	}
+	return out
 }
 
 func pointText(axes []*sweepAxis, fixed map[int]int) string {
@@ -667,6 +721,33 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 // runOne fills the cells of one build; spins marked in skip (see relaxMask) are
 // not simulated and their cells are NaN.
 func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, skip []bool, n1 int, curves []*curveData, prog *progress) error {
+	if r.fail != "" {
+		var spinAx []int
+		for i, a := range axes {
+			if a.spin {
+				spinAx = append(spinAx, i)
+			}
+		}
+		for k := 0; k < r.spins; k++ {
+			idx := [2]int{}
+			for ai, v := range r.fixed {
+				idx[ai] = v
+			}
+			rem := k
+			for j := len(spinAx) - 1; j >= 0; j-- {
+				ai := spinAx[j]
+				idx[ai] = rem % axes[ai].n
+				rem /= axes[ai].n
+			}
+			for _, c := range curves {
+				c.values[idx[0]*n1+idx[1]] = math.NaN()
+				if c.mag != nil {
+					c.mag[idx[0]*n1+idx[1]] = math.NaN()
+				}
+			}
+		}
+		return nil
+	}
 	if r.p == nil {
 		p, err := ev.rebuild(r.def, r.args, r.callPos)
 		if err != nil {
@@ -746,7 +827,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 	var props shape.Properties
 	if needMeasure {
 		var err error
-		props, err = shape.Measure(ev.ctx, p, shape.MeasureOptions{TR: set.tr, Field: ev.st.field})
+		props, err = shape.Measure(ev.ctx, p, ev.measureOptions(r.def, set.tr))
 		if err != nil {
 			if ev.ctx.Err() != nil {
 				return ev.ctx.Err()
@@ -821,6 +902,9 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 				v = props.PassRipple * 100
 			case "threshold":
 				v = props.Threshold * 1e6
+				if math.IsNaN(v) && r.note == "" {
+					r.note = "threshold of " + r.def.Name + " at " + pointText(axes, r.fixed) + " not found (\"—\"): " + thresholdReason(p, props)
+				}
 			}
 			c.values[cell(k)] = v
 		}
