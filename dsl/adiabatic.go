@@ -160,7 +160,11 @@ func thresholdText(p *shape.Pulse, pr shape.Properties) string {
 	if math.IsNaN(pr.Threshold) {
 		return "not met: " + thresholdReason(p, pr)
 	}
-	return fmtField(pr.Threshold, gammaBarOf(p))
+	s := fmtField(pr.Threshold, gammaBarOf(p))
+	if w := amplitudeWarning("it", pr.Threshold, gammaBarOf(p)); w != "" {
+		s += "; " + w
+	}
+	return s
 }
 
 // upperLimitText is the upper B1 limit as describe prints it.
@@ -169,4 +173,39 @@ func upperLimitText(p *shape.Pulse, pr shape.Properties) string {
 		return "none up to " + fmtField(pr.ThresholdScan[1], gammaBarOf(p)) + " (the top of the search)"
 	}
 	return fmtField(pr.ThresholdUpper, gammaBarOf(p)) + " (the target fails again above it)"
+}
+
+// Plausible RF hardware (common practice): MRI body and head coils give tens of
+// µT (1 to 2 kHz of nutation for 1H); NMR probes give up to about 100 kHz of
+// nutation γ̄B1 (solid-state probes 100 to 250 kHz for 1H, a few mT), and no
+// probe 10 mT. A pulse above either gets a warning, never a refusal: the
+// physics holds at any amplitude.
+const (
+	hardwareNutation = 100e3 // Hz, γ̄B1
+	hardwareB1       = 10e-3 // T
+)
+
+// hardwareField is the largest B1 (T) taken without a warning for a nucleus of
+// γ̄ gammaBar (Hz/T): 100 kHz of nutation, at most 10 mT.
+func hardwareField(gammaBar float64) float64 {
+	gb := math.Abs(gammaBar)
+	if gb == 0 {
+		return hardwareB1
+	}
+	return math.Min(hardwareB1, hardwareNutation/gb)
+}
+
+// amplitudeWarning is the warning for a B1 (T) of what ("peak B1") beyond
+// plausible hardware for a nucleus of γ̄ gammaBar, "" when within.
+func amplitudeWarning(what string, b1, gammaBar float64) string {
+	if !(math.Abs(b1) > hardwareField(gammaBar)) {
+		return ""
+	}
+	return fmt.Sprintf("%s %s is beyond what RF hardware plausibly gives (warned above %s: 100 kHz of nutation γ̄B1, at most 10 mT; MRI coils give tens of µT, NMR probes up to about 100 kHz)", what, fmtFieldKHz(math.Abs(b1), gammaBar), fmtFieldKHz(hardwareField(gammaBar), gammaBar))
+}
+
+// fmtFieldKHz shows a B1 in µT and its nutation frequency in the unit that
+// reads best (kHz for most probe fields).
+func fmtFieldKHz(b, gammaBar float64) string {
+	return fmt.Sprintf("%s (%s)", Quantity{b, dimField}.format("uT"), Quantity{b * math.Abs(gammaBar), dimFrequency}.String())
 }

@@ -143,7 +143,9 @@ func Help(topic string) (string, error) {
 		b.WriteString("  A shift in ppm meeting a frequency or a time is its offset γ̄·B0·δ in Hz (signed like γ;\n")
 		b.WriteString("  needs `field`): `3.5 ppm / bw` is a ratio, `3.5 ppm + 100 Hz` a frequency. ppm alone,\n")
 		b.WriteString("  ppm ± ppm, ppm × number and ppm / ppm stay in ppm (or plain numbers).\n")
-		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.")
+		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.\n")
+		b.WriteString("  `pi` is the constant π (`flip = pi rad`, `pi/2 * rad`). An axis whose first end is a plain\n")
+		b.WriteString("  number takes the unit of the second: `offset -1 to 1 kHz` is -1 kHz to 1 kHz.")
 		return b.String(), nil
 	case "nuclei":
 		var b strings.Builder
@@ -265,6 +267,8 @@ func wordHelp(w string) (string, bool) {
 	switch w {
 	case "over", "to", "points", "step", "show", "with":
 		parts = append(parts, "part of `sweep`: "+strings.Split(statementHelp[5].Syntax, "\n")[0])
+	case piName:
+		parts = append(parts, "pi (constant)\n  π = 3.14159…, a plain number written like one: `flip = pi rad`, `pi/2 * rad` (a unit binds to the number before it, so `pi/2 rad` reads as pi / (2 rad)), `2*pi`. It cannot be redefined.")
 	case "in":
 		parts = append(parts, "`EXPR in UNIT` converts a value for display: `1 kHz in uT`, `12 ppm in Hz`")
 	case "at":
@@ -394,6 +398,7 @@ func helpWords() []string {
 	for _, s := range settingTable {
 		set[s.Name] = true
 	}
+	set[piName] = true
 	var out []string
 	for w := range set {
 		out = append(out, w)

@@ -22,8 +22,9 @@
 // Limits: a cell of at most 1 MiB, expressions nested at most 100 deep, sweeps
 // within the engine's step budget (physics.DefaultMaxSteps), at most 100 000
 // points per axis and 10⁶ per map; a pulse of at most 10⁶ samples with a dwell of
-// at least 10 ns (describe's JSON keeps at most 4096 of them), a peak of at most
-// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns.
+// at least 10 ns (describe's JSON keeps at most 4096 of them), a peak below 1 T
+// and a flip of at most 100 turns (typo guards; a peak beyond plausible RF
+// hardware, see amplitudeWarning, gets a warning); T1 and T2 of at least 1 ns.
 package dsl
 
 import (
@@ -175,7 +176,7 @@ func toCellError(src string, st Stmt, e error) *CellError {
 // value is parsed now, so a malformed one is refused at once.
 func (s *Session) Override(name, value string) error {
 	toks := tokenize(name, &errorList{src: name})
-	if len(toks) != 2 || toks[0].Kind != tIdent || isReserved(name) {
+	if len(toks) != 2 || toks[0].Kind != tIdent || isReserved(name) || name == piName {
 		return fmt.Errorf("override: %q is not a name", name)
 	}
 	if _, ok := lookupUnit(name); ok {

@@ -94,6 +94,13 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 	if err != nil {
 		return nil, err
 	}
+	if from.Q.D == dimNumber && from.Unit == "" && to.Q.D != dimNumber && bareNumber(ax.From) {
+		// `offset -1 to 1 kHz`: a plain number first takes the unit of the
+		// second endpoint, as written.
+		if u, ok := lookupUnit(to.Unit); ok && u.Dim == to.Q.D {
+			from = Value{Q: Quantity{from.Q.V * u.Factor, u.Dim}, Unit: u.Name}
+		}
+	}
 	if contains(spinAxisNames(), a.kind) {
 		a.spin = true
 		var ok bool
@@ -416,6 +423,7 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	notes := axisNotes(axes, leftCells, n0*n1)
 	notes = append(notes, sweepRunNotes(runs, axes)...)
+	notes = append(notes, amplitudeNotes(runs, axes, set)...)
 	if t2FromT1(axes, set) {
 		notes = append(notes, t2FromT1Note)
 	}
@@ -471,6 +479,18 @@ func joinNames(ids []Ident) string {
 		s = append(s, id.Name)
 	}
 	return strings.Join(s, ", ")
+}
+
+// bareNumber reports whether e is a number written without a unit, signed or
+// not (`-1`, `pi`).
+func bareNumber(e Expr) bool {
+	switch x := e.(type) {
+	case *Number:
+		return x.Unit == nil
+	case *Unary:
+		return bareNumber(x.X)
+	}
+	return false
 }
 
 func axisNamed(axes []*sweepAxis, names ...string) bool {
@@ -606,6 +626,56 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 		return nil, 0, firstErr // no point can be built: nothing to draw
 	}
 	return runs, total, nil
+}
+
+// amplitudeNotes warn, once per pulse, when the strongest B1 a sweep plays
+// (the pulse's peak, scaled by a b1 axis or setting) is beyond plausible RF
+// hardware (amplitudeWarning).
+func amplitudeNotes(runs []*sweepRun, axes []*sweepAxis, set *settings) []string {
+	var out []string
+	worst := map[int]float64{}
+	var order []int
+	for _, r := range runs {
+		if r.p == nil || r.fail != "" {
+			continue
+		}
+		gb := gammaBarOf(r.p)
+		scale := 1.0
+		if set.b1 != nil {
+			if f, ok := b1Factor(*set.b1, r.p.Peak(), gb); ok {
+				scale = math.Abs(f)
+			}
+		}
+		for _, a := range axes {
+			if a.kind != "b1" {
+				continue
+			}
+			scale = 0
+			for _, i := range []int{0, a.n - 1} {
+				if f, ok := b1Factor(a.value(i), r.p.Peak(), gb); ok {
+					scale = math.Max(scale, math.Abs(f))
+				}
+			}
+		}
+		b := scale * r.p.Peak()
+		if _, ok := worst[r.pi]; !ok {
+			order = append(order, r.pi)
+		}
+		if b > worst[r.pi] {
+			worst[r.pi] = b
+		}
+	}
+	for _, pi := range order {
+		for _, r := range runs {
+			if r.pi == pi && r.p != nil {
+				if w := amplitudeWarning(r.def.Name+": the strongest B1 of this sweep,", worst[pi], gammaBarOf(r.p)); w != "" {
+					out = append(out, "warning: "+w+".")
+				}
+				break
+			}
+		}
+	}
+	return out
 }
 
 // sweepRunNotes are the notes of a sweep's impossible points (left out) and of
