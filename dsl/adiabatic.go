@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 
 	"Nutate/physics"
 	"Nutate/physics/shape"
@@ -209,3 +210,45 @@ func amplitudeWarning(what string, b1, gammaBar float64) string {
 func fmtFieldKHz(b, gammaBar float64) string {
 	return fmt.Sprintf("%s (%s)", Quantity{b, dimField}.format("uT"), Quantity{b * math.Abs(gammaBar), dimFrequency}.String())
 }
+
+// sweepSamplingWarning warns when a frequency-swept pulse's samples are too
+// coarse for its sweep: each sample holds the phase of B1 for a dwell, so at
+// instantaneous frequency f the sample's field is weakened by sinc(π·f·dwell)
+// (the spectrum of a sample-and-hold) and, from half a cycle per sample on,
+// aliases to another frequency; and a nutation of more than 45° per sample
+// no longer follows the turning effective field. "" when the samples are fine
+// (the designed shapes default to at least 20 samples per cycle of the sweep's
+// largest frequency: within about 0.4 %).
+func sweepSamplingWarning(p *shape.Pulse) string {
+	if p.Freq == nil || len(p.Freq) != p.Wave.Len() {
+		return ""
+	}
+	cycles, nut := 0.0, 0.0 // largest cycles per sample of the sweep, turns of nutation per sample
+	gb := gammaBarOf(p)
+	for j, f := range p.Freq {
+		dt := p.Wave.Dwell[j]
+		if p.Wave.B1[j] == 0 {
+			continue
+		}
+		cycles = math.Max(cycles, math.Abs(f)*dt)
+		nut = math.Max(nut, gb*cmplxAbs(p.Wave.B1[j])*dt)
+	}
+	var why []string
+	x := math.Pi * cycles
+	switch {
+	case cycles >= 0.5:
+		why = append(why, fmt.Sprintf("the sweep reaches %s cycles per sample (%s samples per cycle of its largest frequency), where the sampled sweep aliases and plays elsewhere", formatNumber(roundSig(cycles, 3)), formatNumber(roundSig(1/cycles, 3))))
+	case x > 0 && 1-math.Sin(x)/x >= 0.01:
+		why = append(why, fmt.Sprintf("the sweep's largest frequency has %s samples per cycle, which weakens the field there by about %s %%", formatNumber(roundSig(1/cycles, 3)), formatNumber(roundSig(100*(1-math.Sin(x)/x), 2))))
+	}
+	if nut > 1.0/8 {
+		why = append(why, fmt.Sprintf("the field nutates by up to %s deg per sample, too coarse to follow the turning effective field", formatNumber(roundSig(nut*360, 3))))
+	}
+	if len(why) == 0 {
+		return ""
+	}
+	need := math.Ceil(float64(p.Wave.Len()) * math.Max(cycles/0.05, nut*8)) // 20 samples per cycle, 45° per sample
+	return fmt.Sprintf("%s samples are too few for this frequency sweep: %s; the profile is distorted (about %s samples or more keep it faithful)", formatNumber(float64(p.Wave.Len())), strings.Join(why, "; "), formatNumber(need))
+}
+
+func cmplxAbs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }

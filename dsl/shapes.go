@@ -651,6 +651,9 @@ func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
 	if err != nil {
 		return "", errAt(at, "checking %s against its adiabatic threshold: %v", def.Name, err)
 	}
+	if sw := sweepSamplingWarning(def.Pulse); sw != "" {
+		w += "\nwarning: " + sw
+	}
 	if aw := amplitudeWarning("peak B1", def.Pulse.Peak(), gammaBarOf(def.Pulse)); aw != "" {
 		w += "\nwarning: " + aw + ": check the duration and the flip or peak"
 	}
