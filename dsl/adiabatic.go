@@ -99,9 +99,9 @@ func thresholdObject(p *shape.Pulse) string {
 // thresholdLabel is the name of the threshold row, saying where it is judged.
 func thresholdLabel(p *shape.Pulse) string {
 	if thresholdBanded(p) {
-		return "adiabatic threshold (over ±¼ of the band)"
+		return "adiabatic threshold (measured, over ±¼ of the band)"
 	}
-	return "adiabatic threshold (at the centre)"
+	return "adiabatic threshold (measured, at the centre)"
 }
 
 // thresholdTargetText states the target the threshold asks of p.

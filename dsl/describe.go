@@ -243,7 +243,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 			rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
 		}
 	}
-	rows = append(rows, []string{"rotation at centre (simulated)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
+	rows = append(rows, []string{"rotation at centre (measured)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
 	if p.Role != shape.RoleNone {
 		rows = append(rows, []string{"role", p.Role.String()})
 	}
@@ -255,7 +255,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		rows = append(rows, []string{"bandwidth (design)", Quantity{p.Bandwidth, dimFrequency}.String()})
 	}
 	rows = append(rows,
-		[]string{"bandwidth (FWHM of profile)", fmtOpt(pr.Bandwidth, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
+		[]string{"bandwidth (measured FWHM, " + halfLevelText(p, pr) + ")", fwhmText(p, pr)},
 	)
 	if p.TBW != 0 {
 		rows = append(rows, []string{"TBW (design)", formatNumber(p.TBW)})
@@ -264,13 +264,13 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		rows = append(rows, []string{"TBW (measured, FWHM × duration)", formatNumber(roundSig(pr.Bandwidth*p.Duration(), 6))})
 	}
 	rows = append(rows,
-		[]string{"transition (90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
-		[]string{"ripple (pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct)},
+		[]string{"transition (measured, 90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
+		[]string{"ripple in " + roleQuantity(p.Role) + " (measured, pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct) + " of M0"},
 	)
 	if p.Adiabatic {
 		rows = append(rows, []string{thresholdLabel(p), thresholdText(p, pr)})
 		if !math.IsNaN(pr.Threshold) {
-			rows = append(rows, []string{"upper B1 limit", upperLimitText(p, pr)})
+			rows = append(rows, []string{"upper B1 limit (measured)", upperLimitText(p, pr)})
 		}
 	}
 	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
@@ -298,11 +298,50 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	}
 }
 
-// rippleNote names the regions of describe's ripple (shape.Measure), which differ
-// from those of a sweep's feature table.
-const rippleNote = "ripple (pass / stop) of the role's profile (|Mxy| for excite or no role, (1 − Mz)/2 invert, echo |β|² refocus, 1 − |Mz| saturate), relative to its centre value: pass is the largest deviation within the FWHM band edges moved inward by one 90 %–10 % transition width, stop the largest value beyond the edges moved outward by one transition width. A sweep's feature table uses other regions (its note says which)."
+// rippleNote states describe's definitions (help quantities).
+const rippleNote = "Measured figures come from the simulated profile of the role's quantity (Mz for invert and saturate, |Mxy| for excite or no role, echo |β|² for refocus): FWHM is the width where it is half-way between its stop-band value and its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation; the centre's value where the design fixes none); the transition is the mean 90 %–10 % width of the two edges; pass ripple is the largest deviation from the pass-band value within the band edges moved inward by one transition width, stop ripple the largest deviation from the stop-band value beyond the edges moved outward by one transition width, both in % of M0 in that quantity (as slr's pass and stop are given). A sweep's feature table uses the same definitions on its points."
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
+
+// roleQuantity names the quantity a role's profile is measured in.
+func roleQuantity(r shape.Role) string {
+	switch r {
+	case shape.RoleInvert, shape.RoleSaturate:
+		return "Mz"
+	case shape.RoleRefocus:
+		return "echo |β|²"
+	}
+	return "|Mxy|"
+}
+
+// halfLevelText says where the FWHM is taken: "Mz = 0".
+func halfLevelText(p *shape.Pulse, pr shape.Properties) string {
+	if math.IsNaN(pr.PassValue) {
+		return "at half the centre value"
+	}
+	h := pr.PassValue / 2
+	switch p.Role {
+	case shape.RoleInvert:
+		return "Mz = " + formatNumber(roundSig(1-2*h, 4))
+	case shape.RoleSaturate:
+		return "Mz = " + formatNumber(roundSig(1-h, 4))
+	}
+	if !pr.PassDesign {
+		return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4)) + ", half the centre value"
+	}
+	return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4))
+}
+
+// fwhmText is the measured FWHM, or why there is none.
+func fwhmText(p *shape.Pulse, pr shape.Properties) string {
+	if !math.IsNaN(pr.Bandwidth) {
+		return Quantity{pr.Bandwidth, dimFrequency}.String()
+	}
+	if pr.PassDesign && pr.OnBand < pr.PassValue/2 {
+		return "— (the centre does not reach the half level)"
+	}
+	return "—"
+}
 
 // importedArea names where an imported pulse's area γ|∫B1 dt| is taken: at the
 // carrier, at the file's constant frequency offset (its centre), or in the frame

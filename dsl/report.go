@@ -19,7 +19,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		return err
 	}
 	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
-		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth", Unit: "Hz"},
+		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth (measured FWHM)", Unit: "Hz"},
 		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
 	adiabatic, slice, role, centre := false, false, false, false
 	for _, d := range defs {
@@ -139,7 +139,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		context += fmt.Sprintf(", B0 = %s T", formatNumber(ev.st.field))
 	}
 	notes := []string{
-		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW as designed, or FWHM × duration where the design has none.",
+		"Bandwidth (measured): full width of each pulse's simulated profile (exact Bloch simulation, " + context + ") where its role's quantity is half-way to its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation, echo |β|² = sin²(flip/2) / 2 for refocusing); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
 	}
 	if adiabatic {

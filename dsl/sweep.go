@@ -969,7 +969,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			case "transition":
 				v = props.Transition
 			case "ripple":
-				v = props.PassRipple * 100
+				v = props.PassRipple * 100 // % of M0 in the role's quantity
 			case "threshold":
 				v = props.Threshold * 1e6
 				if math.IsNaN(v) && r.note == "" {
@@ -1160,7 +1160,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 	t := display.Table{
 		Title: title + " (features; the data is in the JSON output and `export`)",
 		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
-			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple"}, {Name: "stop ripple"}},
+			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple", Unit: "% of M0"}, {Name: "stop ripple", Unit: "% of M0"}},
 	}
 	hasPhase, hasLevels, hasXY := false, false, false
 	for _, c := range curves {
@@ -1217,7 +1217,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		f := curveFeatures(fx, fy, base, target)
 		row := []string{c.pulse, c.quantity.Name,
 			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
-			fmtCellOpt(f.width), f.crossings, fmtCellOpt(f.passRipple), fmtCellOpt(f.stopRipple)}
+			fmtCellOpt(f.width), f.crossings, fmtCellOpt(100 * f.passRipple), fmtCellOpt(100 * f.stopRipple)}
 		if hasPhase {
 			row = append(row, "—", "—")
 		}
@@ -1261,7 +1261,7 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 // halfLevelNote explains the half level, the width and the ripples of a sweep's
 // feature table, naming the regions the ripples cover; describe's ripple
 // (shape.Measure) uses other regions, and the note says so.
-const halfLevelNote = "half level: midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's, e.g. mz = cos flip or −1 for inversion; otherwise the curve's extreme, so half maximum for mxy and echo); width at half: distance between the crossings around the band, \"—\" when the curve does not pass the half level and come back on both sides inside the window. pass ripple: peak to peak, in the quantity's units, over the central 50 % of the band between the half-level crossings; stop ripple: the largest distance from the far-from-band level beyond the crossings widened by a quarter of the band width on each side. (describe's ripple uses other regions: inside and beyond the half-maximum band edges moved by one 90 %–10 % transition width, relative to the centre value.) All are read from the swept points, crossings interpolated between them: a coarse grid can miss a ripple's extreme; describe refines by simulation."
+const halfLevelNote = "Measured from the swept points, with the definitions of describe (help quantities): half level midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's: mz = cos flip, −1 for inversion, 0 for saturation, mxy = sin flip, echo = sin²(flip/2), 1 for an adiabatic pulse; otherwise the curve's extreme); width at half: the distance between the crossings around the band (the FWHM), \"—\" when the curve does not pass the half level and come back on both sides inside the window. Pass ripple: the largest distance from the pass-band value within the band edges moved inward by one 90 %–10 % transition width; stop ripple: the largest distance from the far-from-band value beyond the edges moved outward by one transition width; both in % of M0 in the quantity shown (for inversion, of Mz). Crossings are interpolated between points, so a coarse grid can miss a ripple's extreme; describe refines by simulation."
 
 func energyNote(curves []*curveData) []string {
 	for _, c := range curves {

@@ -87,22 +87,38 @@ type Properties struct {
 	// Role is the role whose profile was measured: for excite and none |Mxy|,
 	// invert (1 − Mz)/2, refocus |β|², saturate 1 − |Mz|, all from +z.
 	Role Role
-	// OnBand is the profile's value at the pulse's centre frequency. The
-	// profile figures below need it to be at least a tenth of the profile's
-	// largest value.
+	// OnBand is the profile's value at the pulse's centre frequency.
 	OnBand float64
-	// Bandwidth (Hz) is the distance between the offsets, nearest the centre on
-	// either side, where the simulated profile crosses OnBand/2 (refined between
-	// grid points by regula falsi on single-isochromat simulations, to within
-	// 1e-10 of the level); Edges are those offsets.
+	// PassValue is the value the role's profile has in its pass band by
+	// design: invert and saturate 1; refocus sin²(θ/2) and excite or no role
+	// |sin θ| for a pulse with a nominal flip θ; 1 for an adiabatic refocus or
+	// excite. Where the design fixes none (a file's waveform with no role to
+	// invert or saturate, a pulse without role or flip) it is OnBand, and
+	// PassDesign is false. The stop-band value is 0 for every role.
+	PassValue  float64
+	PassDesign bool
+	// Bandwidth (Hz) is the full width at half of the pass-band value: the
+	// distance between the offsets, nearest the centre on either side, where
+	// the simulated profile crosses PassValue/2 (refined between grid points
+	// by regula falsi on single-isochromat simulations, to within 1e-10 of the
+	// level); Edges are those offsets. For inversion that is where Mz crosses
+	// 0, for a 90° excitation where |Mxy| crosses 0.5. NaN when the centre
+	// does not reach PassValue/2.
 	Bandwidth float64
 	Edges     [2]float64
 	// Transition (Hz) is the mean over both edges of the distance between the
-	// crossings of 90 % and 10 % of OnBand, searched outward from the centre.
+	// crossings of 90 % and 10 % of PassValue, searched outward from the
+	// centre.
 	Transition float64
-	// PassRipple is max|v − OnBand|/OnBand over the offsets within
-	// Bandwidth/2 − Transition of the centre; StopRipple is max v/OnBand over the
-	// simulated offsets beyond Bandwidth/2 + Transition. NaN where a band is empty.
+	// PassRipple and StopRipple are in the units of the role's quantity as a
+	// user states ripples (Pauly et al., IEEE TMI 10:53, 1991): Mz for invert
+	// and saturate, |Mxy| for excite and no role, |β|² for refocus, all in M0
+	// units. PassRipple is the largest deviation from the pass-band value
+	// within Bandwidth/2 − Transition of the band's middle (the midpoint of
+	// Edges; inversion: max|Mz + 1|);
+	// StopRipple the largest deviation from the stop-band value beyond
+	// Bandwidth/2 + Transition over the simulated offsets (inversion:
+	// max(1 − Mz)). NaN where a band is empty.
 	PassRipple, StopRipple float64
 	// Threshold (T) is the adiabatic threshold, for adiabatic pulses only: the
 	// lowest peak B1 at which the role's target is met at every offset within a
@@ -191,6 +207,7 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	pr.Role = m.role
 	nan := math.NaN()
 	pr.Bandwidth, pr.Edges, pr.Transition, pr.PassRipple, pr.StopRipple = nan, [2]float64{nan, nan}, nan, nan, nan
+	pr.PassValue = nan
 	pr.Threshold, pr.ThresholdHz, pr.ThresholdUpper, pr.Thickness, pr.ShiftPerPPM = nan, nan, nan, nan, nan
 
 	r, err := m.sim([]float64{m.center}, nil)
@@ -442,12 +459,19 @@ func (m *meter) wideEnough(span float64) bool {
 	if !m.hasBand() {
 		return true // no band to find; widening would not help
 	}
-	if !(m.val[0] < v0/2 && m.val[len(m.val)-1] < v0/2) {
+	half := v0 / 2
+	if ref, ok := m.passValue(); ok {
+		if !(v0 >= ref/2) {
+			return true // the centre does not reach the band's half level
+		}
+		half = ref / 2
+	}
+	if !(m.val[0] < half && m.val[len(m.val)-1] < half) {
 		return false
 	}
 	for _, dir := range []int{-1, 1} {
 		i := m.mid
-		for i+dir >= 0 && i+dir < len(m.val) && m.val[i+dir] >= v0/2 {
+		for i+dir >= 0 && i+dir < len(m.val) && m.val[i+dir] >= half {
 			i += dir
 		}
 		if math.Abs(m.off[i]-m.center) > span/2 {
@@ -460,13 +484,18 @@ func (m *meter) wideEnough(span float64) bool {
 func (m *meter) features(pr *Properties) error {
 	v0 := m.onBand()
 	pr.OnBand = v0
-	if !m.hasBand() {
+	ref, design := m.passValue()
+	if !design {
+		ref = v0
+	}
+	pr.PassValue, pr.PassDesign = ref, design
+	if !m.hasBand() || !(v0 >= ref/2) || !(ref > 1e-12) {
 		return nil
 	}
 	var cross [3][2]float64 // levels 0.5, 0.9, 0.1; sides left, right
 	for k, lv := range []float64{0.5, 0.9, 0.1} {
 		for s, dir := range []int{-1, 1} {
-			f, ok, err := m.crossing(lv*v0, dir)
+			f, ok, err := m.crossing(lv*ref, dir)
 			if err != nil {
 				return err
 			}
@@ -482,20 +511,69 @@ func (m *meter) features(pr *Properties) error {
 	if math.IsNaN(pr.Bandwidth) || math.IsNaN(pr.Transition) {
 		return nil
 	}
-	c := m.center
+	// The ripple in the role's quantity: Mz = 1 − 2v for inversion, and the
+	// profile itself for the others (saturation: |Mz| = 1 − v).
+	k := 1.0
+	if m.role == RoleInvert {
+		k = 2
+	}
+	c := (pr.Edges[0] + pr.Edges[1]) / 2
 	pass, stop := math.NaN(), math.NaN()
 	for i, f := range m.off {
 		d := math.Abs(f - c)
 		v := m.val[i]
 		if d <= pr.Bandwidth/2-pr.Transition {
-			pass = maxNaN(pass, math.Abs(v-v0)/v0)
+			pass = maxNaN(pass, k*math.Abs(v-ref))
 		}
 		if d >= pr.Bandwidth/2+pr.Transition {
-			stop = maxNaN(stop, v/v0)
+			stop = maxNaN(stop, k*v)
+		}
+	}
+	// The regions' ends, simulated: a region may begin on a steep slope (a
+	// main lobe's tail), whose value there a grid point would miss.
+	ends := []float64{c - pr.Bandwidth/2 - pr.Transition, c + pr.Bandwidth/2 + pr.Transition}
+	inner := pr.Bandwidth/2 - pr.Transition
+	if inner >= 0 {
+		ends = append(ends, c-inner, c+inner)
+	}
+	r, err := m.sim(ends, nil)
+	if err != nil {
+		return err
+	}
+	for i := range ends {
+		v := m.value(r, i)
+		if i < 2 {
+			stop = maxNaN(stop, k*v)
+		} else {
+			pass = maxNaN(pass, k*math.Abs(v-ref))
 		}
 	}
 	pr.PassRipple, pr.StopRipple = pass, stop
 	return nil
+}
+
+// passValue is the design pass-band value of the role's profile (see
+// Properties.PassValue); ok is false where the design fixes none.
+func (m *meter) passValue() (v float64, ok bool) {
+	flip := m.p.nominalFlip()
+	switch m.role {
+	case RoleInvert, RoleSaturate:
+		return 1, true
+	case RoleRefocus:
+		if !math.IsNaN(flip) {
+			return sq(math.Sin(flip / 2)), true
+		}
+		return 1, m.p.Adiabatic
+	case RoleExcite:
+		if !math.IsNaN(flip) {
+			return math.Abs(math.Sin(flip)), true
+		}
+		return 1, m.p.Adiabatic
+	}
+	if !math.IsNaN(flip) && !m.p.Adiabatic {
+		return math.Abs(math.Sin(flip)), true
+	}
+	return math.NaN(), false
 }
 
 func maxNaN(a, b float64) float64 {
