@@ -129,6 +129,9 @@ func thresholdTargetText(p *shape.Pulse) string {
 // NaN): the target, where it is asked, the range of peak B1 searched, and where
 // the search came closest.
 func thresholdReason(p *shape.Pulse, pr shape.Properties) string {
+	if !p.Adiabatic {
+		return p.Shape + " is not an adiabatic pulse: a threshold applies to hsec, chirp, wurst, bir4 and swept imports"
+	}
 	if p.Role == shape.RoleNone && !p.Plane && (imported(p) || math.IsNaN(p.Flip)) {
 		return "no target to meet: the pulse has no role and no nominal flip (give role)"
 	}

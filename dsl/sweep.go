@@ -699,17 +699,31 @@ func sweepRunNotes(runs []*sweepRun, axes []*sweepAxis) []string {
 		}
 		out = append(out, fmt.Sprintf("%d of %d pulses could not be built and are left out (blank in the figure, \"—\" in tables, null in the JSON): %s%s.", left, len(runs), strings.Join(why, "; "), more))
 	}
-	notes := 0
+	// Figures not found: one note per pulse and reason, listing the points.
+	type key struct{ pulse, reason string }
+	var keys []key
+	at := map[key][]string{}
 	for _, r := range runs {
-		if r.note != "" {
-			if notes < 3 {
-				out = append(out, r.note)
-			}
-			notes++
+		if r.note == "" {
+			continue
 		}
+		k := key{r.def.Name, r.note}
+		if _, ok := at[k]; !ok {
+			keys = append(keys, k)
+		}
+		at[k] = append(at[k], pointText(axes, r.fixed))
 	}
-	if notes > 3 {
-		out = append(out, fmt.Sprintf("(and %d more points where a figure was not found)", notes-3))
+	for i, k := range keys {
+		if i == 3 {
+			out = append(out, fmt.Sprintf("(and %d more reasons why a threshold was not found)", len(keys)-3))
+			break
+		}
+		pts := at[k]
+		list := strings.Join(pts[:min(len(pts), 4)], "; ")
+		if len(pts) > 4 {
+			list += fmt.Sprintf(" and %d more", len(pts)-4)
+		}
+		out = append(out, fmt.Sprintf("threshold of %s not found (\"—\") at %s: %s", k.pulse, list, k.reason))
 	}
 	return out
 }
@@ -973,7 +987,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			case "threshold":
 				v = props.Threshold * 1e6
 				if math.IsNaN(v) && r.note == "" {
-					r.note = "threshold of " + r.def.Name + " at " + pointText(axes, r.fixed) + " not found (\"—\"): " + thresholdReason(p, props)
+					r.note = thresholdReason(p, props)
 				}
 			}
 			c.values[cell(k)] = v
