@@ -201,7 +201,7 @@ type completer struct{ st *state }
 func nucleusNames() []string { return strings.Fields(physics.NucleusNames()) }
 
 func (c completer) valueNames() []string {
-	var out []string
+	out := []string{piName}
 	for n, b := range c.st.names {
 		if b.pulse == nil {
 			out = append(out, n)

@@ -93,11 +93,6 @@ func fmtField(b, gammaBar float64) string {
 // energyUnit shows ∫B1² dt in µT²·ms.
 func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
 
-// thresholdUnmet says what an adiabatic threshold of "not met" means (the search of
-// shape.Measure: octaves up to 32× the pulse's peak, target over ±¼ of the bandwidth, met at
-// two successive octaves).
-const thresholdUnmet = "no peak B1 up to 32× the pulse's own meets the role's target over ±¼ of the bandwidth and still meets it at twice that peak, as a threshold must (a sweep without amplitude taper may meet it only in windows of B1: sweep b1 to see them)"
-
 func fmtOpt(v float64, f func(float64) string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "—"
@@ -187,7 +182,7 @@ func (ev *evaluator) thresholdWarning(d *pulseDef, pr shape.Properties) (string,
 			return "", err
 		}
 	}
-	return thresholdWarning(d.Pulse, pr.Threshold, met), nil
+	return thresholdWarning(d.Pulse, pr, met), nil
 }
 
 // centreText is a pulse's centre in Hz, and in ppm too once the field is set
@@ -256,7 +251,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 			rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
 		}
 	}
-	rows = append(rows, []string{"rotation at centre (simulated)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
+	rows = append(rows, []string{"rotation at centre (measured)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
 	if p.Role != shape.RoleNone {
 		rows = append(rows, []string{"role", p.Role.String()})
 	}
@@ -268,7 +263,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		rows = append(rows, []string{"bandwidth (design)", Quantity{p.Bandwidth, dimFrequency}.String()})
 	}
 	rows = append(rows,
-		[]string{"bandwidth (FWHM of profile)", fmtOpt(pr.Bandwidth, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
+		[]string{"bandwidth (measured FWHM, " + halfLevelText(p, pr) + ")", fwhmText(p, pr)},
 	)
 	if p.TBW != 0 {
 		rows = append(rows, []string{"TBW (design)", formatNumber(p.TBW)})
@@ -277,21 +272,14 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		rows = append(rows, []string{"TBW (measured, FWHM × duration)", formatNumber(roundSig(pr.Bandwidth*p.Duration(), 6))})
 	}
 	rows = append(rows,
-		[]string{"transition (90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
-		[]string{"ripple (pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct)},
+		[]string{"transition (measured, 90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
+		[]string{"ripple in " + roleQuantity(p.Role) + " (measured, pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct) + " of M0"},
 	)
 	if p.Adiabatic {
-		th := fmtOpt(pr.Threshold, func(v float64) string { return fmtField(v, gb) })
-		label, unmet := "adiabatic threshold", thresholdUnmet
-		if p.Bandwidth == 0 && !imported(p) {
-			// No design band (bir4): the target is asked at the centre only.
-			label = "adiabatic threshold (at the centre)"
-			unmet = strings.Replace(unmet, "over ±¼ of the bandwidth", "at the centre (it has no design band)", 1)
+		rows = append(rows, []string{thresholdLabel(p), thresholdText(p, pr)})
+		if !math.IsNaN(pr.Threshold) {
+			rows = append(rows, []string{"upper B1 limit (measured)", upperLimitText(p, pr)})
 		}
-		if math.IsNaN(pr.Threshold) {
-			th = "not met: " + unmet
-		}
-		rows = append(rows, []string{label, th})
 	}
 	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
 	if tr > 0 {
@@ -318,11 +306,50 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	}
 }
 
-// rippleNote names the regions of describe's ripple (shape.Measure), which differ
-// from those of a sweep's feature table.
-const rippleNote = "ripple (pass / stop) of the role's profile (|Mxy| for excite or no role, (1 − Mz)/2 invert, echo |β|² refocus, 1 − |Mz| saturate), relative to its centre value: pass is the largest deviation within the FWHM band edges moved inward by one 90 %–10 % transition width, stop the largest value beyond the edges moved outward by one transition width. A sweep's feature table uses other regions (its note says which)."
+// rippleNote states describe's definitions (help quantities).
+const rippleNote = "Measured figures come from the simulated profile of the role's quantity (Mz for invert and saturate, |Mxy| for excite or no role, echo |β|² for refocus): FWHM is the width where it is half-way between its stop-band value and its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation; the centre's value where the design fixes none); the transition is the mean 90 %–10 % width of the two edges; pass ripple is the largest deviation from the pass-band value within the band edges moved inward by one transition width, stop ripple the largest deviation from the stop-band value beyond the edges moved outward by one transition width, both in % of M0 in that quantity (as slr's pass and stop are given). A sweep's feature table uses the same definitions on its points."
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
+
+// roleQuantity names the quantity a role's profile is measured in.
+func roleQuantity(r shape.Role) string {
+	switch r {
+	case shape.RoleInvert, shape.RoleSaturate:
+		return "Mz"
+	case shape.RoleRefocus:
+		return "echo |β|²"
+	}
+	return "|Mxy|"
+}
+
+// halfLevelText says where the FWHM is taken: "Mz = 0".
+func halfLevelText(p *shape.Pulse, pr shape.Properties) string {
+	if math.IsNaN(pr.PassValue) {
+		return "at half the centre value"
+	}
+	h := pr.PassValue / 2
+	switch p.Role {
+	case shape.RoleInvert:
+		return "Mz = " + formatNumber(roundSig(1-2*h, 4))
+	case shape.RoleSaturate:
+		return "Mz = " + formatNumber(roundSig(1-h, 4))
+	}
+	if !pr.PassDesign {
+		return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4)) + ", half the centre value"
+	}
+	return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4))
+}
+
+// fwhmText is the measured FWHM, or why there is none.
+func fwhmText(p *shape.Pulse, pr shape.Properties) string {
+	if !math.IsNaN(pr.Bandwidth) {
+		return Quantity{pr.Bandwidth, dimFrequency}.String()
+	}
+	if pr.PassDesign && pr.OnBand < pr.PassValue/2 {
+		return "— (the centre does not reach the half level)"
+	}
+	return "—"
+}
 
 // importedArea names where an imported pulse's area γ|∫B1 dt| is taken: at the
 // carrier, at the file's constant frequency offset (its centre), or in the frame

@@ -177,6 +177,9 @@ func (ev *evaluator) checkRedefine(id Ident, pulse bool) error {
 	if _, ok := lookupShape(id.Name); ok {
 		return errAt(id.P, "%s is a shape and cannot be redefined", quoteText(id.Name))
 	}
+	if id.Name == piName {
+		return errAt(id.P, "pi is the constant π and cannot be redefined")
+	}
 	if _, ok := lookupUnit(id.Name); ok && !pulse {
 		return errAt(id.P, "%s is a unit and cannot name a quantity (`2 %s` would read as a unit)", quoteText(id.Name), id.Name)
 	}

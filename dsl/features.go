@@ -15,49 +15,72 @@ type features struct {
 	passRipple, stopRipple float64
 }
 
-// curveLevels gives the physical levels a magnetization curve's half level lies
-// between: base, the value far outside the band (for a b1 axis, at b1 = 0), which
-// is the start state; and target, the pass-band value where the design fixes it
-// (mz of a pulse of nominal flip θ from ±z: Mz0·cos θ; inversion −Mz0; saturation 0),
-// NaN to take the curve's extreme farthest from base. base is NaN where the axis
-// has no such baseline (t1, t2, shape arguments), for mx and my (they oscillate
-// across an offset axis as the phase runs, so a half level, width or ripple of
-// theirs would be noise: only their extremes are given) and where the quantity is
-// not magnetization.
+// curveLevels gives the physical levels a magnetization curve's features are
+// measured between (help quantities): base, the value far outside the band (for
+// a b1 axis, at b1 = 0), which is the start state; and target, the pass-band
+// value where the design fixes it, the same as describe's (shape.Properties
+// PassValue): mz of a pulse of nominal flip θ from ±z Mz0·cos θ, inversion −Mz0,
+// saturation 0; mxy |M0|·|sin θ| (1 for an adiabatic pulse); echo sin²(θ/2) (1
+// for an adiabatic pulse). NaN takes the curve's extreme farthest from base.
+// base is NaN where the axis has no such baseline (t1, t2, shape arguments), for
+// mx and my (they oscillate across an offset axis as the phase runs, so a half
+// level, width or ripple of theirs would be noise: only their extremes are
+// given) and where the quantity is not magnetization.
 func curveLevels(q, axis string, start [3]float64, p *shape.Pulse) (base, target float64) {
 	base, target = math.NaN(), math.NaN()
 	if axis != "offset" && axis != "b1" && axis != "position" {
 		return base, target
 	}
+	fromZ := start[0] == 0 && start[1] == 0 && p != nil
+	designFlip := p != nil && !math.IsNaN(p.Flip) && !p.Adiabatic && !imported(p)
 	switch q {
 	case "mz":
 		base = start[2]
-		if start[0] != 0 || start[1] != 0 || p == nil || imported(p) {
+		if !fromZ {
 			break
 		}
 		switch {
-		case !math.IsNaN(p.Flip) && !p.Adiabatic && p.Role != shape.RoleSaturate:
-			target = start[2] * math.Cos(p.Flip)
 		case p.Role == shape.RoleInvert:
 			target = -start[2]
 		case p.Role == shape.RoleSaturate:
 			target = 0
+		case designFlip:
+			target = start[2] * math.Cos(p.Flip)
 		}
 	case "mxy":
 		base = math.Hypot(start[0], start[1])
+		switch {
+		case !fromZ:
+		case designFlip:
+			target = math.Abs(start[2] * math.Sin(p.Flip))
+		case p.Adiabatic && (p.Role == shape.RoleExcite):
+			target = math.Abs(start[2])
+		}
 	case "echo":
-		base = 0 // half maximum of the echo
+		base = 0
+		switch {
+		case p == nil:
+		case designFlip:
+			s := math.Sin(p.Flip / 2)
+			target = s * s
+		case p.Adiabatic && (p.Role == shape.RoleRefocus || p.Role == shape.RoleInvert):
+			target = 1
+		}
 	}
 	return base, target
 }
 
 // curveFeatures finds the extremes, the crossings of the half level (midway
 // between base and the pass-band level: target, or when NaN the extreme farthest
-// from base), the width between the crossings around that extreme, and the
-// ripples inside and outside that band. Crossings are interpolated linearly
-// between points. With base NaN only the extremes are given; when the curve does
-// not pass the half level and come back on both sides inside the window the
-// width is NaN.
+// from base), the width between the crossings around that extreme, the
+// transition (90 %–10 % of the swing from base to the pass-band level, mean of
+// both edges) and the ripples, as describe defines them (help quantities): pass
+// ripple the largest distance from the pass-band level within the band edges
+// moved inward by one transition width, stop ripple the largest distance from
+// base beyond the edges moved outward by one transition width, both in the
+// quantity's own units. Crossings are interpolated linearly between points. With
+// base NaN only the extremes are given; when the curve does not pass the half
+// level and come back on both sides inside the window the width is NaN.
 func curveFeatures(x, y []float64, base, target float64) features {
 	f := features{min: math.NaN(), max: math.NaN(), width: math.NaN(), passRipple: math.NaN(), stopRipple: math.NaN(), crossings: "—"}
 	n := len(y)
@@ -92,9 +115,10 @@ func curveFeatures(x, y []float64, base, target float64) features {
 	if math.Abs(level-base) < 1e-6 {
 		return f
 	}
-	half := (base + level) / 2
-	cross := func(i int) float64 { // crossing between i and i+1
-		a, b := y[i]-half, y[i+1]-half
+	at := func(q float64) float64 { return base + q*(level-base) }
+	half := at(0.5)
+	cross := func(i int, lv float64) float64 { // crossing of lv between i and i+1
+		a, b := y[i]-lv, y[i+1]-lv
 		if a == b {
 			return x[i]
 		}
@@ -104,7 +128,7 @@ func curveFeatures(x, y []float64, base, target float64) features {
 	for i := 0; i+1 < n; i++ {
 		if (y[i]-half)*(y[i+1]-half) < 0 || (y[i] == half && i > 0) {
 			if len(all) < 6 {
-				all = append(all, formatNumber(roundSig(cross(i), 5)))
+				all = append(all, formatNumber(roundSig(cross(i, half), 5)))
 			} else if len(all) == 6 {
 				all = append(all, "…")
 			}
@@ -113,49 +137,82 @@ func curveFeatures(x, y []float64, base, target float64) features {
 	if len(all) > 0 {
 		f.crossings = strings.Join(all, ", ")
 	}
-	side := func(v float64) bool { return (v-half)*(level-half) > 0 }
-	if !side(y[ext]) {
-		return f // the curve never passes the half level
+	// edges walks outward from ext while the curve is on the pass side of
+	// level lv, and gives the crossings on both sides (ok false at the window's
+	// end).
+	edges := func(lv float64) (xl, xh float64, ok bool) {
+		side := func(v float64) bool { return (v-lv)*(level-lv) > 0 }
+		if !side(y[ext]) {
+			return 0, 0, false
+		}
+		lo, hi := ext, ext
+		for lo > 0 && side(y[lo-1]) {
+			lo--
+		}
+		for hi < n-1 && side(y[hi+1]) {
+			hi++
+		}
+		if lo == 0 || hi == n-1 {
+			return 0, 0, false
+		}
+		return cross(lo-1, lv), cross(hi, lv), true
 	}
-	lo, hi := ext, ext
-	for lo > 0 && side(y[lo-1]) {
-		lo--
-	}
-	for hi < n-1 && side(y[hi+1]) {
-		hi++
-	}
-	if lo == 0 || hi == n-1 {
+	xl, xh, ok := edges(half)
+	if !ok {
 		return f
 	}
-	xl, xh := cross(lo-1), cross(hi)
 	f.width = math.Abs(xh - xl)
-	// Pass ripple: peak to peak over the central half of the band.
-	c0, c1 := (3*xl+xh)/4, (xl+3*xh)/4
-	if c0 > c1 {
-		c0, c1 = c1, c0
+	l90, h90, ok90 := edges(at(0.9))
+	l10, h10, ok10 := edges(at(0.1))
+	if !ok90 || !ok10 {
+		return f
 	}
-	pmin, pmax := math.Inf(1), math.Inf(-1)
-	// Stop ripple: largest excursion from the baseline beyond a quarter band width
-	// outside the edges.
-	q := f.width / 4
-	o0, o1 := math.Min(xl, xh)-q, math.Max(xl, xh)+q
-	stop := math.NaN()
+	tr := (math.Abs(l90-l10) + math.Abs(h10-h90)) / 2
+	c := (xl + xh) / 2
+	pass, stop := math.NaN(), math.NaN()
 	for i, v := range y {
-		if x[i] >= c0 && x[i] <= c1 {
-			pmin, pmax = math.Min(pmin, v), math.Max(pmax, v)
+		d := math.Abs(x[i] - c)
+		if d <= f.width/2-tr {
+			pass = maxNaN(pass, math.Abs(v-level))
 		}
-		if x[i] < o0 || x[i] > o1 {
-			d := math.Abs(v - base)
-			if math.IsNaN(stop) || d > stop {
-				stop = d
+		if d >= f.width/2+tr {
+			stop = maxNaN(stop, math.Abs(v-base))
+		}
+	}
+	// The regions' ends, interpolated: a region may begin on a steep slope.
+	for _, e := range []float64{c - f.width/2 - tr, c + f.width/2 + tr} {
+		if v, ok := interpAt(x, y, e); ok {
+			stop = maxNaN(stop, math.Abs(v-base))
+		}
+	}
+	if f.width/2-tr >= 0 {
+		for _, e := range []float64{c - f.width/2 + tr, c + f.width/2 - tr} {
+			if v, ok := interpAt(x, y, e); ok {
+				pass = maxNaN(pass, math.Abs(v-level))
 			}
 		}
 	}
-	if pmax >= pmin {
-		f.passRipple = pmax - pmin
-	}
-	f.stopRipple = stop
+	f.passRipple, f.stopRipple = pass, stop
 	return f
+}
+
+// interpAt interpolates y linearly at xe between the points of x (increasing
+// or decreasing); ok is false outside them.
+func interpAt(x, y []float64, xe float64) (float64, bool) {
+	for i := 0; i+1 < len(x); i++ {
+		a, b := x[i], x[i+1]
+		if (xe-a)*(xe-b) <= 0 && a != b {
+			return y[i] + (y[i+1]-y[i])*(xe-a)/(b-a), true
+		}
+	}
+	return 0, false
+}
+
+func maxNaN(a, b float64) float64 {
+	if math.IsNaN(a) {
+		return b
+	}
+	return math.Max(a, b)
 }
 
 // phaseFeatures fits a line to the unwrapped phase (deg) by least squares over

@@ -39,15 +39,39 @@ func TestCurveFeatures(t *testing.T) {
 			if f.crossings != "-1.1774, 1.1774" {
 				t.Errorf("crossings %q, want -1.1774, 1.1774", f.crossings)
 			}
-			// Inside the central half of the band the curve falls by
-			// 1 − exp(−(fwhm/4)²/2) of its height; the grid of 0.01 puts the
-			// last point inside up to 0.01 short of the edge (≤ 5 % here).
-			want := (1 - math.Exp(-math.Pow(fwhm/4, 2)/2)) * (c.max - c.min)
-			if math.Abs(f.passRipple-want) > 0.05*want {
-				t.Errorf("pass ripple %g, want %g", f.passRipple, want)
+			// A Gaussian's 90 %–10 % transition, √(2 ln 10) − √(2 ln(1/0.9)) =
+			// 1.687, is wider than its half width 1.177: the pass region (the
+			// band's edges moved inward by one transition) is empty.
+			if !math.IsNaN(f.passRipple) {
+				t.Errorf("pass ripple %g, want none (no pass region)", f.passRipple)
 			}
 		})
 	}
+	t.Run("ripples", func(t *testing.T) {
+		// A flat top 1 + 0.01·cos 8x for |x| ≤ 2, linear edges to 0 at |x| =
+		// 2.5, and 0.005·|cos 8x| beyond: half crossings at ±2.25, transition
+		// 0.8 × 0.5 = 0.4, so the pass region is |x| ≤ 1.85 (where cos 8x
+		// reaches ±1: pass ripple 0.01) and the stop region |x| ≥ 2.65 (stop
+		// ripple 0.005), by the definitions of help quantities.
+		y := make([]float64, len(x))
+		for i, v := range x {
+			switch a := math.Abs(v); {
+			case a <= 2:
+				y[i] = 1 + 0.01*math.Cos(8*v)
+			case a <= 2.5:
+				y[i] = (2.5 - a) / 0.5
+			default:
+				y[i] = 0.005 * math.Abs(math.Cos(8*v))
+			}
+		}
+		f := curveFeatures(x, y, 0, 1)
+		if math.Abs(f.width-4.5) > 1e-9 {
+			t.Errorf("width %g, want 4.5", f.width)
+		}
+		if math.Abs(f.passRipple-0.01) > 1e-6 || math.Abs(f.stopRipple-0.005) > 1e-6 {
+			t.Errorf("ripples %g / %g, want 0.01 / 0.005", f.passRipple, f.stopRipple)
+		}
+	})
 	t.Run("overshoot", func(t *testing.T) {
 		// mz = 1 − 1.3·exp(−x²/2) overshoots a pass-band target of 0 (a 90°
 		// pulse). The half level is 0.5, midway between the baseline 1 and the
@@ -111,8 +135,12 @@ func TestCurveLevels(t *testing.T) {
 		{"mz", "offset", z, hard, 1, 0},
 		{"mz", "b1", mz, hard, -1, 0},
 		{"mz", "offset", z, inv, 1, -1},
-		{"mxy", "offset", z, hard, 0, math.NaN()},
-		{"echo", "position", z, hard, 0, math.NaN()},
+		// The design's pass value (help quantities): |Mxy| = sin θ from +z,
+		// echo |β|² = sin²(θ/2) (Pauly et al., IEEE TMI 10:53, 1991).
+		{"mxy", "offset", z, hard, 0, 1},
+		{"echo", "position", z, hard, 0, 0.5},
+		{"mxy", "offset", z, &shape.Pulse{Flip: math.Pi / 6}, 0, 0.5},
+		{"mxy", "offset", z, &shape.Pulse{Flip: math.NaN()}, 0, math.NaN()},
 		{"mz", "t2", z, hard, math.NaN(), math.NaN()},
 		{"mz", "duration", z, hard, math.NaN(), math.NaN()},
 		// mx and my oscillate across an offset axis as the phase runs (Rabi, Phys.

@@ -81,6 +81,39 @@ const filesHelp = `Files
   Writes go through a temporary file renamed over the target, so a failed write
   (a full disk) leaves the old file as it was.`
 
+// definitionsHelp states the one meaning of each measured word, used alike by
+// describe, sweep, report and the `show` quantities.
+const definitionsHelp = `Definitions (describe, sweep, report and show use these alike)
+  design      a figure the shape was built to: flip (nominal), bandwidth and TBW
+              (design), slice thickness (design). The pulse line shows only these
+              and the waveform's own peak.
+  measured    a figure read from an exact Bloch simulation of the samples: FWHM,
+              transition, ripples, rotation at the centre, threshold, slice FWHM.
+  profile     the role's quantity against offset: Mz for invert and saturate,
+              |Mxy| for excite and no role, echo |β|² for refocus, from +z.
+  pass value  the profile's value in its pass band by design: Mz = −1 (invert),
+              Mz = 0 (saturate), |Mxy| = sin flip (excite), |β|² = sin²(flip/2)
+              (refocus), 1 for adiabatic pulses; where the design fixes none (an
+              imported excite or refocus, a pulse without role or flip), the centre's value.
+              The stop-band value is the start state (Mz = 1, |Mxy| = 0, |β|² = 0).
+  FWHM        (bandwidth, measured) the width where the profile is half-way between
+              its stop-band and pass values: Mz = 0 for inversion, |Mxy| = 0.5 for
+              a 90° excitation, |β|² = 0.5 for a 180° refocusing pulse; "—" when the
+              centre does not reach that level.
+  transition  the mean over both edges of the distance between the 90 % and 10 %
+              points of that swing.
+  ripple      pass: the largest deviation from the pass value within the FWHM
+              edges moved inward by one transition width; stop: the largest
+              deviation from the stop-band value beyond the edges moved outward by
+              one transition width. Both in % of M0 in the profile's quantity (for
+              inversion in Mz, as slr's pass and stop are given).
+  threshold   (adiabatic) the lowest peak B1 at which the target holds at 11
+              offsets over ±¼ of the design band (bir4: at the centre) and keeps
+              holding over half an octave of B1; the same whatever peak the pulse
+              was given. The upper B1 limit is where it fails again above.
+  peak limits a peak above 100 kHz of nutation (γ̄B1) or 10 mT gets a warning:
+              MRI coils give tens of µT, NMR probes up to about 100 kHz.`
+
 const errorsHelp = `Errors
   An error names the line and column, repeats the line with a caret under the fault,
   and says what was expected. Syntax errors are all reported at once (one per line),
@@ -120,7 +153,7 @@ func Help(topic string) (string, error) {
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "quantities":
 		return nameList("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo, with echophase on one axis; otherwise mx my mz, or mz on a map; a map shows the first)",
-			10, len(quantityTable), func(i int) (string, string) { return quantityTable[i].Name, quantityTable[i].Help }), nil
+			10, len(quantityTable), func(i int) (string, string) { return quantityTable[i].Name, quantityTable[i].Help }) + "\n\n" + definitionsHelp, nil
 	case "settings":
 		return nameList("Settings after `with`", 7, len(settingTable),
 			func(i int) (string, string) { return settingTable[i].Name, settingTable[i].Help }), nil
@@ -152,7 +185,9 @@ func Help(topic string) (string, error) {
 		b.WriteString("  A shift in ppm meeting a frequency or a time is its offset γ̄·B0·δ in Hz (signed like γ;\n")
 		b.WriteString("  needs `field`): `3.5 ppm / bw` is a ratio, `3.5 ppm + 100 Hz` a frequency. ppm alone,\n")
 		b.WriteString("  ppm ± ppm, ppm × number and ppm / ppm stay in ppm (or plain numbers).\n")
-		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.")
+		b.WriteString("  `x in UNIT` converts: frequency ↔ field through the nucleus (γ̄), ppm ↔ frequency through the nucleus and field.\n")
+		b.WriteString("  `pi` is the constant π (`flip = pi rad`, `pi/2 * rad`). An axis whose first end is a plain\n")
+		b.WriteString("  number takes the unit of the second: `offset -1 to 1 kHz` is -1 kHz to 1 kHz.")
 		return b.String(), nil
 	case "nuclei":
 		var b strings.Builder
@@ -274,6 +309,8 @@ func wordHelp(w string) (string, bool) {
 	switch w {
 	case "over", "to", "points", "step", "show", "with":
 		parts = append(parts, "part of `sweep`: "+strings.Split(statementHelp[5].Syntax, "\n")[0])
+	case piName:
+		parts = append(parts, "pi (constant)\n  π = 3.14159…, a plain number written like one: `flip = pi rad`, `pi/2 * rad` (a unit binds to the number before it, so `pi/2 rad` reads as pi / (2 rad)), `2*pi`. It cannot be redefined.")
 	case "in":
 		parts = append(parts, "`EXPR in UNIT` converts a value for display: `1 kHz in uT`, `12 ppm in Hz`")
 	case "at":
@@ -403,6 +440,7 @@ func helpWords() []string {
 	for _, s := range settingTable {
 		set[s.Name] = true
 	}
+	set[piName] = true
 	var out []string
 	for w := range set {
 		out = append(out, w)

@@ -1,6 +1,7 @@
 package dsl
 
 import (
+	"math"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -501,7 +502,10 @@ func (p *parser) unary() Expr {
 	return p.primary()
 }
 
-// primary := NUMBER [UNIT] | NAME [call] | "(" expr ")"
+// piName is the constant π, written like a number: `pi/2`, `pi rad`.
+const piName = "pi"
+
+// primary := (NUMBER | "pi") [UNIT] | NAME [call] | "(" expr ")"
 func (p *parser) primary() Expr {
 	t := p.tok()
 	switch t.Kind {
@@ -519,6 +523,12 @@ func (p *parser) primary() Expr {
 			p.expected("a value")
 		}
 		p.i++
+		if t.Text == piName && p.tok().Kind != tLParen {
+			// The constant π, which may take a unit like a number (`pi rad`).
+			n := &Number{P: t.Pos, Text: t.Text, Value: math.Pi}
+			n.Unit = p.unit(false)
+			return n
+		}
 		id := Ident{P: t.Pos, Name: t.Text}
 		if p.tok().Kind == tLParen {
 			return p.call(id)

@@ -19,7 +19,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		return err
 	}
 	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
-		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth", Unit: "Hz"},
+		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth (measured FWHM)", Unit: "Hz"},
 		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
 	adiabatic, slice, role, centre := false, false, false, false
 	for _, d := range defs {
@@ -52,7 +52,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	}
 	var rows [][]string
 	var warnings []string
-	unmet := false
+	var unmet []string
 	prog, done, err := ev.measureProgress("report "+joinNames(s.Names), defs)
 	if err != nil {
 		return errAt(s.P, "%v", err)
@@ -102,9 +102,12 @@ func (ev *evaluator) report(s *ReportStmt) error {
 			th := "—"
 			if p.Adiabatic {
 				th = fmtOpt(pr.Threshold, func(v float64) string { return formatNumber(roundSig(v*1e6, 4)) })
+				if !thresholdBanded(p) && !math.IsNaN(pr.Threshold) {
+					th += " (at the centre)"
+				}
 				if math.IsNaN(pr.Threshold) {
 					th = "not met†"
-					unmet = true
+					unmet = append(unmet, d.Name+": "+thresholdReason(p, pr))
 				}
 			}
 			row = append(row, th)
@@ -139,11 +142,14 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		context += fmt.Sprintf(", B0 = %s T", formatNumber(ev.st.field))
 	}
 	notes := []string{
-		"Bandwidth: full width at half maximum of each pulse's simulated profile (exact Bloch simulation, " + context + "); TBW as designed, or FWHM × duration where the design has none.",
+		"Bandwidth (measured): full width of each pulse's simulated profile (exact Bloch simulation, " + context + ") where its role's quantity is half-way to its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation, echo |β|² = sin²(flip/2) / 2 for refocusing); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
 	}
-	if unmet {
-		notes = append(notes, "† "+thresholdUnmet)
+	if adiabatic {
+		notes = append(notes, "Adiabatic threshold: the lowest peak B1 at which the simulated pulse meets its role's target (invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9·sin flip, refocus |β|² ≥ 0.9, saturate |Mz| ≤ 0.1; bir4 also its rotation, phase included) at every offset within ±¼ of its band, or at its centre where marked (no design band), and keeps meeting it over half an octave of B1 above.")
+	}
+	if len(unmet) > 0 {
+		notes = append(notes, "† adiabatic threshold not met: "+strings.Join(unmet, "; "))
 	}
 	notes = append(notes, warnings...)
 	t := display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}

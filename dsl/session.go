@@ -23,13 +23,13 @@
 // and describe and report within the work budget (budget.go; by default the
 // engine's step budget, physics.DefaultMaxSteps), at most 100 000
 // points per axis and 10⁶ per map; a pulse of at most 10⁶ samples with a dwell of
-// at least 10 ns (describe's JSON keeps at most 4096 of them), a peak of at most
-// 1 mT and a flip of at most 100 turns (typo guards); T1 and T2 of at least 1 ns;
+// at least 10 ns (describe's JSON keeps at most 4096 of them), a peak below 1 T
+// and a flip of at most 100 turns (typo guards; a peak beyond plausible RF
+// hardware, see amplitudeWarning, gets a warning); T1 and T2 of at least 1 ns;
 // a duration from 10 ns to 100 s. What a session holds (pulses' samples, arrays
 // shared between copies counted once, the last sweep's table, and the outputs
 // when the host keeps them) and what a sweep needs while it runs stay within its
-// memory budget (budget.go; 2 GiB
-// unless SetMemoryBudget says otherwise).
+// memory budget (budget.go; 2 GiB unless SetMemoryBudget says otherwise).
 package dsl
 
 import (
@@ -191,7 +191,7 @@ func toCellError(src string, st Stmt, e error) *CellError {
 // value is parsed now, so a malformed one is refused at once.
 func (s *Session) Override(name, value string) error {
 	toks := tokenize(name, &errorList{src: name})
-	if len(toks) != 2 || toks[0].Kind != tIdent || isReserved(name) {
+	if len(toks) != 2 || toks[0].Kind != tIdent || isReserved(name) || name == piName {
 		return fmt.Errorf("override: %q is not a name", name)
 	}
 	if _, ok := lookupUnit(name); ok {

@@ -449,9 +449,10 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 	if a, ok := args["dwell"]; ok && b.vals["dwell"] < minDwell {
 		return nil, errAt(a.Pos, "dwell must be at least %s, got %s", Quantity{minDwell, dimTime}, a.Val)
 	}
-	// Typo guards: no RF coil reaches 1 mT, and a hundred turns is no one's flip.
+	// Typo guards: a B1 of a tesla is no one's (hardware limits warn, see
+	// amplitudeWarning), and a hundred turns is no one's flip.
 	if a, ok := args["peak"]; ok && math.Abs(b.vals["peak"]) > maxPeak {
-		return nil, errAt(a.Pos, "peak must be at most 1 mT, got %s", a.Val)
+		return nil, errAt(a.Pos, "peak must be below 1 T (a B1 that large is a typo; above about %s for this nucleus the pulse gets a warning), got %s", fmtFieldKHz(hardwareField(ev.st.nucleus.GammaBar), ev.st.nucleus.GammaBar), a.Val)
 	}
 	if a, ok := args["flip"]; ok && math.Abs(b.vals["flip"]) > maxFlip {
 		return nil, errAt(a.Pos, "flip must be at most 36000 deg (100 turns), got %s", a.Val)
@@ -533,7 +534,7 @@ func checkSlice(args map[string]argVal, b *builder) error {
 
 // Amplitude bounds (typo guards): peak B1 in T, flip in rad.
 const (
-	maxPeak = 1e-3
+	maxPeak = 1
 	maxFlip = 100 * 2 * math.Pi
 )
 
@@ -656,8 +657,11 @@ func (ev *evaluator) definitionWarning(def *pulseDef, at Pos) (string, error) {
 	if err != nil {
 		return "", errAt(at, "checking %s against its adiabatic threshold: %v", def.Name, err)
 	}
-	if pk := def.Pulse.Peak(); pk > maxImportPeak {
-		w += "\nwarning: peak B1 " + Quantity{pk, dimField}.String() + " is beyond any RF coil (MRI coils give tens of µT, NMR probes a few mT): check the duration and the flip"
+	if sw := sweepSamplingWarning(def.Pulse); sw != "" {
+		w += "\nwarning: " + sw
+	}
+	if aw := amplitudeWarning("peak B1", def.Pulse.Peak(), gammaBarOf(def.Pulse)); aw != "" {
+		w += "\nwarning: " + aw + ": check the duration and the flip or peak"
 	}
 	if !met {
 		w += "\nwarning: peak " + Quantity{def.Pulse.Peak(), dimField}.format("uT") + " is below the adiabatic threshold: this pulse will not " + pulseAction(def.Pulse, "its band") + " (`describe " + def.Name + "` gives the threshold)"
@@ -852,7 +856,7 @@ func pulseSummary(d *pulseDef) string {
 		parts = append(parts, "rotation "+a.Val.String()+" by design")
 	}
 	if p.Bandwidth != 0 {
-		parts = append(parts, "bandwidth "+Quantity{p.Bandwidth, dimFrequency}.String())
+		parts = append(parts, "design bandwidth "+Quantity{p.Bandwidth, dimFrequency}.String())
 	}
 	if p.Role != shape.RoleNone {
 		parts = append(parts, "role "+p.Role.String())

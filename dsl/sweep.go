@@ -94,6 +94,13 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 	if err != nil {
 		return nil, err
 	}
+	if from.Q.D == dimNumber && from.Unit == "" && to.Q.D != dimNumber && bareNumber(ax.From) {
+		// `offset -1 to 1 kHz`: a plain number first takes the unit of the
+		// second endpoint, as written.
+		if u, ok := lookupUnit(to.Unit); ok && u.Dim == to.Q.D {
+			from = Value{Q: Quantity{from.Q.V * u.Factor, u.Dim}, Unit: u.Name}
+		}
+	}
 	if contains(spinAxisNames(), a.kind) {
 		a.spin = true
 		var ok bool
@@ -421,6 +428,8 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 		leftCells = left * n0 * n1 / len(skip) // every build leaves out the same spins
 	}
 	notes := axisNotes(axes, leftCells, n0*n1)
+	notes = append(notes, sweepRunNotes(runs, axes)...)
+	notes = append(notes, amplitudeNotes(runs, axes, set)...)
 	if t2FromT1(axes, set) {
 		notes = append(notes, t2FromT1Note)
 	}
@@ -478,6 +487,18 @@ func joinNames(ids []Ident) string {
 	return strings.Join(s, ", ")
 }
 
+// bareNumber reports whether e is a number written without a unit, signed or
+// not (`-1`, `pi`).
+func bareNumber(e Expr) bool {
+	switch x := e.(type) {
+	case *Number:
+		return x.Unit == nil
+	case *Unary:
+		return bareNumber(x.X)
+	}
+	return false
+}
+
 func axisNamed(axes []*sweepAxis, names ...string) bool {
 	for _, a := range axes {
 		if contains(names, a.kind) {
@@ -505,6 +526,10 @@ type sweepRun struct {
 	fixed   map[int]int       // axis index → point index fixed by this build
 	spins   int               // isochromats simulated
 	callPos Pos               // where build errors point
+	// fail, when not "", says why the pulse cannot be built at this point of
+	// the shape axes: the point is left out (NaN) and the reason goes in the
+	// notes. note is a remark on a figure of this point (a threshold not found).
+	fail, note string
 }
 
 // planSweep builds every pulse the sweep needs (one per point of the shape axes)
@@ -541,6 +566,8 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 	}
 	var runs []*sweepRun
 	total, kept := 0.0, 0
+	var firstErr error
+	built := 0
 	for pi, d := range defs {
 		for b := 0; b < builds; b++ {
 			if err := ev.checkCtx(); err != nil {
@@ -561,14 +588,22 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 				r.callPos = axes[shapeIdx[0]].pos
 				p, err := ev.rebuild(d, r.args, r.callPos)
 				if err != nil {
-					var pe *posError
+					if cerr := ev.checkCtx(); cerr != nil {
+						return nil, 0, cerr
+					}
 					msg := err.Error()
 					if e, ok := err.(*posError); ok {
-						pe = e
-						msg = pe.msg
+						msg = e.msg
 					}
-					return nil, 0, errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+					if firstErr == nil {
+						firstErr = errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+					}
+					// An impossible point is left out; the rest is drawn.
+					r.fail, r.p = msg, nil
+					runs = append(runs, r)
+					continue
 				}
+				built++
 				r.p = p
 			}
 			if axisNamed(axes, "position") && r.p.Wave.Gradient == nil {
@@ -593,6 +628,9 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 			runs = append(runs, r)
 		}
 	}
+	if firstErr != nil && built == 0 && len(shapeIdx) > 0 {
+		return nil, 0, firstErr // no point can be built: nothing to draw
+	}
 	return runs, total, nil
 }
 
@@ -608,6 +646,106 @@ func sweepMemory(runs []*sweepRun, axes, quantities, cells int) int64 {
 	}
 	perCell := int64(16*quantities + 48 + 24 + 8*(axes+quantities))
 	return kept*40 + int64(cells)*perCell
+}
+
+// amplitudeNotes warn, once per pulse, when the strongest B1 a sweep plays
+// (the pulse's peak, scaled by a b1 axis or setting) is beyond plausible RF
+// hardware (amplitudeWarning).
+func amplitudeNotes(runs []*sweepRun, axes []*sweepAxis, set *settings) []string {
+	var out []string
+	worst := map[int]float64{}
+	var order []int
+	for _, r := range runs {
+		if r.p == nil || r.fail != "" {
+			continue
+		}
+		gb := gammaBarOf(r.p)
+		scale := 1.0
+		if set.b1 != nil {
+			if f, ok := b1Factor(*set.b1, r.p.Peak(), gb); ok {
+				scale = math.Abs(f)
+			}
+		}
+		for _, a := range axes {
+			if a.kind != "b1" {
+				continue
+			}
+			scale = 0
+			for _, i := range []int{0, a.n - 1} {
+				if f, ok := b1Factor(a.value(i), r.p.Peak(), gb); ok {
+					scale = math.Max(scale, math.Abs(f))
+				}
+			}
+		}
+		b := scale * r.p.Peak()
+		if _, ok := worst[r.pi]; !ok {
+			order = append(order, r.pi)
+		}
+		if b > worst[r.pi] {
+			worst[r.pi] = b
+		}
+	}
+	for _, pi := range order {
+		for _, r := range runs {
+			if r.pi == pi && r.p != nil {
+				if w := amplitudeWarning(r.def.Name+": the strongest B1 of this sweep,", worst[pi], gammaBarOf(r.p)); w != "" {
+					out = append(out, "warning: "+w+".")
+				}
+				break
+			}
+		}
+	}
+	return out
+}
+
+// sweepRunNotes are the notes of a sweep's impossible points (left out) and of
+// figures that could not be found at some points (a threshold not met).
+func sweepRunNotes(runs []*sweepRun, axes []*sweepAxis) []string {
+	var out []string
+	left := 0
+	var why []string
+	for _, r := range runs {
+		if r.fail != "" {
+			left++
+			if len(why) < 4 {
+				why = append(why, r.def.Name+" at "+pointText(axes, r.fixed)+": "+r.fail)
+			}
+		}
+	}
+	if left > 0 {
+		more := ""
+		if left > len(why) {
+			more = fmt.Sprintf("; and %d more", left-len(why))
+		}
+		out = append(out, fmt.Sprintf("%d of %d pulses could not be built and are left out (blank in the figure, \"—\" in tables, null in the JSON): %s%s.", left, len(runs), strings.Join(why, "; "), more))
+	}
+	// Figures not found: one note per pulse and reason, listing the points.
+	type key struct{ pulse, reason string }
+	var keys []key
+	at := map[key][]string{}
+	for _, r := range runs {
+		if r.note == "" {
+			continue
+		}
+		k := key{r.def.Name, r.note}
+		if _, ok := at[k]; !ok {
+			keys = append(keys, k)
+		}
+		at[k] = append(at[k], pointText(axes, r.fixed))
+	}
+	for i, k := range keys {
+		if i == 3 {
+			out = append(out, fmt.Sprintf("(and %d more reasons why a threshold was not found)", len(keys)-3))
+			break
+		}
+		pts := at[k]
+		list := strings.Join(pts[:min(len(pts), 4)], "; ")
+		if len(pts) > 4 {
+			list += fmt.Sprintf(" and %d more", len(pts)-4)
+		}
+		out = append(out, fmt.Sprintf("threshold of %s not found (\"—\") at %s: %s", k.pulse, list, k.reason))
+	}
+	return out
 }
 
 func pointText(axes []*sweepAxis, fixed map[int]int) string {
@@ -687,6 +825,33 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 // runOne fills the cells of one build; spins marked in skip (see relaxMask) are
 // not simulated and their cells are NaN.
 func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, skip []bool, n1 int, curves []*curveData, prog *progress) error {
+	if r.fail != "" {
+		var spinAx []int
+		for i, a := range axes {
+			if a.spin {
+				spinAx = append(spinAx, i)
+			}
+		}
+		for k := 0; k < r.spins; k++ {
+			idx := [2]int{}
+			for ai, v := range r.fixed {
+				idx[ai] = v
+			}
+			rem := k
+			for j := len(spinAx) - 1; j >= 0; j-- {
+				ai := spinAx[j]
+				idx[ai] = rem % axes[ai].n
+				rem /= axes[ai].n
+			}
+			for _, c := range curves {
+				c.values[idx[0]*n1+idx[1]] = math.NaN()
+				if c.mag != nil {
+					c.mag[idx[0]*n1+idx[1]] = math.NaN()
+				}
+			}
+		}
+		return nil
+	}
 	if r.p == nil {
 		p, err := ev.rebuild(r.def, r.args, r.callPos)
 		if err != nil {
@@ -766,7 +931,7 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 	var props shape.Properties
 	if needMeasure {
 		var err error
-		props, err = shape.Measure(ev.ctx, p, shape.MeasureOptions{TR: set.tr, Field: ev.st.field})
+		props, err = shape.Measure(ev.ctx, p, ev.measureOptions(r.def, set.tr))
 		if err != nil {
 			if ev.ctx.Err() != nil {
 				return ev.ctx.Err()
@@ -838,9 +1003,12 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			case "transition":
 				v = props.Transition
 			case "ripple":
-				v = props.PassRipple * 100
+				v = props.PassRipple * 100 // % of M0 in the role's quantity
 			case "threshold":
 				v = props.Threshold * 1e6
+				if math.IsNaN(v) && r.note == "" {
+					r.note = thresholdReason(p, props)
+				}
 			}
 			c.values[cell(k)] = v
 		}
@@ -1026,7 +1194,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 	t := display.Table{
 		Title: title + " (features; the data is in the JSON output and `export`)",
 		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
-			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple"}, {Name: "stop ripple"}},
+			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple", Unit: "% of M0"}, {Name: "stop ripple", Unit: "% of M0"}},
 	}
 	hasPhase, hasLevels, hasXY := false, false, false
 	for _, c := range curves {
@@ -1083,7 +1251,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		f := curveFeatures(fx, fy, base, target)
 		row := []string{c.pulse, c.quantity.Name,
 			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
-			fmtCellOpt(f.width), f.crossings, fmtCellOpt(f.passRipple), fmtCellOpt(f.stopRipple)}
+			fmtCellOpt(f.width), f.crossings, fmtCellOpt(100 * f.passRipple), fmtCellOpt(100 * f.stopRipple)}
 		if hasPhase {
 			row = append(row, "—", "—")
 		}
@@ -1127,7 +1295,7 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 // halfLevelNote explains the half level, the width and the ripples of a sweep's
 // feature table, naming the regions the ripples cover; describe's ripple
 // (shape.Measure) uses other regions, and the note says so.
-const halfLevelNote = "half level: midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's, e.g. mz = cos flip or −1 for inversion; otherwise the curve's extreme, so half maximum for mxy and echo); width at half: distance between the crossings around the band, \"—\" when the curve does not pass the half level and come back on both sides inside the window. pass ripple: peak to peak, in the quantity's units, over the central 50 % of the band between the half-level crossings; stop ripple: the largest distance from the far-from-band level beyond the crossings widened by a quarter of the band width on each side. (describe's ripple uses other regions: inside and beyond the half-maximum band edges moved by one 90 %–10 % transition width, relative to the centre value.) All are read from the swept points, crossings interpolated between them: a coarse grid can miss a ripple's extreme; describe refines by simulation."
+const halfLevelNote = "Measured from the swept points, with the definitions of describe (help quantities): half level midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's: mz = cos flip, −1 for inversion, 0 for saturation, mxy = sin flip, echo = sin²(flip/2), 1 for an adiabatic pulse; otherwise the curve's extreme); width at half: the distance between the crossings around the band (the FWHM), \"—\" when the curve does not pass the half level and come back on both sides inside the window. Pass ripple: the largest distance from the pass-band value within the band edges moved inward by one 90 %–10 % transition width; stop ripple: the largest distance from the far-from-band value beyond the edges moved outward by one transition width; both in % of M0 in the quantity shown (for inversion, of Mz). Crossings are interpolated between points, so a coarse grid can miss a ripple's extreme; describe refines by simulation."
 
 func energyNote(curves []*curveData) []string {
 	for _, c := range curves {

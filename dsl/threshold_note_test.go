@@ -11,10 +11,10 @@ import (
 func TestThresholdNotMetExplained(t *testing.T) {
 	s := NewSession(t.TempDir())
 	execText(t, s, "pulse hs8 = hsec(duration = 8 ms, bandwidth = 2 kHz, order = 8, peak = 14 uT, role = invert)")
-	if out := execText(t, s, "describe hs8"); !strings.Contains(out, "adiabatic threshold") || !strings.Contains(out, "not met: "+thresholdUnmet) {
+	if out := execText(t, s, "describe hs8"); !strings.Contains(out, "adiabatic threshold") || !strings.Contains(out, "not met: no peak B1 from") || !strings.Contains(out, "closest at") {
 		t.Errorf("describe does not explain the unmet threshold:\n%s", out)
 	}
-	if out := execText(t, s, "report hs8"); !strings.Contains(out, "not met†") || !strings.Contains(out, "† "+thresholdUnmet) {
+	if out := execText(t, s, "report hs8"); !strings.Contains(out, "not met†") || !strings.Contains(out, "† adiabatic threshold not met: hs8: no peak B1 from") {
 		t.Errorf("report does not explain the unmet threshold:\n%s", out)
 	}
 }

@@ -63,5 +63,5 @@ func ExampleChirp() {
 	}
 	pr, _ := Measure(context.Background(), p, MeasureOptions{})
 	fmt.Printf("%d samples, sweep %.0f to %.0f Hz, inverts %.1f kHz\n", p.Wave.Len(), p.Freq[0], p.Freq[len(p.Freq)-1], pr.Bandwidth/1e3)
-	// Output: 2000 samples, sweep -9995 to 9995 Hz, inverts 18.1 kHz
+	// Output: 2000 samples, sweep -9995 to 9995 Hz, inverts 17.2 kHz
 }

@@ -107,5 +107,5 @@ func ExampleHsec() {
 		return
 	}
 	fmt.Printf("%s %s: inverts %.2f kHz, threshold %.1f µT\n", p.Shape, p.Role, pr.Bandwidth/1e3, pr.Threshold*1e6)
-	// Output: hsec invert: inverts 4.99 kHz, threshold 23.2 µT
+	// Output: hsec invert: inverts 4.87 kHz, threshold 23.2 µT
 }

@@ -44,7 +44,7 @@ type MeasureOptions struct {
 // MeasureCost estimates the isochromat-steps Measure takes for p with opt: the
 // profile's points (once; a profile that must widen costs more), about 40
 // single-isochromat runs refining its crossings, and for an adiabatic pulse the
-// threshold search (12 scans and about 14 bisection steps over 11 offsets). It
+// threshold search (49 scans and about 28 bisection steps over 11 offsets). It
 // is an estimate, for progress displays.
 func MeasureCost(p *Pulse, opt MeasureOptions) float64 {
 	n := float64(p.Wave.Len())
@@ -58,7 +58,7 @@ func MeasureCost(p *Pulse, opt MeasureOptions) float64 {
 	}
 	cost := (1 + float64(points) + 40) * n
 	if p.Adiabatic {
-		cost += (thresholdScans + 14) * thresholdOffsets * n
+		cost += (thresholdScans + 28) * thresholdOffsets * n
 	}
 	return cost
 }
@@ -87,34 +87,60 @@ type Properties struct {
 	// Role is the role whose profile was measured: for excite and none |Mxy|,
 	// invert (1 − Mz)/2, refocus |β|², saturate 1 − |Mz|, all from +z.
 	Role Role
-	// OnBand is the profile's value at the pulse's centre frequency. The
-	// profile figures below need it to be at least a tenth of the profile's
-	// largest value.
+	// OnBand is the profile's value at the pulse's centre frequency.
 	OnBand float64
-	// Bandwidth (Hz) is the distance between the offsets, nearest the centre on
-	// either side, where the simulated profile crosses OnBand/2 (refined between
-	// grid points by regula falsi on single-isochromat simulations, to within
-	// 1e-10 of the level); Edges are those offsets.
+	// PassValue is the value the role's profile has in its pass band by
+	// design: invert and saturate 1; refocus sin²(θ/2) and excite or no role
+	// |sin θ| for a pulse with a nominal flip θ; 1 for an adiabatic refocus or
+	// excite. Where the design fixes none (a file's waveform with no role to
+	// invert or saturate, a pulse without role or flip) it is OnBand, and
+	// PassDesign is false. The stop-band value is 0 for every role.
+	PassValue  float64
+	PassDesign bool
+	// Bandwidth (Hz) is the full width at half of the pass-band value: the
+	// distance between the offsets, nearest the centre on either side, where
+	// the simulated profile crosses PassValue/2 (refined between grid points
+	// by regula falsi on single-isochromat simulations, to within 1e-10 of the
+	// level); Edges are those offsets. For inversion that is where Mz crosses
+	// 0, for a 90° excitation where |Mxy| crosses 0.5. NaN when the centre
+	// does not reach PassValue/2.
 	Bandwidth float64
 	Edges     [2]float64
 	// Transition (Hz) is the mean over both edges of the distance between the
-	// crossings of 90 % and 10 % of OnBand, searched outward from the centre.
+	// crossings of 90 % and 10 % of PassValue, searched outward from the
+	// centre.
 	Transition float64
-	// PassRipple is max|v − OnBand|/OnBand over the offsets within
-	// Bandwidth/2 − Transition of the centre; StopRipple is max v/OnBand over the
-	// simulated offsets beyond Bandwidth/2 + Transition. NaN where a band is empty.
+	// PassRipple and StopRipple are in the units of the role's quantity as a
+	// user states ripples (Pauly et al., IEEE TMI 10:53, 1991): Mz for invert
+	// and saturate, |Mxy| for excite and no role, |β|² for refocus, all in M0
+	// units. PassRipple is the largest deviation from the pass-band value
+	// within Bandwidth/2 − Transition of the band's middle (the midpoint of
+	// Edges; inversion: max|Mz + 1|);
+	// StopRipple the largest deviation from the stop-band value beyond
+	// Bandwidth/2 + Transition over the simulated offsets (inversion:
+	// max(1 − Mz)). NaN where a band is empty.
 	PassRipple, StopRipple float64
 	// Threshold (T) is the adiabatic threshold, for adiabatic pulses only: the
 	// lowest peak B1 at which the role's target is met at every offset within a
 	// quarter of the design bandwidth of the centre (11 evenly spaced offsets;
-	// only the centre without a design bandwidth). Targets: invert Mz ≤ −0.9;
-	// excite |Mxy| ≥ 0.9; refocus |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; none
-	// |Mz − cos θ| ≤ 0.1 with θ the nominal flip. Search: the B1 is scanned in
-	// octaves from 1/64 to 32 times the pulse's own peak; the lowest scan B1 that
-	// meets the target, with the next one also meeting it (a guard against an
-	// isolated hit), is refined by bisection against the one below to 1e-4
-	// relative. ThresholdHz is γ̄·Threshold.
-	Threshold, ThresholdHz float64
+	// MeasureOptions.Band for a file's sweep; only the centre where there is
+	// no band, as for BIR-4, whose tolerance of offsets grows with B1) and keeps being met for at least
+	// half an octave of B1 above. Targets: invert Mz ≤ −0.9; excite |Mxy| ≥
+	// 0.9; refocus |β|² ≥ 0.9; saturate |Mz| ≤ 0.1; none |Mz − cos θ| ≤ 0.1
+	// with θ the nominal flip. Search: the B1 is scanned in quarter octaves
+	// over a range set by the pulse's shape alone (ThresholdScan; the peak the
+	// pulse was given plays no part), then bisected to 1e-4 relative.
+	// ThresholdHz is γ̄·Threshold. ThresholdUpper (T) is the lowest B1 above
+	// the threshold where the target fails again (a sweep too short for a
+	// strong B1, a WURST or chirp whose sweep does not reach far enough past
+	// the band); NaN when the target holds to the top of the scan.
+	Threshold, ThresholdHz, ThresholdUpper float64
+	// ThresholdScan is the range of peak B1 (T) the threshold search tried,
+	// and ThresholdNear where it came closest to the target (the lowest B1 of
+	// the smallest miss; Miss 0 where the target was met): both say why a
+	// threshold was not found.
+	ThresholdScan [2]float64
+	ThresholdNear ThresholdMiss
 	// Thickness (m) is Bandwidth/(γ̄|G|) for a pulse with a constant gradient.
 	Thickness float64
 	// ShiftPerPPM (m/ppm) is the chemical-shift displacement of the slice per ppm
@@ -128,7 +154,9 @@ type Properties struct {
 // Threshold targets, see Properties.Threshold.
 const (
 	thresholdTarget  = 0.9
-	thresholdScans   = 12 // 2^(-6) to 2^(5) in steps of 2
+	thresholdScans   = 49 // quarter octaves from 1/32 to 128 times the grid's reference
+	thresholdScanLow = 20 // grid index of the reference
+	thresholdHold    = 2  // further grid points that must meet the target
 	thresholdOffsets = 11
 )
 
@@ -179,7 +207,8 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 	pr.Role = m.role
 	nan := math.NaN()
 	pr.Bandwidth, pr.Edges, pr.Transition, pr.PassRipple, pr.StopRipple = nan, [2]float64{nan, nan}, nan, nan, nan
-	pr.Threshold, pr.ThresholdHz, pr.Thickness, pr.ShiftPerPPM = nan, nan, nan, nan
+	pr.PassValue = nan
+	pr.Threshold, pr.ThresholdHz, pr.ThresholdUpper, pr.Thickness, pr.ShiftPerPPM = nan, nan, nan, nan, nan
 
 	r, err := m.sim([]float64{m.center}, nil)
 	if err != nil {
@@ -224,12 +253,18 @@ func Measure(ctx context.Context, p *Pulse, opt MeasureOptions) (Properties, err
 		pr.ShiftPerPPM = ShiftPerPPM(opt.Field, p.Gradient)
 	}
 	if p.Adiabatic && pr.Peak > 0 {
-		th, err := m.threshold()
+		th, up, near, err := m.threshold()
 		if err != nil {
 			return pr, err
 		}
+		pr.ThresholdNear = near
+		pr.ThresholdScan[0], pr.ThresholdScan[1] = math.NaN(), math.NaN()
+		if g := m.thresholdGrid(); len(g) > 0 {
+			pr.ThresholdScan = [2]float64{g[0], g[len(g)-1]}
+		}
 		pr.Threshold = th
 		pr.ThresholdHz = m.gammaBar * th
+		pr.ThresholdUpper = up
 	}
 	return pr, nil
 }
@@ -424,12 +459,19 @@ func (m *meter) wideEnough(span float64) bool {
 	if !m.hasBand() {
 		return true // no band to find; widening would not help
 	}
-	if !(m.val[0] < v0/2 && m.val[len(m.val)-1] < v0/2) {
+	half := v0 / 2
+	if ref, ok := m.passValue(); ok {
+		if !(v0 >= ref/2) {
+			return true // the centre does not reach the band's half level
+		}
+		half = ref / 2
+	}
+	if !(m.val[0] < half && m.val[len(m.val)-1] < half) {
 		return false
 	}
 	for _, dir := range []int{-1, 1} {
 		i := m.mid
-		for i+dir >= 0 && i+dir < len(m.val) && m.val[i+dir] >= v0/2 {
+		for i+dir >= 0 && i+dir < len(m.val) && m.val[i+dir] >= half {
 			i += dir
 		}
 		if math.Abs(m.off[i]-m.center) > span/2 {
@@ -442,13 +484,18 @@ func (m *meter) wideEnough(span float64) bool {
 func (m *meter) features(pr *Properties) error {
 	v0 := m.onBand()
 	pr.OnBand = v0
-	if !m.hasBand() {
+	ref, design := m.passValue()
+	if !design {
+		ref = v0
+	}
+	pr.PassValue, pr.PassDesign = ref, design
+	if !m.hasBand() || !(v0 >= ref/2) || !(ref > 1e-12) {
 		return nil
 	}
 	var cross [3][2]float64 // levels 0.5, 0.9, 0.1; sides left, right
 	for k, lv := range []float64{0.5, 0.9, 0.1} {
 		for s, dir := range []int{-1, 1} {
-			f, ok, err := m.crossing(lv*v0, dir)
+			f, ok, err := m.crossing(lv*ref, dir)
 			if err != nil {
 				return err
 			}
@@ -464,20 +511,69 @@ func (m *meter) features(pr *Properties) error {
 	if math.IsNaN(pr.Bandwidth) || math.IsNaN(pr.Transition) {
 		return nil
 	}
-	c := m.center
+	// The ripple in the role's quantity: Mz = 1 − 2v for inversion, and the
+	// profile itself for the others (saturation: |Mz| = 1 − v).
+	k := 1.0
+	if m.role == RoleInvert {
+		k = 2
+	}
+	c := (pr.Edges[0] + pr.Edges[1]) / 2
 	pass, stop := math.NaN(), math.NaN()
 	for i, f := range m.off {
 		d := math.Abs(f - c)
 		v := m.val[i]
 		if d <= pr.Bandwidth/2-pr.Transition {
-			pass = maxNaN(pass, math.Abs(v-v0)/v0)
+			pass = maxNaN(pass, k*math.Abs(v-ref))
 		}
 		if d >= pr.Bandwidth/2+pr.Transition {
-			stop = maxNaN(stop, v/v0)
+			stop = maxNaN(stop, k*v)
+		}
+	}
+	// The regions' ends, simulated: a region may begin on a steep slope (a
+	// main lobe's tail), whose value there a grid point would miss.
+	ends := []float64{c - pr.Bandwidth/2 - pr.Transition, c + pr.Bandwidth/2 + pr.Transition}
+	inner := pr.Bandwidth/2 - pr.Transition
+	if inner >= 0 {
+		ends = append(ends, c-inner, c+inner)
+	}
+	r, err := m.sim(ends, nil)
+	if err != nil {
+		return err
+	}
+	for i := range ends {
+		v := m.value(r, i)
+		if i < 2 {
+			stop = maxNaN(stop, k*v)
+		} else {
+			pass = maxNaN(pass, k*math.Abs(v-ref))
 		}
 	}
 	pr.PassRipple, pr.StopRipple = pass, stop
 	return nil
+}
+
+// passValue is the design pass-band value of the role's profile (see
+// Properties.PassValue); ok is false where the design fixes none.
+func (m *meter) passValue() (v float64, ok bool) {
+	flip := m.p.nominalFlip()
+	switch m.role {
+	case RoleInvert, RoleSaturate:
+		return 1, true
+	case RoleRefocus:
+		if !math.IsNaN(flip) {
+			return sq(math.Sin(flip / 2)), true
+		}
+		return 1, m.p.Adiabatic
+	case RoleExcite:
+		if !math.IsNaN(flip) {
+			return math.Abs(math.Sin(flip)), true
+		}
+		return 1, m.p.Adiabatic
+	}
+	if !math.IsNaN(flip) && !m.p.Adiabatic {
+		return math.Abs(math.Sin(flip)), true
+	}
+	return math.NaN(), false
 }
 
 func maxNaN(a, b float64) float64 {
@@ -490,15 +586,25 @@ func maxNaN(a, b float64) float64 {
 // met reports, for each B1 scale, whether the role's target holds at every
 // threshold offset.
 func (m *meter) met(scales []float64) ([]bool, error) {
+	ok, _, err := m.metNear(scales)
+	return ok, err
+}
+
+// metNear is met, also giving for each scale the offset that misses the
+// target the most (see ThresholdMiss).
+func (m *meter) metNear(scales []float64) ([]bool, []ThresholdMiss, error) {
 	offs := m.thresholdOffsets()
 	r, err := m.sim(offs, scales)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	ok := make([]bool, len(scales))
+	worst := make([]ThresholdMiss, len(scales))
 	for s := range ok {
 		ok[s] = true
+		worst[s].Miss = -1
 	}
+	peak := m.p.Peak()
 	for io := range offs {
 		for s := range scales {
 			i := io*len(scales) + s
@@ -507,9 +613,56 @@ func (m *meter) met(scales []float64) ([]bool, error) {
 				beta = r.Beta[i]
 			}
 			ok[s] = ok[s] && m.p.TargetMet(m.role, r.Mx[i], r.My[i], r.Mz[i], beta)
+			if d := m.p.targetMiss(m.role, r.Mx[i], r.My[i], r.Mz[i], beta); d > worst[s].Miss {
+				worst[s] = ThresholdMiss{B1: scales[s] * peak, Offset: offs[io], Mx: r.Mx[i], My: r.My[i], Mz: r.Mz[i], Beta2: real(beta)*real(beta) + imag(beta)*imag(beta), Miss: d}
+			}
 		}
 	}
-	return ok, nil
+	return ok, worst, nil
+}
+
+// ThresholdMiss describes where the threshold search came closest to the
+// target without meeting it: at peak B1 (T), the offset (Hz) that missed it
+// the most, the magnetization there from +z and |β|², and by how much it
+// missed (in the units of the role's target, 0 when met).
+type ThresholdMiss struct {
+	B1, Offset, Mx, My, Mz, Beta2, Miss float64
+}
+
+// targetMiss is how far the magnetization is from Pulse.TargetMet's target,
+// in the target's own units (0 when it is met).
+func (p *Pulse) targetMiss(r Role, mx, my, mz float64, beta complex128) float64 {
+	d := 0.0
+	if p.Plane && !math.IsNaN(p.Flip) {
+		s, c := math.Sincos(p.Axis)
+		st, ct := math.Sincos(p.Flip)
+		if p.Gamma < 0 {
+			st = -st
+		}
+		ex, ey := -s*st, c*st
+		sf, cf := math.Sincos(-math.Pi * p.Center * p.Duration())
+		ex, ey = ex*cf-ey*sf, ex*sf+ey*cf
+		d = math.Max(0, math.Sqrt(sq(mx-ex)+sq(my-ey)+sq(mz-ct))-(1-thresholdTarget))
+	}
+	flip := p.nominalFlip()
+	var e float64
+	switch r {
+	case RoleInvert:
+		e = mz + thresholdTarget
+	case RoleExcite:
+		s := 1.0
+		if !math.IsNaN(flip) {
+			s = math.Abs(math.Sin(flip))
+		}
+		e = thresholdTarget*s - math.Hypot(mx, my)
+	case RoleRefocus:
+		e = thresholdTarget - (real(beta)*real(beta) + imag(beta)*imag(beta))
+	case RoleSaturate:
+		e = math.Abs(mz) - (1 - thresholdTarget)
+	default:
+		e = math.Abs(mz-math.Cos(flip)) - (1 - thresholdTarget)
+	}
+	return math.Max(d, math.Max(0, e))
 }
 
 // TargetMet tells whether the magnetization after p from +z (and its β) meets
@@ -584,46 +737,118 @@ func (m *meter) thresholdOffsets() []float64 {
 	return offs
 }
 
-func (m *meter) threshold() (float64, error) {
+// thresholdGrid is the B1 grid (T) the threshold is scanned on: quarter
+// octaves of nutation frequency γ̄B1 from ν/32 to 128ν (or 45° per sample, if
+// lower), with ν = √(sweep/T)
+// (the rate scale of a frequency sweep: adiabaticity asks (γ̄B1)² well above
+// the sweep rate, Garwood & DelaBarre, J. Magn. Reson. 153:155, 2001) or 1/T
+// without a sweep. It depends on the pulse's shape alone, never on the peak
+// it was given, so the threshold does not either.
+func (m *meter) thresholdGrid() []float64 {
+	T := m.p.Duration()
+	r := math.Max(m.band, m.p.Sweep)
+	nu := 1 / T
+	if r > 0 {
+		nu = math.Sqrt(r / T)
+	}
+	// Above a nutation of 45° per sample the samples no longer describe the
+	// shape (the piecewise-constant pulse is simulated exactly, but it is
+	// another pulse): the scan stops there.
+	dt := 0.0
+	for _, d := range m.p.Wave.Dwell {
+		dt = math.Max(dt, d)
+	}
+	top := math.Inf(1)
+	if dt > 0 {
+		top = 1 / (8 * dt)
+	}
+	g := make([]float64, 0, thresholdScans)
+	for i := 0; i < thresholdScans; i++ {
+		v := nu * math.Exp2(float64(i-thresholdScanLow)/4)
+		if v > top && len(g) > thresholdHold+1 {
+			break
+		}
+		g = append(g, v/m.gammaBar)
+	}
+	return g
+}
+
+// threshold finds the adiabatic threshold and the upper B1 limit (T, NaN where
+// none) on the grid of thresholdGrid: the lowest grid B1 that meets the target
+// with the next thresholdHold grid points (a guard against an isolated hit:
+// the target must hold over at least half an octave of B1), refined by
+// bisection against the grid point below to 1e-4 relative; then the first
+// grid B1 above it that fails, refined the same way, is the upper limit.
+func (m *meter) threshold() (th, upper float64, near ThresholdMiss, err error) {
+	th, upper = math.NaN(), math.NaN()
+	near = ThresholdMiss{B1: math.NaN(), Offset: math.NaN(), Mx: math.NaN(), My: math.NaN(), Mz: math.NaN(), Beta2: math.NaN(), Miss: math.NaN()}
 	if m.role == RoleNone && math.IsNaN(m.p.nominalFlip()) {
-		return math.NaN(), nil
+		return th, upper, near, nil
 	}
 	peak := m.p.Peak()
-	scales := make([]float64, thresholdScans)
-	for i := range scales {
-		scales[i] = math.Exp2(-6 + float64(i))
+	grid := m.thresholdGrid()
+	scales := make([]float64, len(grid))
+	for i, b := range grid {
+		scales[i] = b / peak
 	}
-	ok, err := m.met(scales)
+	ok, miss, err := m.metNear(scales)
 	if err != nil {
-		return 0, err
+		return th, upper, near, err
 	}
-	// The lowest scale that meets the target with its next scale (a guard
-	// against an isolated hit below threshold).
+	for i, w := range miss {
+		if i == 0 || w.Miss < near.Miss {
+			near = w
+		}
+	}
 	lowest := -1
-	for i := 0; i+1 < len(ok); i++ {
-		if ok[i] && ok[i+1] {
+	for i := 0; i+thresholdHold < len(ok); i++ {
+		all := true
+		for j := i; j <= i+thresholdHold; j++ {
+			all = all && ok[j]
+		}
+		if all {
 			lowest = i
 			break
 		}
 	}
-	switch lowest {
-	case -1:
-		return math.NaN(), nil
-	case 0:
-		return scales[0] * peak, nil
+	if lowest < 0 {
+		return th, upper, near, nil
 	}
-	lo, hi := scales[lowest-1], scales[lowest]
-	for hi-lo > 1e-4*hi {
-		mid := (lo + hi) / 2
-		r, err := m.met([]float64{mid})
+	// edge bisects between a scale that fails (lo) and one that meets the
+	// target (hi) or the other way round, returning the scale of the change.
+	edge := func(fail, meet float64) (float64, error) {
+		for math.Abs(meet-fail) > 1e-4*meet {
+			mid := (fail + meet) / 2
+			r, err := m.met([]float64{mid})
+			if err != nil {
+				return 0, err
+			}
+			if r[0] {
+				meet = mid
+			} else {
+				fail = mid
+			}
+		}
+		return meet, nil
+	}
+	if lowest == 0 {
+		th = scales[0] * peak
+	} else {
+		s, err := edge(scales[lowest-1], scales[lowest])
 		if err != nil {
-			return 0, err
+			return th, upper, near, err
 		}
-		if r[0] {
-			hi = mid
-		} else {
-			lo = mid
+		th = s * peak
+	}
+	for j := lowest + thresholdHold + 1; j < len(ok); j++ {
+		if !ok[j] {
+			s, err := edge(scales[j], scales[j-1])
+			if err != nil {
+				return th, upper, near, err
+			}
+			upper = s * peak
+			break
 		}
 	}
-	return hi * peak, nil
+	return th, upper, near, nil
 }

@@ -25,7 +25,8 @@ func TestMeasureRectSmallTip(t *testing.T) {
 }
 
 // The reported bandwidth is where the simulated profile of the role's own
-// quantity crosses half of its on-band value (Properties.Bandwidth): checked by
+// quantity crosses half of its design pass-band value (Properties.Bandwidth;
+// for inversion Mz = 0, for a 90° excitation |Mxy| = 0.5): checked by
 // simulating at the reported edges independently, for every role. Quantities
 // from Cayley–Klein parameters (Pauly et al., IEEE TMI 10:53, 1991): inversion
 // (1 − Mz)/2 = |β|², refocusing |β|².
@@ -70,8 +71,13 @@ func TestMeasureHalfCrossing(t *testing.T) {
 			}
 			r := simulate(t, tc.p, []float64{tc.p.Center, pr.Edges[0], pr.Edges[1]}, nil)
 			near(t, "on-band value", value(pr.Role, r, 0), pr.OnBand, 1e-12)
-			near(t, "value at left edge / on-band", value(pr.Role, r, 1)/pr.OnBand, 0.5, 1e-6)
-			near(t, "value at right edge / on-band", value(pr.Role, r, 2)/pr.OnBand, 0.5, 1e-6)
+			want := map[Role]float64{RoleExcite: 1, RoleInvert: 1, RoleRefocus: 1, RoleSaturate: 1, RoleNone: 0.5}[pr.Role] // sin 90°, 1, sin² 90°, 1, sin 30°
+			if !pr.PassDesign {
+				t.Errorf("pass value not from the design")
+			}
+			near(t, "pass value", pr.PassValue, want, 1e-12)
+			near(t, "value at left edge", value(pr.Role, r, 1), want/2, 1e-6)
+			near(t, "value at right edge", value(pr.Role, r, 2), want/2, 1e-6)
 			near(t, "bandwidth = edge distance", pr.Bandwidth, pr.Edges[1]-pr.Edges[0], 1e-9)
 			if !(pr.Transition > 0 && pr.Transition < pr.Bandwidth) {
 				t.Errorf("transition %g Hz, want between 0 and the bandwidth %g Hz", pr.Transition, pr.Bandwidth)
@@ -101,10 +107,10 @@ func TestMeasureRipple(t *testing.T) {
 	for i, f := range offs {
 		v := math.Hypot(r.Mx[i], r.My[i])
 		if math.Abs(f) <= pr.Bandwidth/2-pr.Transition {
-			pass = math.Max(pass, math.Abs(v-pr.OnBand)/pr.OnBand)
+			pass = math.Max(pass, math.Abs(v-1)) // |Mxy| − sin 90°
 		}
 		if math.Abs(f) >= pr.Bandwidth/2+pr.Transition {
-			stop = math.Max(stop, v/pr.OnBand)
+			stop = math.Max(stop, v)
 		}
 	}
 	if !(pass > 0.005 && stop > 0.005) {
