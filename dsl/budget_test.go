@@ -185,7 +185,7 @@ func TestWorkBudgetCoversMeasurements(t *testing.T) {
 	for _, stmt := range []string{"describe h", "report h"} {
 		progress := 0
 		err := s.Exec(ctx, stmt, Sink{Progress: func(string, int, int) { progress++ }})
-		want := stmt + " needs 2.25e+08 isochromat-steps (about "
+		want := stmt + " needs 2.81e+08 isochromat-steps (about "
 		if err == nil || !strings.Contains(err.Error(), want) || !strings.Contains(err.Error(), "over the session's work budget of 1e+07") || !strings.Contains(err.Error(), "--work 1e11") {
 			t.Errorf("%s: got %v, want %q with the budget and how to raise it", stmt, err, want)
 		}
