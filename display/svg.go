@@ -465,40 +465,6 @@ func minus(s string) string {
 	return s
 }
 
-// inlineSVG strips the XML prolog so the SVG can sit inside HTML.
-func inlineSVG(svg string) string {
-	if strings.HasPrefix(svg, "<?xml") {
-		if i := strings.Index(svg, "?>"); i >= 0 {
-			svg = strings.TrimLeft(svg[i+2:], "\n")
-		}
-	}
-	return svg
-}
-
-// figurePlain is the text/plain of a figure bundle: the figure's title (unless
-// the table has its own), the table, and a caption saying what the figure shows.
-func figurePlain(title string, t Table, caption string) string {
-	var parts []string
-	if title != "" && t.Title == "" {
-		parts = append(parts, title)
-	}
-	if p := t.Plain(); p != "" {
-		parts = append(parts, p)
-	}
-	return strings.Join(append(parts, caption), "\n")
-}
-
-// figureHTML is the text/html of a figure bundle: the SVG inline, then the table.
-// Notebook front ends show only the richest MIME type of a bundle and rank HTML
-// above SVG, so the HTML must carry the figure too.
-func figureHTML(svg string, t Table) string {
-	h := `<div class="nutate-figure">` + inlineSVG(svg) + "</div>"
-	if t.Title != "" || len(t.Columns) > 0 || len(t.Rows) > 0 || len(t.Notes) > 0 {
-		h += t.HTML()
-	}
-	return h
-}
-
 // niceStep is the tick step for about n labelled ticks over [lo, hi]: 1, 2, 2.5
 // or 5 times a power of ten; mant is that factor.
 func niceStep(lo, hi float64, n int) (step, mant float64) {

@@ -9,14 +9,14 @@ import (
 	"Nutate/display"
 )
 
-// TestDescribeJSONDecimated checks that describe's application/json carries at
+// TestDescribeJSONDecimated checks that describe's data carries at
 // most maxJSONSamples waveform samples, says so, and keeps short pulses whole.
 func TestDescribeJSONDecimated(t *testing.T) {
 	for _, c := range []struct {
 		samples, shown, oneIn int
 	}{
-		{4096, 4096, 0},  // at the limit: every sample
-		{10000, 3334, 3}, // ceil(10000/4096) = 3: samples 0, 3, ..., 9999
+		{2048, 2048, 0}, // at the limit: every sample
+		{6000, 2000, 3}, // ceil(6000/2048) = 3: samples 0, 3, ..., 5997
 	} {
 		s := NewSession(t.TempDir())
 		var bundles []display.Bundle
@@ -24,7 +24,7 @@ func TestDescribeJSONDecimated(t *testing.T) {
 		if err := s.Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { bundles = append(bundles, b) }}); err != nil {
 			t.Fatal(err)
 		}
-		b := bundles[len(bundles)-1]
+		b := lastFigure(bundles)
 		var got struct {
 			Decimated *struct {
 				Samples int
@@ -34,7 +34,7 @@ func TestDescribeJSONDecimated(t *testing.T) {
 			Time   struct{ Values []float64 }
 			Series []struct{ Values []float64 }
 		}
-		raw, _ := b["application/json"].(json.RawMessage)
+		raw, _ := b[display.ResultMIME].(json.RawMessage)
 		if err := json.Unmarshal(raw, &got); err != nil {
 			t.Fatalf("%d samples: %v", c.samples, err)
 		}
@@ -43,7 +43,7 @@ func TestDescribeJSONDecimated(t *testing.T) {
 		}
 		plain := b["text/plain"].(string)
 		if c.oneIn == 0 {
-			if got.Decimated != nil || !strings.Contains(plain, "all values in application/json") {
+			if got.Decimated != nil || !strings.Contains(plain, "data in "+display.ResultMIME) {
 				t.Errorf("%d samples: decimated %+v, caption %q; want every sample", c.samples, got.Decimated, plain)
 			}
 			continue

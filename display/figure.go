@@ -1,0 +1,217 @@
+package display
+
+import (
+	"bytes"
+	"cmp"
+	"encoding/base64"
+	"encoding/binary"
+	"encoding/json"
+	"fmt"
+	"hash/crc32"
+	"image"
+	"image/color"
+	"image/png"
+	"slices"
+	"strings"
+	"sync"
+	"time"
+
+	"codeberg.org/go-pdf/fpdf"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgpdf"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// ResultMIME is the MIME type of the data behind a figure or table: a vendor
+// type of this project's own (the Jupyter convention for tool-specific JSON).
+// Front ends skip types they do not know, so the data travels in the notebook
+// and in `nutate run --json` without being drawn in place of the figure, as
+// application/json would be by JupyterLab (its JSON viewer outranks every image).
+const ResultMIME = "application/vnd.nutate.result+json"
+
+// Figure is a drawing of this package: a Profile, a Map or a Waveform. It can
+// be written as a file with FigureFile.
+type Figure interface {
+	draw(nc canvasMaker) vg.CanvasWriterTo
+	// colours is the palette size of the notebook's PNG rendition: 16 for
+	// line figures (white, black, greys, the pulses' colours and their
+	// anti-aliased edges; a 4-bit PNG), 256 for maps (the colour scale).
+	colours() int
+}
+
+func (Profile) colours() int  { return 16 }
+func (Waveform) colours() int { return 16 }
+func (Map) colours() int      { return 256 }
+
+// canvasMaker makes the canvas of one gonum/plot back end at a figure's size.
+type canvasMaker func(w, h vg.Length) vg.CanvasWriterTo
+
+func svgCanvas(w, h vg.Length) vg.CanvasWriterTo { return vgsvg.New(w, h) }
+
+// pngCanvas draws at dpi dots per inch on white.
+func pngCanvas(dpi int) canvasMaker {
+	return func(w, h vg.Length) vg.CanvasWriterTo {
+		return vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(dpi))}
+	}
+}
+
+// NotebookDPI is the resolution of the PNG rendition in a figure bundle: one
+// CSS pixel per pixel (a notebook shows a PNG at its pixel size, and the SVG at
+// its stated size of 6 in = 576 CSS pixels), which keeps a notebook small.
+const NotebookDPI = 96
+
+// FileDPI is the resolution of `export figure` to a PNG file (print quality).
+const FileDPI = 300
+
+// pdfEpoch is the creation and modification date written into every PDF, so
+// that a figure gives the same bytes each time (fpdf would write the clock).
+var pdfEpoch = time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC)
+
+var pdfDefaults sync.Once
+
+func pdfCanvas(w, h vg.Length) vg.CanvasWriterTo {
+	pdfDefaults.Do(func() {
+		fpdf.SetDefaultCreationDate(pdfEpoch)
+		fpdf.SetDefaultModificationDate(pdfEpoch)
+		fpdf.SetDefaultCatalogSort(true)
+	})
+	return vgpdf.New(w, h)
+}
+
+// renderPNG draws f at dpi and encodes it with fixed settings (best
+// compression, no metadata), so the bytes depend only on the figure (and on
+// the Go version's compress/flate). A paletted rendition keeps the figure's
+// most used colours (a third to a sixth of the size). The text chunk, when given, is written after
+// the header as tEXt "Software".
+func renderPNG(f Figure, dpi int, paletted bool, software string) []byte {
+	c := f.draw(pngCanvas(dpi)).(vgimg.PngCanvas)
+	var img image.Image = c.Image()
+	if rgba, ok := img.(*image.RGBA); ok && paletted {
+		img = mostUsedColours(rgba, f.colours())
+	}
+	var buf bytes.Buffer
+	enc := png.Encoder{CompressionLevel: png.BestCompression}
+	if err := enc.Encode(&buf, img); err != nil {
+		panic("display: encoding png: " + err.Error())
+	}
+	b := buf.Bytes()
+	if software == "" {
+		return b
+	}
+	// The signature (8 bytes) and the IHDR chunk (25 bytes) come first.
+	data := append([]byte("Software\x00"), software...)
+	chunk := binary.BigEndian.AppendUint32(nil, uint32(len(data)))
+	chunk = append(chunk, "tEXt"...)
+	chunk = append(chunk, data...)
+	chunk = binary.BigEndian.AppendUint32(chunk, crc32.ChecksumIEEE(chunk[4:]))
+	out := append([]byte{}, b[:33]...)
+	out = append(out, chunk...)
+	return append(out, b[33:]...)
+}
+
+// mostUsedColours maps img onto a palette of its n most frequent colours (ties
+// broken by colour value), every other colour to the nearest of them.
+func mostUsedColours(img *image.RGBA, n int) *image.Paletted {
+	b := img.Bounds()
+	key := func(i int) uint32 { return binary.BigEndian.Uint32(img.Pix[i : i+4]) }
+	count := map[uint32]int{}
+	for y := b.Min.Y; y < b.Max.Y; y++ {
+		for x := b.Min.X; x < b.Max.X; x++ {
+			count[key(img.PixOffset(x, y))]++
+		}
+	}
+	keys := make([]uint32, 0, len(count))
+	for k := range count {
+		keys = append(keys, k)
+	}
+	slices.SortFunc(keys, func(a, b uint32) int {
+		if count[a] != count[b] {
+			return count[b] - count[a]
+		}
+		return cmp.Compare(a, b)
+	})
+	rgba := func(k uint32) color.RGBA { return color.RGBA{uint8(k >> 24), uint8(k >> 16), uint8(k >> 8), uint8(k)} }
+	pal := make(color.Palette, 0, 256)
+	for _, k := range keys[:min(len(keys), n)] {
+		pal = append(pal, rgba(k))
+	}
+	index := make(map[uint32]uint8, len(keys))
+	for _, k := range keys {
+		index[k] = uint8(pal.Index(rgba(k)))
+	}
+	out := image.NewPaletted(b, pal)
+	for y := b.Min.Y; y < b.Max.Y; y++ {
+		for x := b.Min.X; x < b.Max.X; x++ {
+			out.Pix[out.PixOffset(x, y)] = index[key(img.PixOffset(x, y))]
+		}
+	}
+	return out
+}
+
+// figureMark is the mark every exported figure file carries (an SVG comment, a
+// PNG text chunk, the PDF's fixed dates), so that an export replaces only a
+// file it wrote itself.
+const figureMark = "Nutate figure export"
+
+// FigureFile encodes f as a file of the given format, "svg", "png" (FileDPI)
+// or "pdf" (fonts embedded), with gonum/plot's own back ends. The bytes are the
+// same for the same figure.
+func FigureFile(f Figure, format string) ([]byte, error) {
+	switch format {
+	case "svg":
+		s := finishSVG(f.draw(svgCanvas).(*vgsvg.Canvas))
+		if i := strings.Index(s, "<svg"); i >= 0 {
+			s = s[:i] + "<!-- " + figureMark + " -->\n" + s[i:]
+		}
+		return []byte(s), nil
+	case "png":
+		return renderPNG(f, FileDPI, false, figureMark), nil
+	case "pdf":
+		var buf bytes.Buffer
+		if _, err := f.draw(pdfCanvas).WriteTo(&buf); err != nil {
+			return nil, err
+		}
+		return buf.Bytes(), nil
+	}
+	return nil, fmt.Errorf("display: unknown figure format %q", format)
+}
+
+// IsFigureFile tells whether head, the start of a file, is a figure FigureFile
+// wrote in the given format (the first few kilobytes are enough).
+func IsFigureFile(format string, head []byte) bool {
+	switch format {
+	case "svg":
+		return bytes.Contains(head, []byte("<!-- "+figureMark+" -->"))
+	case "png":
+		return bytes.HasPrefix(head, []byte("\x89PNG")) && bytes.Contains(head, []byte("Software\x00"+figureMark))
+	case "pdf":
+		return bytes.HasPrefix(head, []byte("%PDF-")) && bytes.Contains(head, []byte("/Producer (FPDF"))
+	}
+	return false
+}
+
+// figureBundles is a figure's output: the figure (its title and caption in
+// text/plain, the SVG, a PNG rendition and the data under ResultMIME; no
+// text/html, which front ends would rank above the images), then its table as an
+// output of its own in text/plain and text/html, when there is one.
+func figureBundles(f Figure, svg, title, caption string, t Table, data json.RawMessage) []Bundle {
+	plain := caption
+	if title != "" {
+		plain = title + "\n" + caption
+	}
+	fig := Bundle{
+		"text/plain":    plain,
+		"image/svg+xml": svg,
+		"image/png":     base64.StdEncoding.EncodeToString(renderPNG(f, NotebookDPI, true, "")),
+		ResultMIME:      data,
+	}
+	out := []Bundle{fig}
+	if t.Title == title {
+		t.Title = "" // said once, by the figure
+	}
+	if !t.isEmpty() {
+		out = append(out, Bundle{"text/plain": t.Plain(), "text/html": t.HTML()})
+	}
+	return out
+}
