@@ -17,6 +17,9 @@ import (
 	"time"
 
 	"codeberg.org/go-pdf/fpdf"
+	xfont "golang.org/x/image/font"
+	"golang.org/x/text/encoding/charmap"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/vgimg"
 	"gonum.org/v1/plot/vg/vgpdf"
@@ -76,7 +79,30 @@ func pdfCanvas(w, h vg.Length) vg.CanvasWriterTo {
 		fpdf.SetDefaultModificationDate(pdfEpoch)
 		fpdf.SetDefaultCatalogSort(true)
 	})
-	return vgpdf.New(w, h)
+	return pdfText{vgpdf.New(w, h)}
+}
+
+// pdfText adapts text to vgpdf, which embeds each font with the Windows-1252
+// code page and takes the string's bytes as they are: text is encoded to that
+// code page (the typographic minus becomes a hyphen, other characters outside
+// it a question mark), and a bold face is named as a font of its own, since
+// vgpdf registers every face under a name but asks for bold by style too.
+type pdfText struct{ *vgpdf.Canvas }
+
+func (c pdfText) FillString(f font.Face, pt vg.Point, s string) {
+	if f.Font.Weight == xfont.WeightBold {
+		f.Font.Weight = xfont.WeightNormal
+		f.Font.Variant += "Bold"
+	}
+	b := make([]byte, 0, len(s))
+	for _, r := range strings.ReplaceAll(s, "−", "-") {
+		e, ok := charmap.Windows1252.EncodeRune(r)
+		if !ok {
+			e = '?'
+		}
+		b = append(b, e)
+	}
+	c.Canvas.FillString(f, pt, string(b))
 }
 
 // renderPNG draws f at dpi and encodes it with fixed settings (best
@@ -149,6 +175,19 @@ func mostUsedColours(img *image.RGBA, n int) *image.Paletted {
 	return out
 }
 
+// FigureTitle is the title of a figure of this package.
+func FigureTitle(f Figure) string {
+	switch f := f.(type) {
+	case Profile:
+		return f.Title
+	case Map:
+		return f.Title
+	case Waveform:
+		return f.Title
+	}
+	return ""
+}
+
 // figureMark is the mark every exported figure file carries (an SVG comment, a
 // PNG text chunk, the PDF's fixed dates), so that an export replaces only a
 // file it wrote itself.
@@ -177,8 +216,8 @@ func FigureFile(f Figure, format string) ([]byte, error) {
 	return nil, fmt.Errorf("display: unknown figure format %q", format)
 }
 
-// IsFigureFile tells whether head, the start of a file, is a figure FigureFile
-// wrote in the given format (the first few kilobytes are enough).
+// IsFigureFile tells whether data, a file's content, is a figure FigureFile
+// wrote in the given format (a PDF says so near its end).
 func IsFigureFile(format string, head []byte) bool {
 	switch format {
 	case "svg":
@@ -186,7 +225,7 @@ func IsFigureFile(format string, head []byte) bool {
 	case "png":
 		return bytes.HasPrefix(head, []byte("\x89PNG")) && bytes.Contains(head, []byte("Software\x00"+figureMark))
 	case "pdf":
-		return bytes.HasPrefix(head, []byte("%PDF-")) && bytes.Contains(head, []byte("/Producer (FPDF"))
+		return bytes.HasPrefix(head, []byte("%PDF-")) && bytes.Contains(head, []byte("/CreationDate ("+pdfEpoch.Format("D:20060102150405")+")"))
 	}
 	return false
 }

@@ -174,7 +174,7 @@ func (c completer) candidates(before, prefix string) []string {
 		}
 	}
 	if first == "export" && len(toks) == 1 {
-		return append(c.st.pulseNames(), "sweep")
+		return append(c.st.pulseNames(), "sweep", "figure")
 	}
 	if contains([]string{"describe", "sweep", "report", "export"}, first) && (len(toks) == 1 || last.Kind == tComma && clause == "") {
 		return c.st.pulseNames()

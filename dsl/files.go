@@ -34,6 +34,9 @@ func (ev *evaluator) path(p string) string {
 // export runs `export NAME to "file.csv"`.
 // `export sweep to "file.csv"` writes the last sweep's data instead.
 func (ev *evaluator) export(s *ExportStmt) error {
+	if s.Name.Name == "figure" {
+		return ev.exportFigure(s) // figure_export.go
+	}
 	if s.Path == "" {
 		return errAt(s.PathP, "export needs a file name, got \"\"")
 	}
