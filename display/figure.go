@@ -18,7 +18,6 @@ import (
 
 	"codeberg.org/go-pdf/fpdf"
 	xfont "golang.org/x/image/font"
-	"golang.org/x/text/encoding/charmap"
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/vgimg"
@@ -96,14 +95,27 @@ func (c pdfText) FillString(f font.Face, pt vg.Point, s string) {
 	}
 	b := make([]byte, 0, len(s))
 	for _, r := range strings.ReplaceAll(s, "−", "-") {
-		e, ok := charmap.Windows1252.EncodeRune(r)
-		if !ok {
-			e = '?'
-		}
-		b = append(b, e)
+		b = append(b, cp1252(r))
 	}
 	c.Canvas.FillString(f, pt, string(b))
 }
+
+// cp1252 is r's byte in the Windows-1252 code page, '?' when it has none:
+// Latin-1 but for 0x80–0x9F, which hold typographic punctuation and a few
+// letters.
+func cp1252(r rune) byte {
+	if r < 0x80 || r >= 0xa0 && r < 0x100 {
+		return byte(r)
+	}
+	if i := strings.IndexRune(cp1252High, r); i >= 0 {
+		return byte(0x80 + len([]rune(cp1252High[:i])))
+	}
+	return '?'
+}
+
+// cp1252High is 0x80–0x9F of Windows-1252 in order; '?' marks the unused
+// positions.
+const cp1252High = "€?‚ƒ„…†‡ˆ‰Š‹Œ?Ž??‘’“”•–—˜™š›œ?žŸ"
 
 // renderPNG draws f at dpi and encodes it with fixed settings (best
 // compression, no metadata), so the bytes depend only on the figure (and on

@@ -230,3 +230,13 @@ func TestMapCellsAreBlocks(t *testing.T) {
 		}
 	}
 }
+
+// PDF text goes through Windows-1252 (the code page vgpdf embeds fonts with);
+// the values are those of its published table.
+func TestCP1252(t *testing.T) {
+	for r, want := range map[rune]byte{'a': 'a', 'µ': 0xb5, '²': 0xb2, '×': 0xd7, '€': 0x80, '‚': 0x82, '–': 0x96, '—': 0x97, 'Ÿ': 0x9f, '∫': '?', 'γ': '?'} {
+		if got := cp1252(r); got != want {
+			t.Errorf("%q: got %#x, want %#x", r, got, want)
+		}
+	}
+}

@@ -6,7 +6,7 @@ import (
 	"strconv"
 )
 
-// The application/json values are written by hand rather than through
+// The data values (ResultMIME) are written by hand rather than through
 // encoding/json: maps carry up to millions of numbers, and encoding/json would
 // re-validate every byte a Marshaler returns. Keys keep a fixed order, numbers are
 // rounded to the digits that matter (roundingFor), and non-finite numbers
