@@ -198,6 +198,8 @@ func TestComplete(t *testing.T) {
 		{"sweep hard over offset -1 kHz to 1 kHz ", []string{"points", "step"}, nil},
 		{"report hard as m", []string{"markdown"}, nil},
 		{"help sw", []string{"sweep"}, nil},
+		{"export f", []string{"figure"}, nil},
+		{"export ", []string{"hard", "sweep", "figure"}, nil},
 	}
 	for _, c := range cases {
 		got, start, end := s.Complete(c.code, len([]rune(c.code)))
