@@ -3,6 +3,7 @@ module Nutate
 go 1.26.8
 
 require (
+	codeberg.org/go-pdf/fpdf v0.11.1
 	github.com/go-zeromq/zmq4 v0.17.0
 	github.com/google/uuid v1.6.0
 	golang.org/x/image v0.30.0
@@ -13,7 +14,6 @@ require (
 require (
 	codeberg.org/go-fonts/liberation v0.5.0 // indirect
 	codeberg.org/go-latex/latex v0.2.0 // indirect
-	codeberg.org/go-pdf/fpdf v0.11.1 // indirect
 	git.sr.ht/~sbinet/gg v0.7.0 // indirect
 	github.com/ajstarks/svgo v0.0.0-20211024235047-1546f124cd8b // indirect
 	github.com/go-zeromq/goczmq/v4 v4.2.2 // indirect

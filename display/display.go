@@ -1,39 +1,52 @@
 // Package display turns plain tables, curves, maps and waveforms into MIME
-// bundles (text/plain, text/html, image/svg+xml, application/json) for notebooks.
-// It knows nothing of the pulse language or of the Jupyter protocol. Output is
-// deterministic: the same input gives the same bytes.
+// bundles (text/plain, text/html, image/svg+xml, image/png and the data under
+// ResultMIME) for notebooks. It knows nothing of the pulse language or of the
+// Jupyter protocol. Output is deterministic: the same input gives the same bytes.
 //
-// Entry points: Table.Bundle, Profile.Bundle, Map.Bundle and Waveform.Bundle
-// (each figure also has an SVG method for export), Num and NumColumn to format
-// numbers for tables, and Text for plain messages.
+// Entry points: Table.Bundle; Profile.Bundles, Map.Bundles and Waveform.Bundles
+// (a figure and its table); FigureFile to write a figure as SVG, PNG or PDF;
+// Num and NumColumn to format numbers for tables, and Text for plain messages.
 //
 // Bundles. text/plain is always present. Tables come as aligned text (units in
-// the header) and as an HTML <table> with the same cells. Figures come as
-// image/svg+xml; their text/html holds the same SVG inline followed by the table,
-// because notebook front ends show only the richest MIME type of a bundle and rank
-// HTML above SVG. A figure's table is the caller's Summary, or the data when a
-// curve has at most 50 points, or each curve's extremes; the JSON carries every
-// value. application/json values are json.RawMessage (encoding/json embeds them
-// verbatim); numbers are the shortest text that reads back to the same float64,
-// NaN and ±Inf are null.
+// the header), as an HTML <table> with the same cells, and as their data. A
+// figure is two outputs: the figure (its title and a caption in text/plain,
+// image/svg+xml, a PNG rendition at NotebookDPI and its data under ResultMIME,
+// with no text/html), then its table (text/plain and text/html). Notebook front
+// ends show only the highest-ranked type of a bundle: the classic Notebook and
+// JupyterLab both rank text/html above images and JupyterLab ranks
+// application/json above everything, while an untrusted notebook refuses SVG
+// (both front ends) and sanitizes HTML. With this arrangement a trusted notebook
+// shows the SVG, an untrusted one the PNG, and the table its HTML (see
+// TestMIMERanking). A figure's table is the caller's Summary, or the data when
+// a curve has at most 50 points, or each curve's extremes; the data carries
+// every value. Data values are json.RawMessage (encoding/json embeds them
+// verbatim), NaN and ±Inf are null, and numbers keep the digits that matter:
+// magnetization (a quantity without a unit within ±1, in M0 units) 6 decimals
+// (1e-6), angles in degrees 2 decimals (0.01°), axis values and other
+// quantities SigDigits (6) significant digits. The caller bounds how many
+// values a notebook keeps (package dsl decimates large maps and waveforms).
 //
 // Figures. gonum.org/v1/plot draws into its SVG backend. Text is SVG text in
 // Liberation Sans with Arial, Helvetica and sans-serif as fallbacks; no font data
 // is embedded, and each text carries its measured length so a different fallback
 // font still fits the layout. There are no ids, timestamps or network references.
-// Lines are thinned to what half-point columns can show, heat maps are embedded
-// PNG images (at most one pixel per cell, averaged down beyond 640 per side), so
-// a 601-point two-pulse overlay of two quantities is about 50 kB and a 161 × 101
-// map about 33 kB, and sizes stay bounded as points or cells grow. Pulses are
-// told apart by colour-blind-safe colours and dash patterns; maps use this
-// package's own perceptually uniform colour scale (see palette.go).
+// Lines are thinned to what half-point columns can show and straight stretches
+// drawn as one segment; heat maps are embedded PNG images (one pixel per cell,
+// enlarged to blocks of pixels when the map has few cells so that it stays
+// crisp when scaled smoothly, averaged down beyond 640 per side), so a 601-point
+// two-pulse overlay of two quantities is about 20 kB and a 161 × 101 map about
+// 43 kB of SVG, and sizes stay bounded as points or cells grow. The PNG
+// rendition and FigureFile draw the same figure with gonum/plot's vgimg and
+// vgpdf back ends. Pulses are told apart by colour-blind-safe colours and dash
+// patterns; maps use this package's own perceptually uniform colour scale (see
+// palette.go).
 //
 // Units are those of the fields (stated beside each); a Waveform's time is in
 // seconds and is drawn in µs, ms or s as suits its length.
 package display
 
-// Bundle is one output: MIME type → content (a string, or json.RawMessage for
-// application/json).
+// Bundle is one output: MIME type → content (a string; base64 for image/png;
+// json.RawMessage for ResultMIME).
 type Bundle map[string]any
 
 // Text is a plain-text bundle.

@@ -2,9 +2,12 @@ package display
 
 import (
 	"bytes"
+	"encoding/base64"
 	"encoding/json"
 	"encoding/xml"
 	"flag"
+	"image"
+	"image/png"
 	"io"
 	"math"
 	"os"
@@ -179,12 +182,15 @@ func TestSVGIsXMLWithLabels(t *testing.T) {
 			if !strings.Contains(s, "sans-serif") {
 				t.Errorf("svg text has no generic sans-serif fallback")
 			}
-			html, _ := tc.b["text/html"].(string)
-			if !strings.Contains(html, "<svg") || strings.Contains(html, "<?xml") {
-				t.Errorf("text/html does not carry the figure inline")
+			if _, ok := tc.b["text/html"]; ok {
+				t.Errorf("figure bundle has text/html, which front ends rank above the images")
 			}
 			if p, _ := tc.b["text/plain"].(string); p == "" {
 				t.Errorf("no text/plain")
+			}
+			img := decodePNG(t, tc.b)
+			if w := img.Bounds().Dx(); w != 576 {
+				t.Errorf("png is %d pixels wide, want 576 (6 in at %d dpi)", w, NotebookDPI)
 			}
 		})
 	}
@@ -194,14 +200,14 @@ func TestDeterministic(t *testing.T) {
 	a, b := samples(), samples()
 	for name := range a {
 		t.Run(name, func(t *testing.T) {
-			for _, mime := range []string{"image/svg+xml", "text/html", "text/plain"} {
+			for _, mime := range []string{"image/svg+xml", "image/png", "text/plain"} {
 				if a[name][mime] != b[name][mime] {
 					t.Errorf("%s differs between two renderings", mime)
 				}
 			}
-			ja, jb := a[name]["application/json"].(json.RawMessage), b[name]["application/json"].(json.RawMessage)
-			if !bytes.Equal(ja, jb) {
-				t.Errorf("application/json differs between two renderings")
+			ja, jb := a[name][ResultMIME].(json.RawMessage), b[name][ResultMIME].(json.RawMessage)
+			if len(ja) == 0 || !bytes.Equal(ja, jb) {
+				t.Errorf("%s differs between two renderings", ResultMIME)
 			}
 		})
 	}
@@ -284,24 +290,45 @@ type (
 	}
 )
 
+func decodePNG(t *testing.T, b Bundle) image.Image {
+	t.Helper()
+	s, _ := b["image/png"].(string)
+	raw, err := base64.StdEncoding.DecodeString(s)
+	if err != nil || len(raw) == 0 {
+		t.Fatalf("image/png is not base64 (%v)", err)
+	}
+	img, err := png.Decode(bytes.NewReader(raw))
+	if err != nil {
+		t.Fatalf("image/png does not decode: %v", err)
+	}
+	return img
+}
+
 func decode(t *testing.T, b Bundle, v any) {
 	t.Helper()
-	raw, ok := b["application/json"].(json.RawMessage)
+	raw, ok := b[ResultMIME].(json.RawMessage)
 	if !ok {
-		t.Fatalf("application/json is %T, want json.RawMessage", b["application/json"])
+		t.Fatalf("%s is %T, want json.RawMessage", ResultMIME, b[ResultMIME])
 	}
 	// The bundle must also survive being marshalled inside a message.
 	if _, err := json.Marshal(map[string]any(b)); err != nil {
 		t.Fatalf("bundle does not marshal: %v", err)
 	}
 	if err := json.Unmarshal(raw, v); err != nil {
-		t.Fatalf("application/json does not decode: %v", err)
+		t.Fatalf("%s does not decode: %v", ResultMIME, err)
 	}
 }
 
-// sameValues compares decoded values with the originals exactly: JSON carries
-// the shortest text that reads back to the same float64, and null for NaN/Inf.
+// sameValues compares decoded values with the originals to the digits the
+// package doc promises (SigDigits significant digits: relative 5e-6 covers
+// the rounding of the last one), and null for NaN/Inf.
 func sameValues(t *testing.T, what string, got []*float64, want []float64) {
+	t.Helper()
+	closeValues(t, what, got, want, func(w float64) float64 { return 5e-6 * math.Abs(w) })
+}
+
+// closeValues compares decoded values with the originals within tol(want).
+func closeValues(t *testing.T, what string, got []*float64, want []float64, tol func(float64) float64) {
 	t.Helper()
 	if len(got) != len(want) {
 		t.Fatalf("%s: got %d values, want %d", what, len(got), len(want))
@@ -310,9 +337,47 @@ func sameValues(t *testing.T, what string, got []*float64, want []float64) {
 		switch {
 		case !finite(w) && got[i] != nil:
 			t.Fatalf("%s[%d]: got %v, want null for %v", what, i, *got[i], w)
-		case finite(w) && (got[i] == nil || *got[i] != w):
-			t.Fatalf("%s[%d]: got %v, want %v", what, i, got[i], w)
+		case finite(w) && (got[i] == nil || math.Abs(*got[i]-w) > tol(w)):
+			t.Fatalf("%s[%d]: got %v, want %v within %g", what, i, got[i], w, tol(w))
 		}
+	}
+}
+
+// Magnetization (no unit, within ±1) keeps 6 decimals, angles 2.
+func magnetTol(float64) float64 { return 5e-7 + 1e-15 }
+func degreeTol(float64) float64 { return 5e-3 + 1e-12 }
+
+// The rounding keeps the stated digits and no more: shorter text than the
+// shortest round trip of the full float64.
+func TestJSONRounding(t *testing.T) {
+	for _, tc := range []struct {
+		r    rounding
+		v    float64
+		want string
+	}{
+		{sigRounding, 1234.56789, "1234.57"},
+		{sigRounding, -0.000123456789, "-0.000123457"},
+		{sigRounding, 2.5e-7, "2.5e-07"},
+		{sigRounding, 1e21, "1e+21"},
+		{magnetRounding, 0.123456789, "0.123457"},
+		{magnetRounding, -2e-7, "0"},
+		{magnetRounding, 1, "1"},
+		{degreeRounding, 179.99999, "180"},
+		{degreeRounding, -45.678, "-45.68"},
+		{degreeRounding, math.NaN(), "null"},
+	} {
+		if got := string(tc.r.append(nil, tc.v)); got != tc.want {
+			t.Errorf("%v rounded %+v: got %s, want %s", tc.v, tc.r, got, tc.want)
+		}
+	}
+	if r := roundingFor("", []float64{-1, 0.5, math.NaN()}); r != magnetRounding {
+		t.Errorf("magnetization: got %+v", r)
+	}
+	if r := roundingFor("", []float64{0, 1.5}); r != sigRounding {
+		t.Errorf("a unitless quantity beyond ±1: got %+v, want significant digits", r)
+	}
+	if r := roundingFor("deg", nil); r != degreeRounding {
+		t.Errorf("degrees: got %+v", r)
 	}
 }
 
@@ -358,7 +423,11 @@ func TestJSONRoundTrip(t *testing.T) {
 			if g.Pulse != c.Pulse || g.Quantity != c.Quantity || g.Unit != c.Unit {
 				t.Errorf("curve %d: got %s/%s/%s, want %s/%s/%s", i, g.Pulse, g.Quantity, g.Unit, c.Pulse, c.Quantity, c.Unit)
 			}
-			sameValues(t, c.Pulse+" "+c.Quantity, g.Y, c.Y)
+			tol := magnetTol
+			if c.Unit == "deg" {
+				tol = degreeTol
+			}
+			closeValues(t, c.Pulse+" "+c.Quantity, g.Y, c.Y, tol)
 		}
 		for i, m := range p.Marks {
 			sameValues(t, "mark", []*float64{got.Marks[i].X}, []float64{m.X})
@@ -382,7 +451,7 @@ func TestJSONRoundTrip(t *testing.T) {
 			t.Fatalf("got %d rows, want %d", len(got.Z), len(m.Z))
 		}
 		for j := range m.Z {
-			sameValues(t, "z row", got.Z[j], m.Z[j])
+			closeValues(t, "z row", got.Z[j], m.Z[j], magnetTol)
 		}
 		sameValues(t, "contour", []*float64{got.Contour}, []float64{m.Contour})
 		sameTable(t, got.Summary, m.Summary)
@@ -406,7 +475,11 @@ func TestJSONRoundTrip(t *testing.T) {
 			if got.Series[i].Quantity != s.q || got.Series[i].Unit != s.u {
 				t.Errorf("series %d: got %s (%s), want %s (%s)", i, got.Series[i].Quantity, got.Series[i].Unit, s.q, s.u)
 			}
-			sameValues(t, s.q, got.Series[i].Values, s.v)
+			if s.u == "deg" {
+				closeValues(t, s.q, got.Series[i].Values, s.v, degreeTol)
+			} else {
+				sameValues(t, s.q, got.Series[i].Values, s.v)
+			}
 		}
 		sameTable(t, got.Properties, tb)
 	})

@@ -18,15 +18,17 @@ import (
 // averaged down in the image only; the JSON keeps every value.
 const maxPixels = 640
 
-// Bundle shows the map as a heat map with a colour bar (image/svg+xml; text/html
-// holds the same SVG inline followed by the table), a table in text/plain and
-// text/html (the caller's Summary, or else the extremes and the contour level),
-// and every value in application/json: {"kind": "map", "title", "pulse",
+// Bundles shows the map as a heat map with a colour bar (a figure as for a
+// Profile), then a table in text/plain and text/html (the caller's Summary, or
+// else the extremes and the contour level). The data under ResultMIME is
+// {"kind": "map", "title", "pulse",
 // "quantity", "unit", "x", "y" (axes as in a profile), "z": [[row at y[0]], ...],
 // "contour": level or null, "summary": table, "label" and "notes" (when set)};
 // non-finite values are null.
 //
-// The heat map is an embedded PNG of the cells (smoothly scaled by the viewer),
+// The heat map is an embedded PNG of the cells, each cell drawn as a block of
+// several pixels (nearest neighbour) when the map has fewer cells than the
+// image has room for, so that it stays crisp when a viewer scales it smoothly,
 // coloured with this package's own perceptually uniform scale (see rampAnchors);
 // NaN cells are left transparent. The contour, when HasContour, is traced on the
 // full-resolution grid by marching squares and drawn black on a white halo so it
@@ -34,15 +36,16 @@ const maxPixels = 640
 // positive values) is drawn logarithmically: cells span geometric midpoints,
 // ticks fall at 1, 2, 5 × powers of ten as on a profile, and the contour is
 // interpolated in the logarithm of the axis values.
-func (m Map) Bundle() Bundle {
-	svg := m.SVG()
-	t := m.table()
-	return figureBundle(m.Title, svg, t, m.caption(), m.json())
+func (m Map) Bundles() []Bundle {
+	return figureBundles(m, m.SVG(), m.Title, m.caption(), m.table(), m.JSON())
 }
+
+// Bundle is the figure of Bundles alone.
+func (m Map) Bundle() Bundle { return m.Bundles()[0] }
 
 func (m Map) caption() string {
 	nx, ny := m.dims()
-	return fmt.Sprintf("(figure: %s over %s × %s, %d × %d points; all values in application/json)",
+	return fmt.Sprintf("(figure: %s over %s × %s, %d × %d points; data in "+ResultMIME+")",
 		axisLabel(orDefault(m.label(), "z"), m.Unit), axisLabel(orDefault(m.X.Label, "x"), m.X.Unit),
 		axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit), nx, ny)
 }
@@ -124,7 +127,10 @@ func (m Map) table() Table {
 }
 
 // SVG renders the map figure alone.
-func (m Map) SVG() string {
+func (m Map) SVG() string { return finishSVG(m.draw(svgCanvas).(*vgsvg.Canvas)) }
+
+// draw renders the map figure on a canvas made by nc.
+func (m Map) draw(nc canvasMaker) vg.CanvasWriterTo {
 	nx, ny := m.dims()
 	zlo, zhi := m.zRange()
 	const bodyH = 300
@@ -163,7 +169,7 @@ func (m Map) SVG() string {
 	footH := footHeight(notes)
 	H := headH + bodyH + footH
 
-	c := vgsvg.New(figWidth, H)
+	c := nc(figWidth, H)
 	full := draw.New(c)
 	full.SetColor(whiteColor)
 	full.Fill(full.Rectangle.Path())
@@ -250,7 +256,7 @@ func (m Map) SVG() string {
 	ls.XAlign, ls.YAlign = draw.XCenter, draw.YTop
 	full.FillText(ls, vg.Point{X: bar.Max.X + tickLen + 2 + tw + 6, Y: (bar.Min.Y + bar.Max.Y) / 2},
 		axisLabel(orDefault(m.label(), "z"), m.Unit))
-	return finishSVG(c)
+	return c
 }
 
 var (
@@ -351,8 +357,9 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 	xe, ye := cellEdges(r.x.layout), cellEdges(r.y.layout)
 	x0, x1 := trX(r.x.data(xe[0])), trX(r.x.data(xe[len(xe)-1]))
 	y0, y1 := trY(r.y.data(ye[0])), trY(r.y.data(ye[len(ye)-1]))
-	xs := pixelCells(xe, max(int(math.Abs(float64(x1-x0))*2), 1))
-	ys := pixelCells(ye, max(int(math.Abs(float64(y1-y0))*2), 1))
+	hx, hy := max(int(math.Abs(float64(x1-x0))*2), 1), max(int(math.Abs(float64(y1-y0))*2), 1)
+	xs := pixelCells(xe, hx)
+	ys := pixelCells(ye, hy)
 	toInput(xs, r.x.layout)
 	toInput(ys, r.y.layout)
 	// Pixels run left to right and top to bottom; cells run along the axes.
@@ -397,7 +404,28 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 		}
 	}
 	rect := vg.Rectangle{Min: vg.Point{X: min(x0, x1), Y: min(y0, y1)}, Max: vg.Point{X: max(x0, x1), Y: max(y0, y1)}}
-	c.DrawImage(rect, img)
+	c.DrawImage(rect, blocks(img, hx/len(xs), hy/len(ys)))
+}
+
+// blocks enlarges img by whole factors (nearest neighbour), so that each cell
+// of a small map is a block of pixels: a viewer or converter that scales the
+// image smoothly (CSS image-rendering is not honoured everywhere) then blurs
+// only the edges between cells, not whole cells into each other.
+func blocks(img *image.Paletted, kx, ky int) *image.Paletted {
+	kx, ky = max(kx, 1), max(ky, 1)
+	if kx == 1 && ky == 1 {
+		return img
+	}
+	w, h := img.Rect.Dx(), img.Rect.Dy()
+	out := image.NewPaletted(image.Rect(0, 0, w*kx, h*ky), img.Palette)
+	for y := range h * ky {
+		src := img.Pix[(y/ky)*img.Stride:]
+		dst := out.Pix[y*out.Stride:]
+		for x := range w * kx {
+			dst[x] = src[x/kx]
+		}
+	}
+	return out
 }
 
 // drawable returns the axis values to draw a map with: the values themselves when

@@ -2,13 +2,14 @@ package display
 
 import (
 	"encoding/json"
+	"math"
 	"strconv"
 )
 
-// The application/json values are written by hand rather than through
+// The data values (ResultMIME) are written by hand rather than through
 // encoding/json: maps carry up to millions of numbers, and encoding/json would
-// re-validate every byte a Marshaler returns. Keys keep a fixed order, numbers the
-// shortest text that reads back to the same float64, and non-finite numbers
+// re-validate every byte a Marshaler returns. Keys keep a fixed order, numbers are
+// rounded to the digits that matter (roundingFor), and non-finite numbers
 // become null. The result is a json.RawMessage, which encoding/json embeds as is.
 
 // object writes one JSON object field by field.
@@ -35,23 +36,68 @@ func appendString(b []byte, s string) []byte {
 	return append(b, q...)
 }
 
-func appendNum(b []byte, v float64) []byte {
+func jsonNum(v float64) []byte { return sigRounding.append(nil, v) }
+
+// rounding is how many digits of a value the data keeps (see the package doc):
+// decimals ≥ 0 keeps that many decimals, otherwise SigDigits significant digits.
+type rounding struct{ decimals int }
+
+var (
+	sigRounding    = rounding{decimals: -1}
+	magnetRounding = rounding{decimals: 6} // 1e-6 of M0
+	degreeRounding = rounding{decimals: 2} // 0.01°
+)
+
+// SigDigits is the number of significant digits the data keeps of axis values
+// and of quantities other than magnetization and angles.
+const SigDigits = 6
+
+// roundingFor picks the rounding of a quantity's values from its unit: angles
+// in degrees to 0.01°, a quantity without a unit whose values lie within
+// [−1, 1] (magnetization in M0 units) to 1e-6, anything else to SigDigits.
+func roundingFor(unit string, v ...[]float64) rounding {
+	if isDegrees(unit) {
+		return degreeRounding
+	}
+	if unit != "" {
+		return sigRounding
+	}
+	for _, r := range v {
+		lo, hi := finiteRange(r)
+		if lo < -1-1e-9 || hi > 1+1e-9 {
+			return sigRounding
+		}
+	}
+	return magnetRounding
+}
+
+func (r rounding) append(b []byte, v float64) []byte {
 	if !finite(v) {
 		return append(b, "null"...)
+	}
+	if r.decimals < 0 {
+		return strconv.AppendFloat(b, v, 'g', SigDigits, 64)
+	}
+	// The rounded float is the one nearest k·10⁻ᵈ, whose shortest text is
+	// that decimal.
+	p := math.Pow10(r.decimals)
+	v = math.Round(v*p) / p
+	if v == 0 {
+		v = 0 // no "-0"
 	}
 	return strconv.AppendFloat(b, v, 'g', -1, 64)
 }
 
-func jsonNum(v float64) []byte { return appendNum(nil, v) }
+func jsonFloats(v []float64) []byte { return jsonRounded(v, sigRounding) }
 
-func jsonFloats(v []float64) []byte {
-	b := make([]byte, 0, 2+len(v)*20)
+func jsonRounded(v []float64, r rounding) []byte {
+	b := make([]byte, 0, 2+len(v)*10)
 	b = append(b, '[')
 	for i, x := range v {
 		if i > 0 {
 			b = append(b, ',')
 		}
-		b = appendNum(b, x)
+		b = r.append(b, x)
 	}
 	return append(b, ']')
 }
@@ -103,14 +149,15 @@ func (a Axis) json() []byte {
 		raw("reverse", jsonBool(a.Reverse)).raw("values", jsonFloats(a.Values)).done()
 }
 
-func (p Profile) json() json.RawMessage {
+// JSON is the profile's data as its bundle carries it under ResultMIME.
+func (p Profile) JSON() json.RawMessage {
 	var curves, marks [][]byte
 	for _, c := range p.Curves {
 		co := newObject().str("pulse", c.Pulse).str("quantity", c.Quantity).str("unit", c.Unit)
 		if c.Label != "" {
 			co = co.str("label", c.Label)
 		}
-		curves = append(curves, co.raw("y", jsonFloats(c.Y)).done())
+		curves = append(curves, co.raw("y", jsonRounded(c.Y, roundingFor(c.Unit, c.Y))).done())
 	}
 	for _, m := range p.Marks {
 		marks = append(marks, newObject().raw("x", jsonNum(m.X)).str("label", m.Label).done())
@@ -124,10 +171,12 @@ func (p Profile) json() json.RawMessage {
 	return o.done()
 }
 
-func (m Map) json() json.RawMessage {
+// JSON is the map's data as its bundle carries it under ResultMIME.
+func (m Map) JSON() json.RawMessage {
 	rows := make([][]byte, len(m.Z))
+	rd := roundingFor(m.Unit, m.Z...)
 	for i, r := range m.Z {
-		rows[i] = jsonFloats(r)
+		rows[i] = jsonRounded(r, rd)
 	}
 	contour := []byte("null")
 	if m.HasContour {
@@ -148,11 +197,13 @@ func (m Map) json() json.RawMessage {
 	return o.done()
 }
 
-func (w Waveform) json(t Table) json.RawMessage {
+// JSON is the waveform's data, with t as its properties, as its bundle carries
+// it under ResultMIME.
+func (w Waveform) JSON(t Table) json.RawMessage {
 	var series [][]byte
 	for _, s := range w.series() {
 		series = append(series, newObject().str("quantity", s.quantity).str("unit", s.unit).
-			raw("values", jsonFloats(s.values)).done())
+			raw("values", jsonRounded(s.values, roundingFor(s.unit, s.values))).done())
 	}
 	return newObject().str("kind", "waveform").str("title", w.Title).
 		raw("time", Axis{Label: "time", Unit: "s", Values: w.Time}.json()).

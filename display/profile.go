@@ -1,8 +1,8 @@
 package display
 
 import (
-	"encoding/json"
 	"fmt"
+	"gonum.org/v1/plot/vg"
 	"strings"
 )
 
@@ -13,36 +13,26 @@ const maxListed = 50
 // maxDots is the longest curve whose points are marked with dots.
 const maxDots = 30
 
-// Bundle shows the profile as a figure (image/svg+xml; text/html holds the same
-// SVG inline followed by the table) and a table in text/plain and text/html: the
-// caller's Summary when it has rows or notes, otherwise the data itself when there
-// are at most 50 points, otherwise each curve's extremes. application/json holds
-// every value: {"kind": "profile", "title", "x": {"label", "unit", "reverse",
-// "values"}, "curves": [{"pulse", "quantity", "unit", "label" (when set), "y"}],
-// "marks": [{"x", "label"}], "summary": table, "notes" (when any)}; non-finite
-// values are null.
+// Bundles shows the profile: a figure (image/svg+xml and its PNG rendition,
+// with the title and a caption in text/plain and every value under ResultMIME),
+// then a table in text/plain and text/html: the caller's Summary when it has
+// rows or notes, otherwise the data itself when there are at most 50 points,
+// otherwise each curve's extremes. The data is {"kind": "profile", "title",
+// "x": {"label", "unit", "reverse", "values"}, "curves": [{"pulse", "quantity",
+// "unit", "label" (when set), "y"}], "marks": [{"x", "label"}], "summary":
+// table, "notes" (when any)}, numbers rounded as the package doc states;
+// non-finite values are null.
 //
 // Curves of one quantity and unit share a panel; different quantities get stacked
 // panels over the shared x axis, in order of first appearance. Each pulse keeps
 // one colour and dash pattern across panels, named in a legend when there are
 // several. Curves shorter or longer than X are cut to the common length.
-func (p Profile) Bundle() Bundle {
-	svg := p.SVG()
-	t := p.table()
-	return figureBundle(p.Title, svg, t, p.caption(), p.json())
+func (p Profile) Bundles() []Bundle {
+	return figureBundles(p, p.SVG(), p.Title, p.caption(), p.table(), p.JSON())
 }
 
-// figureBundle assembles a figure's bundle: the table with the title and caption
-// in text/plain, the SVG inline with the table in text/html, the SVG alone, and
-// the JSON.
-func figureBundle(title, svg string, t Table, caption string, data json.RawMessage) Bundle {
-	return Bundle{
-		"text/plain":       figurePlain(title, t, caption),
-		"text/html":        figureHTML(svg, t),
-		"image/svg+xml":    svg,
-		"application/json": data,
-	}
-}
+// Bundle is the figure of Bundles alone.
+func (p Profile) Bundle() Bundle { return p.Bundles()[0] }
 
 // caption says in words what the figure shows, for text-only readers.
 func (p Profile) caption() string {
@@ -53,7 +43,7 @@ func (p Profile) caption() string {
 	if len(qs) == 0 {
 		return "(no curves)"
 	}
-	return fmt.Sprintf("(figure: %s against %s, %d points; all values in application/json)",
+	return fmt.Sprintf("(figure: %s against %s, %d points; data in "+ResultMIME+")",
 		strings.Join(qs, ", "), axisLabel(orDefault(p.X.Label, "x"), p.X.Unit), len(p.X.Values))
 }
 
@@ -101,7 +91,12 @@ func (c Curve) label() string { return orDefault(c.Label, c.Quantity) }
 func isDegrees(unit string) bool { return unit == "deg" || unit == "°" || unit == "degree" }
 
 // SVG renders the profile figure alone.
-func (p Profile) SVG() string {
+func (p Profile) SVG() string { return p.stack().svg() }
+
+func (p Profile) draw(nc canvasMaker) vg.CanvasWriterTo { return p.stack().draw(nc) }
+
+// stack lays out the profile's panels.
+func (p Profile) stack() stack {
 	names := pulses(p.Curves)
 	style := map[string]int{}
 	for i, n := range names {
@@ -139,7 +134,7 @@ func (p Profile) SVG() string {
 			s.legend = append(s.legend, legendItem{name: orDefault(n, "(unnamed)"), style: seriesStyle(i)})
 		}
 	}
-	return s.svg()
+	return s
 }
 
 // table is the table shown with the figure.

@@ -581,7 +581,7 @@ func TestCyclicMap(t *testing.T) {
 			t.Fatalf("pixel %d: %v, want the colour of ±180° %v (0° is %v)", x, got, want, far)
 		}
 	}
-	if !strings.Contains(string(m.json()), `"cyclic":true`) {
+	if !strings.Contains(string(m.JSON()), `"cyclic":true`) {
 		t.Error("the JSON does not say the map is cyclic")
 	}
 }

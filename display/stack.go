@@ -395,7 +395,10 @@ func mergeLabels(ls []string) string {
 }
 
 // svg renders the stack.
-func (s stack) svg() string {
+func (s stack) svg() string { return finishSVG(s.draw(svgCanvas).(*vgsvg.Canvas)) }
+
+// draw renders the stack on a canvas made by nc.
+func (s stack) draw(nc canvasMaker) vg.CanvasWriterTo {
 	ps, shown := s.plots()
 	n := len(ps)
 	ph := panelHeightFor(n)
@@ -431,7 +434,7 @@ func (s stack) svg() string {
 	footH := footHeight(notes)
 	H := headH + bodyH + footH
 
-	c := vgsvg.New(figWidth, H)
+	c := nc(figWidth, H)
 	full := draw.New(c)
 	full.SetColor(whiteColor)
 	full.Fill(full.Rectangle.Path())
@@ -457,7 +460,7 @@ func (s stack) svg() string {
 			full.FillText(ms, vg.Point{X: pm.left, Y: top + 2 + vg.Length(pm.row)*markRow}, pm.txt)
 		}
 	}
-	return finishSVG(c)
+	return c
 }
 
 // wrapNotes wraps each note to the figure's width in the notes' small type.

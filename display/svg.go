@@ -175,7 +175,7 @@ func (l line) Plot(c draw.Canvas, p *plot.Plot) {
 	var path vg.Path
 	var run []vg.Point
 	flush := func() {
-		pts := thin(run)
+		pts := straighten(thin(run), straightTol)
 		if len(pts) == 1 {
 			// A lone point: a short tick so it stays visible.
 			pts = append(pts, vg.Point{X: pts[0].X + 0.8, Y: pts[0].Y})
@@ -257,6 +257,55 @@ func thin(pts []vg.Point) []vg.Point {
 		i = j + 1
 	}
 	return out
+}
+
+// straightTol is how far (in points) a dropped vertex may lie from the line
+// drawn without it: a twentieth of a point, below what any screen or print
+// shows.
+const straightTol = 0.05
+
+// straighten drops vertices that lie on the straight line between their kept
+// neighbours (within tol, checked for every vertex dropped since the last kept
+// one), so that flat and straight stretches cost two points instead of one per
+// column.
+func straighten(pts []vg.Point, tol vg.Length) []vg.Point {
+	if len(pts) < 3 {
+		return pts
+	}
+	out := []vg.Point{pts[0]}
+	start := 0 // index of the last kept point
+	for i := 1; i < len(pts)-1; i++ {
+		// Would the segment from the last kept point to pts[i+1] pass within
+		// tol of every point after the kept one, pts[i] included?
+		if i-start < 256 && onSegment(pts[start], pts[i+1], pts[start+1:i+1], tol) {
+			continue
+		}
+		out = append(out, pts[i])
+		start = i
+	}
+	return append(out, pts[len(pts)-1])
+}
+
+// onSegment tells whether every point of mid lies within tol of segment a–b
+// and between its ends.
+func onSegment(a, b vg.Point, mid []vg.Point, tol vg.Length) bool {
+	dx, dy := float64(b.X-a.X), float64(b.Y-a.Y)
+	l2 := dx*dx + dy*dy
+	if l2 == 0 {
+		return false
+	}
+	for _, p := range mid {
+		px, py := float64(p.X-a.X), float64(p.Y-a.Y)
+		u := (px*dx + py*dy) / l2
+		if u < 0 || u > 1 {
+			return false
+		}
+		cross := px*dy - py*dx
+		if cross*cross > float64(tol*tol)*l2 {
+			return false
+		}
+	}
+	return true
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
@@ -463,40 +512,6 @@ func minus(s string) string {
 		return "−" + s[1:]
 	}
 	return s
-}
-
-// inlineSVG strips the XML prolog so the SVG can sit inside HTML.
-func inlineSVG(svg string) string {
-	if strings.HasPrefix(svg, "<?xml") {
-		if i := strings.Index(svg, "?>"); i >= 0 {
-			svg = strings.TrimLeft(svg[i+2:], "\n")
-		}
-	}
-	return svg
-}
-
-// figurePlain is the text/plain of a figure bundle: the figure's title (unless
-// the table has its own), the table, and a caption saying what the figure shows.
-func figurePlain(title string, t Table, caption string) string {
-	var parts []string
-	if title != "" && t.Title == "" {
-		parts = append(parts, title)
-	}
-	if p := t.Plain(); p != "" {
-		parts = append(parts, p)
-	}
-	return strings.Join(append(parts, caption), "\n")
-}
-
-// figureHTML is the text/html of a figure bundle: the SVG inline, then the table.
-// Notebook front ends show only the richest MIME type of a bundle and rank HTML
-// above SVG, so the HTML must carry the figure too.
-func figureHTML(svg string, t Table) string {
-	h := `<div class="nutate-figure">` + inlineSVG(svg) + "</div>"
-	if t.Title != "" || len(t.Columns) > 0 || len(t.Rows) > 0 || len(t.Notes) > 0 {
-		h += t.HTML()
-	}
-	return h
 }
 
 // niceStep is the tick step for about n labelled ticks over [lo, hi]: 1, 2, 2.5

@@ -18,13 +18,13 @@ func (c Column) Header() string {
 
 // Bundle shows the table as aligned text/plain (units in the header, numeric
 // columns right-aligned, notes under it), as an HTML <table> with the same cells and
-// notes, and as application/json ({"title", "columns": [{"name", "unit"}], "rows",
+// notes, and as its data under ResultMIME ({"title", "columns": [{"name", "unit"}], "rows",
 // "notes"}).
 func (t Table) Bundle() Bundle {
 	return Bundle{
-		"text/plain":       t.Plain(),
-		"text/html":        t.HTML(),
-		"application/json": t.json(),
+		"text/plain": t.Plain(),
+		"text/html":  t.HTML(),
+		ResultMIME:   t.json(),
 	}
 }
 

@@ -2,27 +2,25 @@ package display
 
 import (
 	"fmt"
+	"gonum.org/v1/plot/vg"
 	"math"
 	"slices"
 	"strings"
 )
 
-// Bundle shows the waveform as stacked panels over a shared time axis (amplitude,
-// phase, frequency offset, gradient; nil series are left out) together with the
-// caller's properties table t in text/plain and text/html (text/html also holds
-// the SVG inline). Time is drawn in µs, ms or s and the frequency in Hz or kHz,
-// whichever reads best; application/json keeps SI-style units as given:
+// Bundles shows the waveform as stacked panels over a shared time axis
+// (amplitude, phase, frequency offset, gradient; nil series are left out; a
+// figure as for a Profile), then the caller's properties table t in text/plain
+// and text/html. Time is drawn in µs, ms or s and the frequency in Hz or kHz,
+// whichever reads best; the data under ResultMIME keeps the units as given:
 // {"kind": "waveform", "title", "time": {"label", "unit": "s", "values"},
 // "series": [{"quantity", "unit", "values"}], "properties": table}.
-func (w Waveform) Bundle(t Table) Bundle {
-	svg := w.SVG()
-	return Bundle{
-		"text/plain":       figurePlain(w.Title, t, w.caption()),
-		"text/html":        figureHTML(svg, t),
-		"image/svg+xml":    svg,
-		"application/json": w.json(t),
-	}
+func (w Waveform) Bundles(t Table) []Bundle {
+	return figureBundles(w, w.SVG(), w.Title, w.caption(), t, w.JSON(t))
 }
+
+// Bundle is the figure of Bundles alone.
+func (w Waveform) Bundle(t Table) Bundle { return w.Bundles(t)[0] }
 
 // waveSeries is one non-nil series of a waveform with its unit as stored.
 type waveSeries struct {
@@ -53,7 +51,7 @@ func (w Waveform) caption() string {
 	if len(qs) == 0 {
 		return "(no waveform samples)"
 	}
-	return fmt.Sprintf("(figure: %s against time, %s; all values in application/json)",
+	return fmt.Sprintf("(figure: %s against time, %s; data in "+ResultMIME+")",
 		strings.Join(qs, ", "), plural(len(w.Time), "sample"))
 }
 
@@ -82,7 +80,12 @@ func scaled(v []float64, f float64) []float64 {
 }
 
 // SVG renders the waveform figure alone.
-func (w Waveform) SVG() string {
+func (w Waveform) SVG() string { return w.stack().svg() }
+
+func (w Waveform) draw(nc canvasMaker) vg.CanvasWriterTo { return w.stack().draw(nc) }
+
+// stack lays out the waveform's panels.
+func (w Waveform) stack() stack {
 	tf, tu := timeScale(w.Time)
 	tx := scaled(w.Time, tf)
 	s := stack{title: w.Title, xlabel: axisLabel("time", tu), fromZero: true, xpad: 0.015}
@@ -110,7 +113,7 @@ func (w Waveform) SVG() string {
 	if len(s.panels) == 0 {
 		s.panels = []panel{{label: "(no samples)"}}
 	}
-	return s.svg()
+	return s
 }
 
 // phaseWhereOn leaves the phase out (NaN) where the amplitude is exactly zero:

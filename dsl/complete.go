@@ -178,7 +178,7 @@ func (c completer) candidates(before, prefix string) []string {
 		}
 	}
 	if first == "export" && len(toks) == 1 {
-		return append(c.st.pulseNames(), "sweep")
+		return append(c.st.pulseNames(), "sweep", "figure")
 	}
 	if first == "export" && len(toks) == 2 && last.Kind == tIdent {
 		return []string{"to"}

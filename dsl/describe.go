@@ -133,11 +133,11 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 		} else if w != "" {
 			t.Notes = append([]string{"warning: " + w}, t.Notes...)
 		}
-		b, err := ev.buildBundle(func() display.Bundle { return waveformBundle(waveformOf(d), t) })
+		f, err := ev.buildBundle(func() figureOut { return waveformBundle(waveformOf(d), t) })
 		if err != nil {
 			return err
 		}
-		ev.emit(b)
+		ev.emitFigure(f)
 	}
 	return nil
 }
@@ -147,9 +147,9 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 // the evaluator returns ctx.Err() at once and the abandoned build, which touches
 // no session state, finishes in the background and is dropped. A panic in f is
 // raised again on the evaluator's goroutine, where the session recovers it.
-func (ev *evaluator) buildBundle(f func() display.Bundle) (display.Bundle, error) {
+func (ev *evaluator) buildBundle(f func() figureOut) (figureOut, error) {
 	type result struct {
-		b     display.Bundle
+		b     figureOut
 		panic any
 	}
 	ch := make(chan result, 1)
@@ -168,7 +168,7 @@ func (ev *evaluator) buildBundle(f func() display.Bundle) (display.Bundle, error
 		}
 		return r.b, nil
 	case <-ev.ctx.Done():
-		return nil, ev.ctx.Err()
+		return figureOut{}, ev.ctx.Err()
 	}
 }
 

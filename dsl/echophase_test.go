@@ -7,7 +7,7 @@ import (
 )
 
 // mapZ runs a cell whose last output is a map over a one-point second axis and
-// returns its values along the first axis, decoded from the application/json.
+// returns its values along the first axis, decoded from its data (display.ResultMIME).
 func mapZ(t *testing.T, src string) []float64 {
 	t.Helper()
 	_, raw := lastOutput(t, src)

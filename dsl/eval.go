@@ -18,8 +18,9 @@ type state struct {
 	nucleus physics.Nucleus
 	field   float64 // T; 0: not set
 	names   map[string]*binding
-	seq     int         // definition counter, for listing names in order
-	last    *sweepTable // the last sweep's data, for `export sweep to "file.csv"`
+	seq     int            // definition counter, for listing names in order
+	last    *sweepTable    // the last sweep's data, for `export sweep to "file.csv"`
+	figure  display.Figure // the last figure, for `export figure to "file.svg"`
 }
 
 // binding is a named quantity or a named pulse.

@@ -88,6 +88,9 @@ func (ev *evaluator) writeFile(name string, at Pos, markers []string, write func
 // export runs `export NAME to "file.csv"`.
 // `export sweep to "file.csv"` writes the last sweep's data instead.
 func (ev *evaluator) export(s *ExportStmt) error {
+	if s.Name.Name == "figure" {
+		return ev.exportFigure(s) // figure_export.go
+	}
 	markers := []string{exportMarker, sweepMarker}
 	if s.Name.Name == "sweep" {
 		t := ev.st.last

@@ -105,10 +105,10 @@ func TestBuildBundleInterrupt(t *testing.T) {
 		<-started
 		cancel()
 	}()
-	_, err := ev.buildBundle(func() display.Bundle {
+	_, err := ev.buildBundle(func() figureOut {
 		close(started)
 		<-release // a build that would never end before the interrupt
-		return nil
+		return figureOut{}
 	})
 	if !errors.Is(err, context.Canceled) {
 		t.Fatalf("error %v, want context.Canceled", err)
@@ -120,6 +120,6 @@ func TestBuildBundleInterrupt(t *testing.T) {
 			t.Errorf("recovered %v, want the build's panic", r)
 		}
 	}()
-	ev.buildBundle(func() display.Bundle { panic("bundle fault") })
+	ev.buildBundle(func() figureOut { panic("bundle fault") })
 	t.Errorf("buildBundle returned after its build panicked")
 }

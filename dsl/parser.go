@@ -358,9 +358,9 @@ func (p *parser) str() (string, Pos) {
 	return t.Text[1 : len(t.Text)-1], t.Pos
 }
 
-// export := "export" NAME "to" STRING
+// export := "export" (NAME | "sweep" | "figure") "to" STRING
 func (p *parser) export(kw token) Stmt {
-	name := p.ident("a pulse name, or `sweep` for the last sweep's data")
+	name := p.ident("a pulse name, `sweep` for the last sweep's data or `figure` for the last figure")
 	p.word("to")
 	path, pp := p.str()
 	return &ExportStmt{P: kw.Pos, Name: name, Path: path, PathP: pp}

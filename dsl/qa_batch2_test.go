@@ -21,7 +21,8 @@ func cellBundles(t *testing.T, src string) []display.Bundle {
 }
 
 // Two sweeps that differ only in their `with` settings must be told apart in
-// every representation: text, HTML, the SVG title and the JSON.
+// every representation: text, the SVG title and the JSON (the table after the
+// figure leaves the title to it).
 func TestSweepSettingsInTitle(t *testing.T) {
 	const pulse = "field 7 T\npulse p = rect(duration = 1 ms, flip = 90 deg)\n"
 	cases := []struct {
@@ -37,8 +38,8 @@ func TestSweepSettingsInTitle(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			bs := cellBundles(t, pulse+c.sweep)
-			b := bs[len(bs)-1]
-			for _, mime := range []string{"text/plain", "text/html", "image/svg+xml"} {
+			b := lastFigure(bs)
+			for _, mime := range []string{"text/plain", "image/svg+xml"} {
 				s, _ := b[mime].(string)
 				if !strings.Contains(s, c.want) {
 					t.Errorf("%s lacks %q:\n%.400s", mime, c.want, s)
@@ -47,7 +48,7 @@ func TestSweepSettingsInTitle(t *testing.T) {
 					t.Errorf("%s names settings that were not given:\n%.400s", mime, s)
 				}
 			}
-			raw, _ := json.Marshal(b["application/json"])
+			raw, _ := json.Marshal(lastFigure(bs)[display.ResultMIME])
 			var data struct {
 				Title    string
 				Settings map[string]string
@@ -87,7 +88,7 @@ func TestEnergyCautionInFigure(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			bs := cellBundles(t, pulse+c.sweep)
-			svg, _ := bs[len(bs)-1]["image/svg+xml"].(string)
+			svg, _ := lastFigure(bs)["image/svg+xml"].(string)
 			for _, w := range []string{"not SAR", "IEC 60601-2-33", "safety officer"} {
 				if got := strings.Contains(svg, w); got != c.caution {
 					t.Errorf("svg has %q: %v, want %v", w, got, c.caution)

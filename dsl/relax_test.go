@@ -151,8 +151,12 @@ func TestRelaxMask(t *testing.T) {
 func TestT2DefaultsToTwiceT1(t *testing.T) {
 	run := func(src string) (map[string]json.RawMessage, string) {
 		t.Helper()
-		out, b := lastJSON(t, src)
-		text, _ := b["text/plain"].(string)
+		out, _ := lastJSON(t, src)
+		var text string // the figure's and its table's
+		for _, b := range cellBundles(t, src) {
+			s, _ := b["text/plain"].(string)
+			text += s + "\n"
+		}
 		return out, text
 	}
 	const pulse = "pulse p = rect(duration = 20 ms, flip = 30 deg)\n"

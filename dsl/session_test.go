@@ -198,6 +198,8 @@ func TestComplete(t *testing.T) {
 		{"sweep hard over offset -1 kHz to 1 kHz ", []string{"points", "step"}, nil},
 		{"report hard as m", []string{"markdown"}, nil},
 		{"help sw", []string{"sweep"}, nil},
+		{"export f", []string{"figure"}, nil},
+		{"export ", []string{"hard", "sweep", "figure"}, nil},
 		{"export sweep ", []string{"to"}, []string{"tbw", "te"}},
 	}
 	// A file name follows `to` and `from`: nothing of the session fits there.
@@ -296,7 +298,8 @@ func TestExportRefusesForeignFile(t *testing.T) {
 }
 
 // The outputs follow LANGUAGE.md "Output": text/plain always, tables with
-// text/html, plots as SVG, sweep data as JSON.
+// text/html, figures as SVG and PNG with their data as JSON and no text/html,
+// each followed by its table.
 func TestBundleKinds(t *testing.T) {
 	s := NewSession(t.TempDir())
 	var got []display.Bundle
@@ -304,11 +307,18 @@ func TestBundleKinds(t *testing.T) {
 	if err := s.Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { got = append(got, b) }}); err != nil {
 		t.Fatal(err)
 	}
-	want := [][]string{{"text/plain"}, {"text/plain", "text/html", "image/svg+xml"}, {"text/plain", "text/html", "image/svg+xml", "application/json"}, {"text/plain", "text/html", "image/svg+xml", "application/json"}, {"text/plain", "text/html"}}
+	fig := []string{"text/plain", "image/svg+xml", "image/png", display.ResultMIME}
+	table := []string{"text/plain", "text/html"}
+	// pulse; describe: figure, properties; profile: figure, features; map:
+	// figure, features; report.
+	want := [][]string{{"text/plain"}, fig, table, fig, table, fig, table, append(table, display.ResultMIME)}
 	if len(got) != len(want) {
 		t.Fatalf("%d bundles, want %d", len(got), len(want))
 	}
 	for i, w := range want {
+		if len(got[i]) != len(w) {
+			t.Errorf("bundle %d has %d types, want %q", i, len(got[i]), w)
+		}
 		for _, k := range w {
 			if _, ok := got[i][k]; !ok {
 				t.Errorf("bundle %d lacks %s", i, k)

@@ -435,12 +435,12 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emit(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote, notes, leftCells), set))
+			ev.emitFigure(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote, notes, leftCells), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return nil
 	}
-	ev.emit(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start, notes), set))
+	ev.emitFigure(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start, notes), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 	return nil
 }
@@ -1107,7 +1107,7 @@ func t2FromT1(axes []*sweepAxis, set *settings) bool {
 const t2FromT1Note = "t2 not given: taken as 2·t1 at every point, the longest T2 consistent with T1 (T2 ≤ 2·T1; with no transverse decay at all |M| would exceed M0); give t2 for a real sample's value."
 
 // profileOutput draws the curves of a one-axis sweep with its summary.
-func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64, notes []string) display.Bundle {
+func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64, notes []string) figureOut {
 	x := a.display()
 	prof := display.Profile{
 		Title: title,
@@ -1359,7 +1359,7 @@ func colourRange(q string) (lo, hi float64) {
 
 // mapOutput draws one quantity of one pulse over two axes; leftOut cells were not
 // simulated (t2 > 2·t1).
-func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) display.Bundle {
+func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) figureOut {
 	// Z[iy][ix] with the first axis horizontal.
 	z := make([][]float64, n1)
 	for iy := range z {

@@ -10,7 +10,7 @@ import (
 )
 
 // sweepJSON runs a cell whose last output is a sweep and returns its curves by
-// quantity, decoded from the application/json of the bundle.
+// quantity, decoded from the data (display.ResultMIME) of the bundle.
 func sweepJSON(t *testing.T, src string) map[string][]float64 {
 	t.Helper()
 	_, raw := lastOutput(t, src)
@@ -85,10 +85,10 @@ func TestSweepCheckValues(t *testing.T) {
 func TestPPMAxis(t *testing.T) {
 	var last display.Bundle
 	src := "field 3 T\npulse p = rect(duration = 1 ms, flip = 90 deg)\nsweep p over offset -2 ppm to 2 ppm points 3 show mz"
-	if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { last = b }}); err != nil {
+	if err := NewSession(t.TempDir()).Exec(context.Background(), src, Sink{Display: keepLast(&last)}); err != nil {
 		t.Fatal(err)
 	}
-	raw, _ := json.Marshal(last["application/json"])
+	raw, _ := json.Marshal(last[display.ResultMIME])
 	var data struct {
 		X struct {
 			Unit    string
