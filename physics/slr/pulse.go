@@ -2,7 +2,6 @@ package slr
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 
@@ -165,45 +164,11 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	if spec.Design != Linear {
 		dinf, taps = DInf(2*d1, d2*d2/2), 2*n-1
 	}
-	tooSmall := func() (*shape.Pulse, *Info, error) {
-		// The design needs a wider transition than D∞ gives (see shaping):
-		// search upward from the D∞ bound for a product that designs.
-		need := math.Max(tbw, float64(n)*dinf/float64(taps)) * 1.02
-		found := false
-		if !suggest {
-			return fail("tbw: got %g, too small", tbw)
-		}
-		for range 12 {
-			need = math.Ceil(need*1000) / 1000
-			// Near the bound a design may succeed and a slightly larger
-			// one fail: suggest a product whose neighbours design too.
-			ok := true
-			for _, k := range []float64{1, 1.001, 1.05} {
-				s := spec
-				s.TBW = need * k
-				if _, _, err := design(ctx, s, c, gamma, false); err != nil {
-					ok = false
-					break
-				}
-			}
-			if ok {
-				found = true
-				break
-			}
-			if err := ctx.Err(); err != nil {
-				return nil, nil, fmt.Errorf("slr: %w", err)
-			}
-			need *= 1.08
-		}
-		if !found {
-			return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want larger ripples", tbw, d1, d2, pass, stop, role, spec.Design)
-		}
-		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want at least %.4g, or larger ripples",
-			tbw, d1, d2, pass, stop, role, spec.Design, need)
-	}
 	if fp, _ := edges(n, taps, tbw, dinf); !(fp > 0) {
-		// fp > 0 ⇔ tbw > n·D∞/taps.
-		return tooSmall()
+		// fp > 0 ⇔ W < 1 ⇔ tbw > n·D∞/taps: the transition fits the band.
+		need := math.Ceil(float64(n)*dinf/float64(taps)*1.001*1000) / 1000
+		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want more than %.4g, or larger ripples",
+			tbw, d1, d2, pass, stop, role, spec.Design, need)
 	}
 	if _, fs := edges(n, taps, tbw, dinf); !(fs < 0.5) {
 		need := n
@@ -227,15 +192,10 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 			putCepstrum(cep)
 		}
 	}()
-	// Where the passband ripple could carry |β| above 1, the passband is kept
-	// below its value at zero offset (see shaping).
+	// Where the passband ripple could carry |β| above 1, zero offset is kept
+	// the passband's largest amplitude (see lowpass).
 	top := math.Sin(flip/2)*(1+d1) > 1-betaMargin
 	h, fp, fs, method, err := betaFilter(ctx, n, tbw, d1, d2, spec.Design, top, cep)
-	if errors.Is(err, errNarrow) {
-		putCepstrum(cep)
-		cep = nil
-		return tooSmall()
-	}
 	if err != nil {
 		return nil, nil, fmt.Errorf("slr: %w", err)
 	}

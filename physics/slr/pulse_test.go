@@ -233,8 +233,8 @@ func TestErrors(t *testing.T) {
 		{"no duration", func(s *Spec, c *shape.Common) { c.Duration = 0 }, "duration: got 0", nil, ""},
 		{"both gradient and thickness", func(s *Spec, c *shape.Common) { c.Gradient, c.Thickness = 0.01, 0.005 }, "gradient and thickness", nil, ""},
 		{"bad design", func(s *Spec, c *shape.Common) { s.Design = 7 }, "design: got", nil, ""},
-		{"tbw too small", func(s *Spec, c *shape.Common) { s.TBW = 1.5 }, "too small", func(s *Spec, c *shape.Common, v float64) { s.TBW = v * 1.001 }, "want at least "},
-		{"tbw too small, minimum phase", func(s *Spec, c *shape.Common) { s.TBW = 0.8; s.Design = Minimum }, "too small", func(s *Spec, c *shape.Common, v float64) { s.TBW = v * 1.001 }, "want at least "},
+		{"tbw too small", func(s *Spec, c *shape.Common) { s.TBW = 1.5 }, "too small", func(s *Spec, c *shape.Common, v float64) { s.TBW = v * 1.001 }, "want more than "},
+		{"tbw too small, minimum phase", func(s *Spec, c *shape.Common) { s.TBW = 0.8; s.Design = Minimum }, "too small", func(s *Spec, c *shape.Common, v float64) { s.TBW = v * 1.001 }, "want more than "},
 		{"too few samples", func(s *Spec, c *shape.Common) { s.TBW = 12; c.Samples = 12 }, "samples: got 12", func(s *Spec, c *shape.Common, v float64) { c.Samples = int(v) }, "want at least "},
 		{"too few samples, maximum phase", func(s *Spec, c *shape.Common) { s.TBW = 12; c.Samples = 12; s.Design = Maximum }, "samples: got 12", func(s *Spec, c *shape.Common, v float64) { c.Samples = int(v) }, "want at least "},
 	}
