@@ -126,25 +126,47 @@ func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 // One point departs from the plain design: the amplitude at zero offset is
 // pinned to 1 (weight dcWeight), so that the on-resonance rotation is the
 // nominal flip rather than anywhere within the passband ripple. With top (for
-// 180° designs, whose |β| cannot exceed 1) the passband is centred d1 below 1,
-// so that zero offset is also the passband's largest amplitude. The edges are
-// the published ones either way.
+// 180° designs, whose |β| cannot exceed 1, so that the filter is scaled by its
+// largest amplitude) it is pinned to the top of the passband ripple of the
+// plain design, 1 + δ, so that zero offset is the passband's largest amplitude
+// and keeps |β| = 1 after scaling.
 func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool) ([]float64, string, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, "", err
 	}
-	pass := 1.0
+	bands := []Band{{0, fp, 1, 1}, {fs, 0.5, 0, d1 / d2}}
+	dc := 1.0
+	var ext []float64
 	if top {
-		pass = 1 - d1
+		// The levelled error δ of the plain design (D∞ is an estimate): the
+		// top of its passband ripple is 1 + δ.
+		_, e, delta, err := remez(taps, bands, nil, gridDensity, nil)
+		if err == nil {
+			dc, ext = 1+delta, e
+		}
 	}
-	bands := []Band{{0, fp, pass, 1}, {fs, 0.5, 0, d1 / d2}}
 	tg := func(i int, f float64) (float64, float64) {
 		if i == 0 && f == 0 {
-			return 1, dcWeight
+			return dc, dcWeight
 		}
 		return bands[i].Gain, bands[i].Weight
 	}
-	h, _, _, err := remez(taps, bands, nil, gridDensity, tg)
+	h, _, _, err := remez(taps, bands, ext, gridDensity, tg)
+	// The largest amplitude between grid points may still exceed the pinned
+	// one by a little: pin to it again (a shortfall ε of |β(0)| costs √(8ε)
+	// rad of flip).
+	for k := 0; top && err == nil && k < 6; k++ {
+		mx := dc
+		const m = 512
+		for i := 1; i <= m; i++ {
+			mx = math.Max(mx, zeroPhase(h, fs*float64(i)/m))
+		}
+		if mx <= dc*(1+1e-9) {
+			break
+		}
+		dc = 2*mx - dc // the excess grows as dc does: step beyond it
+		h, _, _, err = remez(taps, bands, ext, gridDensity, tg)
+	}
 	if errors.Is(err, ErrNoConvergence) {
 		h, err = LeastSquares(taps, bands)
 		if err == nil {
@@ -173,6 +195,83 @@ func zeroPhase(h []float64, f float64) float64 {
 	return s
 }
 
+// centred designs the published lowpass of taps coefficients for an n-sample
+// pulse of time-bandwidth product tbw: the transition of D∞/taps cycles/sample
+// (Herrmann, Rabiner & Chan 1973; Pauly et al. 1991), centred first on
+// tbw/(2n) (the published edges, see edges). The role's profile is half-way
+// where the filter's amplitude is level, which is not the transition's centre
+// and moves within it with the ripples and with tbw (by a few per cent at
+// TBW 4 to 12); the transition, its width kept, is then moved by secant steps
+// until that point is at tbw/(2n) within centreTol. It returns the edges used.
+func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, top bool) (h []float64, fp, fs float64, method string, err error) {
+	want := tbw / (2 * float64(n))
+	p0, s0 := edges(n, taps, tbw, DInf(d1, d2))
+	half := (s0 - p0) / 2
+	c := want
+	best := math.Inf(1)
+	var bh []float64
+	var bp, bs float64
+	for range 6 {
+		fp, fs = c-half, c+half
+		if !(fp > 0 && fs < 0.5) {
+			break
+		}
+		h, method, err = lowpass(ctx, taps, fp, fs, d1, d2, top)
+		if err != nil {
+			return nil, 0, 0, "", err
+		}
+		f := crossing(h, level*zeroPhase(h, 0), fp, fs)
+		if math.IsNaN(f) {
+			break
+		}
+		if d := math.Abs(f - want); d < best {
+			best, bh, bp, bs = d, h, fp, fs
+		}
+		if math.Abs(f-want) <= centreTol*want {
+			break
+		}
+		c += want - f // the crossing moves with the transition
+	}
+	if bh == nil {
+		// No crossing found: the published edges as they are.
+		fp, fs = p0, s0
+		h, method, err = lowpass(ctx, taps, fp, fs, d1, d2, top)
+		return h, fp, fs, method, err
+	}
+	return bh, bp, bs, method, nil
+}
+
+// centreTol is how close to tbw/(2n) centred puts the role's half-way point.
+const centreTol = 1e-3
+
+// crossing returns the frequency between lo and hi at which the amplitude of
+// the symmetric filter h falls through level (bisection, after a scan for the
+// first fall); NaN if it does not.
+func crossing(h []float64, level, lo, hi float64) float64 {
+	const steps = 32
+	prev := lo
+	if zeroPhase(h, lo) < level {
+		return math.NaN()
+	}
+	for i := 1; i <= steps; i++ {
+		f := lo + (hi-lo)*float64(i)/steps
+		if zeroPhase(h, f) < level {
+			a, b := prev, f
+			for range 40 {
+				m := (a + b) / 2
+				if zeroPhase(h, m) < level {
+					b = m
+				} else {
+					a = m
+				}
+			}
+			return (a + b) / 2
+		}
+		prev = f
+	}
+	return math.NaN()
+}
+
 // betaFilter designs the β filter of n taps with ripples d1, d2 and the
 // published band edges (see edges). Minimum phase follows the published
 // construction: a linear-phase filter of 2n−1 taps with ripples 2δ1 and δ2²/2,
@@ -180,16 +279,15 @@ func zeroPhase(h []float64, f float64) float64 {
 // spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler, Electron.
 // Lett. 6:329, 1970, from memory); maximum phase is its time reversal. It
 // returns the band edges used (cycles/sample) and the method.
-func betaFilter(ctx context.Context, n int, tbw, d1, d2 float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
+func betaFilter(ctx context.Context, n int, tbw, d1, d2, level float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
 	if design == Linear {
-		fp, fs = edges(n, n, tbw, DInf(d1, d2))
-		h, method, err = lowpass(ctx, n, fp, fs, d1, d2, top)
+		h, fp, fs, method, err = centred(ctx, n, n, tbw, d1, d2, level, top)
 		return h, fp, fs, method, err
 	}
 	l1, l2 := 2*d1, d2*d2/2
 	taps := 2*n - 1
-	fp, fs = edges(n, taps, tbw, DInf(l1, l2))
-	h2, method, err := lowpass(ctx, taps, fp, fs, l1, l2, top)
+	// |β|² ∝ the prototype: |β| = level where it is level².
+	h2, fp, fs, method, err := centred(ctx, n, taps, tbw, l1, l2, level*level, top)
 	if err != nil {
 		return nil, 0, 0, "", err
 	}

@@ -60,19 +60,23 @@ func roleFlip(r shape.Role) float64 {
 // samples or dwell, flip for excitation, phase, center, gradient or thickness) for
 // a nucleus of gyromagnetic ratio gamma (rad·s⁻¹·T⁻¹). Inversion and refocusing
 // pulses are 180°, saturation 90°; excitation takes c.Flip in (0, 180°); c.Peak
-// cannot be given, as the design sets the amplitude. The bandwidth is
-// TBW/duration between the 50 % points of |β|. Errors say which value cannot be
-// met and the closest that can.
+// cannot be given, as the design sets the amplitude. The bandwidth TBW/duration
+// is the full width of the role's own profile where it is half-way between its
+// pass and stop values (excitation |Mxy|, inversion and saturation Mz,
+// refocusing |β|²). Errors say which value cannot be met and the closest that
+// can.
 //
-// The profile ripples hold within the published relations, the transition being
-// widened from the D∞ estimate as far as the design needs for them (see
-// shaping). The on-resonance rotation is the nominal flip: exactly (to about
-// 0.01°) for excitation and saturation, whose β filter has amplitude 1 at zero
-// offset; for 180° designs |β| at zero offset is the passband's largest, kept
-// 1e-6 below 1, which leaves the flip about 0.2° short of 180° (up to 0.6° for
-// linear phase, where the passband may exceed its zero-offset value by a few
-// 1e-6 between design grid points). The first and last samples are small
-// against the peak (about 1 % at TBW 4 and above; see shaping).
+// The β filter is the published equiripple design (Pauly et al. 1991): pass and
+// stop edges (1 ∓ W)·TBW/(2T), W = D∞(δ1, δ2)/TBW, with the filter ripples of
+// Ripples, moved together (see centred) so that the role's profile is half-way
+// at TBW/(2T). The profile ripples are those the published relations give
+// (within 2× of the asked at TBW 4, 8 and 12; 90° excitation exceeds that
+// between, as the published design does). The on-resonance rotation is the
+// nominal flip: exactly (to about 0.01°) for excitation and saturation, whose β
+// filter has amplitude 1 at zero offset; for 180° designs |β| at zero offset is
+// pinned to the top of the passband and kept 1e-6 below 1, which leaves the
+// flip about 0.2° short of 180° (up to 0.6° for minimum phase). The first and
+// last samples carry the equiripple design's end spikes (see the package doc).
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
 	p, _, err := design(context.Background(), spec, c, gamma, true)
 	return p, err
@@ -195,7 +199,7 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	// Where the passband ripple could carry |β| above 1, zero offset is kept
 	// the passband's largest amplitude (see lowpass).
 	top := math.Sin(flip/2)*(1+d1) > 1-betaMargin
-	h, fp, fs, method, err := betaFilter(ctx, n, tbw, d1, d2, spec.Design, top, cep)
+	h, fp, fs, method, err := betaFilter(ctx, n, tbw, d1, d2, HalfLevel(role, flip), spec.Design, top, cep)
 	if err != nil {
 		return nil, nil, fmt.Errorf("slr: %w", err)
 	}

@@ -178,7 +178,8 @@ def measure(role, flip, rf, fp, fs, tbw):
     stopr = float(np.abs(p[f >= fs] - sv).max())
     inpass = np.abs(p - pv) <= 2 * RIPPLE
     instop = np.abs(p - sv) <= 2 * RIPPLE
-    pe = f[int(np.argmax(~inpass)) - 1]
+    first_out = int(np.argmax(~inpass))
+    pe = f[first_out - 1] if first_out > 0 else 0.0
     bad = np.nonzero(~instop)[0]
     se = f[bad[-1] + 1]
     return {
