@@ -319,8 +319,14 @@ func betaFilter(ctx context.Context, n int, tbw, d1, d2, level float64, design D
 }
 
 // betaMargin keeps max|β| on the design grid at most 1 − betaMargin, so that
-// |α| = √(1 − |β|²) stays away from zero and its cepstrum converges.
-const betaMargin = 1e-6
+// |α| = √(1 − |β|²) stays away from zero and its cepstrum converges; a margin
+// ε costs √(8ε) rad of a 180° flip (0.05° here). Minimum and maximum phase,
+// whose β is itself a cepstral factor with less accurate magnitude, keep
+// phaseMargin (0.16°) so that |α|² + |β|² stays within 1e-6 of 1.
+const (
+	betaMargin  = 1e-7
+	phaseMargin = 1e-6
+)
 
 // gridFactor sets the minimum-phase grid to gridFactor·n points (at least 2^14):
 // with betaMargin it keeps the forward transform of the RF within about 1e-8 of β.
@@ -329,15 +335,15 @@ const gridFactor = 256
 // polynomials scales the unit β filter h to β = i·sin(θ/2)·h (the factor i makes
 // phase 0 put B1 along +x, as in package physics) and completes α as the
 // minimum-phase sequence with |α|² = 1 − |β|² (Pauly et al. 1991).
-func polynomials(h []float64, flip float64, cep *cepstrum) (a, b []complex128, scaled bool) {
+func polynomials(h []float64, flip, margin float64, cep *cepstrum) (a, b []complex128, scaled bool) {
 	s := math.Sin(flip / 2)
 	H := cep.response(h)
 	peak := 0.0
 	for _, v := range H {
 		peak = math.Max(peak, cmplx.Abs(v))
 	}
-	if s*peak > 1-betaMargin {
-		s = (1 - betaMargin) / peak
+	if s*peak > 1-margin {
+		s = (1 - margin) / peak
 		scaled = true
 	}
 	mag := make([]float64, len(H))

@@ -74,9 +74,14 @@ func roleFlip(r shape.Role) float64 {
 // between, as the published design does). The on-resonance rotation is the
 // nominal flip: exactly (to about 0.01°) for excitation and saturation, whose β
 // filter has amplitude 1 at zero offset; for 180° designs |β| at zero offset is
-// pinned to the top of the passband and kept 1e-6 below 1, which leaves the
-// flip about 0.2° short of 180° (up to 0.6° for minimum phase). The first and
-// last samples carry the equiripple design's end spikes (see the package doc).
+// pinned to the top of the passband and kept 1e-7 below 1 (1e-6 for minimum
+// and maximum phase), which leaves the flip about 0.05° short of 180° (up to
+// 0.6° for minimum phase, whose cepstral factor loses a little). Off centre,
+// the default sampling takes 40 samples per cycle of the centre's phase ramp
+// and the field is divided by the sample-and-hold loss sinc(π·center·dwell),
+// so that the rotation at the band's centre is the one designed. The first
+// and last samples carry the equiripple design's end spikes (see the package
+// doc).
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
 	p, _, err := design(context.Background(), spec, c, gamma, true)
 	return p, err
@@ -203,7 +208,11 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	if err != nil {
 		return nil, nil, fmt.Errorf("slr: %w", err)
 	}
-	a, b, scaled := polynomials(h, flip, cep)
+	margin := betaMargin
+	if spec.Design != Linear {
+		margin = phaseMargin
+	}
+	a, b, scaled := polynomials(h, flip, margin, cep)
 	rf := Inverse(a, b)
 	p := &shape.Pulse{
 		Shape:     "slr",
@@ -217,6 +226,14 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	p.Wave.Dwell = make([]float64, n)
 	p.Wave.B1 = make([]complex128, n)
 	T := c.Duration
+	// The ramp held over each sample scales the field at the centre by
+	// sinc(π·center·dwell) (the spectrum of a sample-and-hold); dividing it
+	// out keeps the designed rotation at the band's centre (0.1 % of the flip,
+	// 0.2° of a 180°, at the default 40 samples per cycle).
+	hold := 1.0
+	if x := math.Pi * c.Center * dt; x != 0 {
+		hold = math.Sin(x) / x
+	}
 	for j, r := range rf {
 		p.Wave.Dwell[j] = dt
 		// rf = γ·B1·Δt. Phase and Center as for every shape: the ramp
@@ -225,7 +242,7 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 		// spin at offset Δf turns as exp(−i·2πΔf·t) in the carrier frame.
 		ph := c.Phase - 2*math.Pi*c.Center*((float64(j)+0.5)*dt-T/2)
 		s, co := math.Sincos(ph)
-		p.Wave.B1[j] = r / complex(gamma*dt, 0) * complex(co, s)
+		p.Wave.B1[j] = r / complex(gamma*dt*hold, 0) * complex(co, s)
 	}
 	if err := slice(p, c); err != nil {
 		return nil, nil, err
@@ -251,6 +268,9 @@ func orDefault(v, def float64) float64 {
 const (
 	samplesPerTBW    = 8
 	minSamplesPerTBW = 3
+	// centerSamplesPerCycle is the default samples per cycle of an off-centre
+	// band's phase ramp, as package shape takes for every other shape.
+	centerSamplesPerCycle = 40
 )
 
 // sampling returns the number of samples and the dwell from c for a design of
@@ -274,6 +294,16 @@ func sampling(c shape.Common, tbw float64) (int, float64, error) {
 	}
 	if n == 0 {
 		n = min(MaxSamples, max(DefaultSamples, int(math.Ceil(samplesPerTBW*tbw))))
+		// An off-centre band is a phase ramp held over each sample, which
+		// scales the band by sinc(π·center·dwell) (the spectrum of a
+		// sample-and-hold): as for every shape, the default takes at least
+		// centerSamplesPerCycle samples per cycle of the ramp (0.1 %).
+		if need := math.Ceil(centerSamplesPerCycle * math.Abs(c.Center) * c.Duration); need > float64(n) {
+			if need > MaxSamples {
+				return 0, 0, fmt.Errorf("center %g Hz over %g s needs %.0f samples (1/%d cycle each), want at most %d: give samples or dwell, or a shorter duration", c.Center, c.Duration, need, centerSamplesPerCycle, MaxSamples)
+			}
+			n = int(need)
+		}
 	}
 	if n < 8 || n > MaxSamples {
 		return 0, 0, fmt.Errorf("samples: got %d, want 8 to %d", n, MaxSamples)
@@ -284,28 +314,9 @@ func sampling(c shape.Common, tbw float64) (int, float64, error) {
 	return n, c.Duration / float64(n), nil
 }
 
-// slice sets the slice-select gradient: thickness = BW/(γ̄·G) (common practice).
+// slice sets the slice-select gradient as for every shape (shape.SetSlice): a
+// thickness is turned into a gradient through the measured width of the role's
+// own profile.
 func slice(p *shape.Pulse, c shape.Common) error {
-	if c.Gradient != 0 && c.Thickness != 0 {
-		return fmt.Errorf("slr: gradient and thickness: got both, want one")
-	}
-	g := c.Gradient
-	if c.Thickness != 0 {
-		if !(c.Thickness > 0) || math.IsInf(c.Thickness, 0) {
-			return fmt.Errorf("slr: thickness: got %g m, want > 0", c.Thickness)
-		}
-		g = 2 * math.Pi * p.Bandwidth / (math.Abs(p.Gamma) * c.Thickness)
-	}
-	if math.IsNaN(g) || math.IsInf(g, 0) {
-		return fmt.Errorf("slr: gradient: got %g T/m, want a finite value", g)
-	}
-	if g == 0 {
-		return nil
-	}
-	p.Gradient = g
-	p.Wave.Gradient = make([]float64, p.Wave.Len())
-	for j := range p.Wave.Gradient {
-		p.Wave.Gradient[j] = g
-	}
-	return nil
+	return shape.SetSlice(p, c)
 }

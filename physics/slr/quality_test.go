@@ -16,7 +16,7 @@ import (
 // et al. 1991), so the role's profile at zero offset is within the asked pass
 // ripple of its pass value (2× allowed, as for the ripple checks); 180° designs
 // pin |β(0)| to the top of the passband (lowpass) and keep it below 1 by
-// betaMargin, 0.16° of flip; the cepstral minimum-phase factor loses a little
+// betaMargin, 0.05° of flip (phaseMargin, 0.16°, for minimum phase); the cepstral minimum-phase factor loses a little
 // more: at least 179.4°.
 func TestOnResonanceFlip(t *testing.T) {
 	g := proton(t)
