@@ -66,7 +66,7 @@ var commonArgs = []argSpec{
 	{Name: "samples", Kind: argCount, Group: "sampling", Default: "the shape's own", Help: "number of waveform samples"},
 	{Name: "dwell", Dim: dimTime, Group: "sampling", Help: "sample length; must divide the duration"},
 	{Name: "gradient", Dim: dimGradient, Group: "slice", Help: "slice-select gradient played with the pulse"},
-	{Name: "thickness", Dim: dimLength, Group: "slice", Help: "slice thickness; derives the gradient from the bandwidth (thickness = BW/(γ̄·G))"},
+	{Name: "thickness", Dim: dimLength, Group: "slice", Help: "slice thickness as selected: the gradient comes from the measured width W of the role's own profile where it is half-way (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus), thickness = W/(γ̄·G)"},
 	{Name: "role", Kind: argWord, Words: []string{"excite", "invert", "refocus", "saturate"}, Help: "what the pulse is for; sets the default `show` quantity and the target of measured properties"},
 }
 
@@ -115,11 +115,11 @@ var shapes = []*shapeSpec{
 	},
 	{
 		Name:   "slr",
-		Help:   "Shinnar–Le Roux design for a role, with pass and stop ripples",
-		Method: "Shinnar–Le Roux (Pauly et al., IEEE TMI 10:53, 1991); filter length from D∞ (Herrmann, Rabiner & Chan 1973)",
+		Help:   "Shinnar–Le Roux design for a role, with pass and stop ripples; the role's own profile (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus) is half-way at ±bandwidth/2",
+		Method: "Shinnar–Le Roux (Pauly et al., IEEE TMI 10:53, 1991): equiripple β filter, transition D∞/TBW of the band (Herrmann, Rabiner & Chan 1973), edges (1 ∓ W)·TBW/(2T) moved together so the role's profile is half-way at TBW/(2T); on-resonance flip pinned",
 		Args: []argSpec{
-			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "width", Help: "time-bandwidth product"},
-			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
+			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "width", Help: "time-bandwidth product: the full width of the role's profile at half-way × duration"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "full width of the role's profile at half-way, instead of tbw (tbw = bandwidth × duration)"},
 			{Name: "pass", Dim: dimNumber, Default: "1%", Help: "pass-band ripple of the profile (fraction or %)"},
 			{Name: "stop", Dim: dimNumber, Default: "1%", Help: "stop-band ripple of the profile (fraction or %)"},
 			{Name: "design", Kind: argWord, Words: slr.DesignNames(), Default: "linear", Help: "phase of the underlying filter"},
@@ -469,8 +469,12 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 		return nil, errAt(ev.blame(err, args, callPos), "%s", asWritten(strings.TrimPrefix(err.Error(), spec.Name+": "), args, b))
 	}
 	if a, ok := args["thickness"]; ok && math.Abs(p.Gradient) > maxGradient {
-		return nil, errAt(a.Pos, "thickness %s needs a gradient of %s for a bandwidth of %s, over the limit of 1 T/m; want a thicker slice",
-			a.Val, Quantity{math.Abs(p.Gradient), dimGradient}.format("T/m"), Quantity{p.Bandwidth, dimFrequency})
+		bw, what := p.Bandwidth, "a bandwidth"
+		if p.Width > 0 {
+			bw, what = p.Width, "a measured profile width"
+		}
+		return nil, errAt(a.Pos, "thickness %s needs a gradient of %s for %s of %s, over the limit of 1 T/m; want a thicker slice",
+			a.Val, Quantity{math.Abs(p.Gradient), dimGradient}.format("T/m"), what, Quantity{bw, dimFrequency})
 	}
 	if n := p.Wave.Len(); n > maxPulseSamples {
 		at, what := callPos, "the shape's own sampling"
@@ -844,16 +848,29 @@ func pulseSummary(d *pulseDef) string {
 	} else if a, ok := d.Args["flip"]; ok && d.Spec != nil {
 		parts = append(parts, "rotation "+a.Val.String()+" by design")
 	}
+	// Design figures (from the shape's bandwidth) and, where a slice is
+	// selected, the measured width of the role's own profile beside them.
 	if p.Bandwidth != 0 {
-		parts = append(parts, "bandwidth "+Quantity{p.Bandwidth, dimFrequency}.String())
+		bw := "bandwidth " + Quantity{p.Bandwidth, dimFrequency}.String() + " (design)"
+		if p.Width > 0 {
+			bw = "bandwidth " + Quantity{p.Width, dimFrequency}.String() + " measured (" + Quantity{p.Bandwidth, dimFrequency}.String() + " design)"
+		}
+		parts = append(parts, bw)
 	}
 	if p.Role != shape.RoleNone {
 		parts = append(parts, "role "+p.Role.String())
 	}
 	if p.Gradient != 0 {
 		parts = append(parts, "gradient "+Quantity{p.Gradient, dimGradient}.format("mT/m"))
-		if p.Bandwidth != 0 {
-			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")+" (design)")
+		design := "thickness " + Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm") + " (design)"
+		switch {
+		case p.Width > 0 && p.Bandwidth != 0:
+			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Width, p.Gamma, p.Gradient), dimLength}.format("mm")+
+				" measured ("+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")+" design)")
+		case p.Width > 0:
+			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Width, p.Gamma, p.Gradient), dimLength}.format("mm")+" measured")
+		case p.Bandwidth != 0:
+			parts = append(parts, design)
 		}
 	}
 	return strings.Join(parts, ", ")
