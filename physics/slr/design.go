@@ -130,17 +130,17 @@ func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 // largest amplitude) it is pinned to the top of the passband ripple of the
 // plain design, 1 + δ, so that zero offset is the passband's largest amplitude
 // and keeps |β| = 1 after scaling.
-func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool) ([]float64, string, error) {
+func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool, init []float64, density int) ([]float64, []float64, string, error) {
 	if err := ctx.Err(); err != nil {
-		return nil, "", err
+		return nil, nil, "", err
 	}
 	bands := []Band{{0, fp, 1, 1}, {fs, 0.5, 0, d1 / d2}}
 	dc := 1.0
-	var ext []float64
+	ext := init
 	if top {
 		// The levelled error δ of the plain design (D∞ is an estimate): the
 		// top of its passband ripple is 1 + δ.
-		_, e, delta, err := remez(taps, bands, nil, gridDensity, nil)
+		_, e, delta, err := remez(taps, bands, init, density, nil)
 		if err == nil {
 			dc, ext = 1+delta, e
 		}
@@ -151,7 +151,7 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool) ([
 		}
 		return bands[i].Gain, bands[i].Weight
 	}
-	h, _, _, err := remez(taps, bands, ext, gridDensity, tg)
+	h, e, _, err := remez(taps, bands, ext, density, tg)
 	// The largest amplitude between grid points may still exceed the pinned
 	// one by a little: pin to it again (a shortfall ε of |β(0)| costs √(8ε)
 	// rad of flip).
@@ -165,7 +165,7 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool) ([
 			break
 		}
 		dc = 2*mx - dc // the excess grows as dc does: step beyond it
-		h, _, _, err = remez(taps, bands, ext, gridDensity, tg)
+		h, e, _, err = remez(taps, bands, e, density, tg)
 	}
 	if errors.Is(err, ErrNoConvergence) {
 		h, err = LeastSquares(taps, bands)
@@ -175,9 +175,9 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool) ([
 				h[i] *= g
 			}
 		}
-		return h, "least squares", err
+		return h, nil, "least squares", err
 	}
-	return h, "remez", err
+	return h, e, "remez", err
 }
 
 // dcWeight pins the amplitude at zero offset (see lowpass): its weighted error
@@ -188,9 +188,13 @@ const dcWeight = 1e4
 // zeroPhase is the amplitude Σ h[k]·cos(2πf·(k − (L−1)/2)) of a symmetric filter.
 func zeroPhase(h []float64, f float64) float64 {
 	mid := float64(len(h)-1) / 2
+	// cos(ω(k − mid)) by rotation from k = 0, step ω (rounding grows as k·ε).
+	sw, cw := math.Sincos(2 * math.Pi * f)
+	sn, cs := math.Sincos(-2 * math.Pi * f * mid)
 	s := 0.0
-	for k, v := range h {
-		s += v * math.Cos(2*math.Pi*f*(float64(k)-mid))
+	for _, v := range h {
+		s += v * cs
+		cs, sn = cs*cw-sn*sw, sn*cw+cs*sw
 	}
 	return s
 }
@@ -208,38 +212,40 @@ func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, top b
 	p0, s0 := edges(n, taps, tbw, DInf(d1, d2))
 	half := (s0 - p0) / 2
 	c := want
-	best := math.Inf(1)
-	var bh []float64
-	var bp, bs float64
+	// Secant steps on a coarse grid, each warm-started from the last; then
+	// one design on the full grid from the coarse extremal set.
+	var ext []float64
+	found := false
 	for range 6 {
 		fp, fs = c-half, c+half
 		if !(fp > 0 && fs < 0.5) {
 			break
 		}
-		h, method, err = lowpass(ctx, taps, fp, fs, d1, d2, top)
+		h, ext, _, err = lowpass(ctx, taps, fp, fs, d1, d2, top, ext, coarseDensity)
 		if err != nil {
-			return nil, 0, 0, "", err
+			break
 		}
 		f := crossing(h, level*zeroPhase(h, 0), fp, fs)
 		if math.IsNaN(f) {
 			break
 		}
-		if d := math.Abs(f - want); d < best {
-			best, bh, bp, bs = d, h, fp, fs
-		}
+		found = true
 		if math.Abs(f-want) <= centreTol*want {
 			break
 		}
 		c += want - f // the crossing moves with the transition
 	}
-	if bh == nil {
+	if !found || !(c-half > 0 && c+half < 0.5) {
 		// No crossing found: the published edges as they are.
-		fp, fs = p0, s0
-		h, method, err = lowpass(ctx, taps, fp, fs, d1, d2, top)
-		return h, fp, fs, method, err
+		c, ext = want, nil
 	}
-	return bh, bp, bs, method, nil
+	fp, fs = c-half, c+half
+	h, _, method, err = lowpass(ctx, taps, fp, fs, d1, d2, top, ext, gridDensity)
+	return h, fp, fs, method, err
 }
+
+// coarseDensity is the design grid density of centred's secant steps.
+const coarseDensity = 4
 
 // centreTol is how close to tbw/(2n) centred puts the role's half-way point.
 const centreTol = 1e-3
