@@ -85,7 +85,7 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "zeros", Help: "time-bandwidth product (= number of zero crossings)"},
 			{Name: "lobes", Kind: argCount, Group: "zeros", Help: "number of lobes, main lobe included (tbw = lobes + 1, common practice)"},
-			{Name: "bandwidth", Dim: dimFrequency, Group: "zeros", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "zeros", Help: "measured band instead of tbw: the full width of the role's own profile at half-way (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus); the design tbw is chosen to give it"},
 			{Name: "window", Kind: argWord, Words: shape.WindowNames(), Default: "none", Help: "taper: Hann 0.5 + 0.5·cos(2πt/T) or Hamming 0.54 + 0.46·cos(2πt/T)"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
@@ -93,7 +93,7 @@ var shapes = []*shapeSpec{
 			if l, ok := b.vals["lobes"]; ok {
 				return shape.SincLobes(b.common(), b.gamma, int(l), w)
 			}
-			return shape.Sinc(b.common(), b.gamma, b.tbw(4), w)
+			return measuredBand(b, b.tbw(4), func(tbw float64) (*shape.Pulse, error) { return shape.Sinc(b.common(), b.gamma, tbw, w) })
 		},
 	},
 	{
@@ -103,14 +103,14 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "cutoff 1.1 % (T = 6σ)", Group: "width", Help: "time-bandwidth product (small-tip FWHM × duration)"},
 			{Name: "cutoff", Dim: dimNumber, Group: "width", Help: "relative amplitude at the ends, 0 to 1 (fraction or %)"},
-			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "measured band instead of tbw: the full width of the role's own profile at half-way (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus); the design tbw is chosen to give it"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
 			tbw, cut := b.tbw(0), b.num("cutoff", 0)
 			if tbw == 0 && cut == 0 {
 				cut = math.Exp(-4.5) // T = 6σ (common practice)
 			}
-			return shape.Gauss(b.common(), b.gamma, tbw, cut)
+			return measuredBand(b, tbw, func(tbw float64) (*shape.Pulse, error) { return shape.Gauss(b.common(), b.gamma, tbw, cut) })
 		},
 	},
 	{
@@ -279,6 +279,50 @@ func (b *builder) num(name string, def float64) float64 {
 	}
 	return def
 }
+
+// measuredBand builds an amplitude-modulated pulse with build at the design
+// time-bandwidth product tbw; when the bandwidth argument was given, it then
+// scales the design tbw by asked/measured until the measured width of the
+// role's own profile (shape.ProfileWidth) is the bandwidth asked within
+// bandTol, and records that width in Pulse.Width.
+func measuredBand(b *builder, tbw float64, build func(tbw float64) (*shape.Pulse, error)) (*shape.Pulse, error) {
+	p, err := build(tbw)
+	want, ok := b.vals["bandwidth"]
+	if err != nil || !ok {
+		return p, err
+	}
+	ctx := b.ctx
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	for range 6 {
+		w, werr := shape.ProfileWidth(ctx, p)
+		if werr != nil {
+			return p, nil // no half-way width: the design bandwidth stands
+		}
+		p.Width = w
+		if math.Abs(w-want) <= bandTol*want {
+			break
+		}
+		tbw *= want / w
+		q, err := build(tbw)
+		if err != nil {
+			return nil, err
+		}
+		p = q
+		p.Width = 0
+	}
+	if p.Width == 0 {
+		if w, err := shape.ProfileWidth(ctx, p); err == nil {
+			p.Width = w
+		}
+	}
+	return p, nil
+}
+
+// bandTol is how close to the asked bandwidth measuredBand brings the
+// measured width.
+const bandTol = 1e-3
 
 // tbw is the time-bandwidth product given as tbw, or as bandwidth × duration.
 func (b *builder) tbw(def float64) float64 {

@@ -105,8 +105,8 @@ type Pulse struct {
 	Freq      []float64 // Hz, instantaneous RF frequency relative to the carrier, per sample; nil if none
 	Gradient  float64   // T/m, constant slice-select gradient; 0: none
 	// Width is the measured full width (Hz) of the role's own profile at
-	// half-way (ProfileWidth), set where a gradient or thickness is given; 0
-	// otherwise. The selected thickness is Width/(γ̄·|Gradient|); the design
+	// half-way (ProfileWidth), set where a gradient or thickness is given (and
+	// by the language where a bandwidth was asked); 0 otherwise. The selected thickness is Width/(γ̄·|Gradient|); the design
 	// figure is Bandwidth/(γ̄·|Gradient|).
 	Width  float64
 	Center float64 // Hz
