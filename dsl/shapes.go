@@ -123,6 +123,7 @@ var shapes = []*shapeSpec{
 			{Name: "pass", Dim: dimNumber, Default: "1%", Help: "pass-band ripple of the profile (fraction or %)"},
 			{Name: "stop", Dim: dimNumber, Default: "1%", Help: "stop-band ripple of the profile (fraction or %)"},
 			{Name: "design", Kind: argWord, Words: slr.DesignNames(), Default: "linear", Help: "phase of the underlying filter"},
+			{Name: "stopband", Kind: argWord, Words: []string{"flat", "rising"}, Default: "flat", Help: "flat: the published equiripple stopband, whose ripples put spikes in the first and last samples (5–80 % of the peak); rising (linear phase only): the stopband weight rises away from the edge, which brings the end samples to about 1 % of the peak at some cost in ripple near the edges (most for 90° excite)"},
 		},
 		Build: buildSLR,
 	},

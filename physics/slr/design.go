@@ -130,7 +130,8 @@ func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 // largest amplitude) it is pinned to the top of the passband ripple of the
 // plain design, 1 + δ, so that zero offset is the passband's largest amplitude
 // and keeps |β| = 1 after scaling.
-func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool, init []float64, density int) ([]float64, []float64, string, error) {
+func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, init []float64, density int) ([]float64, []float64, string, error) {
+	top := sh.top
 	if err := ctx.Err(); err != nil {
 		return nil, nil, "", err
 	}
@@ -140,16 +141,13 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool, in
 	if top {
 		// The levelled error δ of the plain design (D∞ is an estimate): the
 		// top of its passband ripple is 1 + δ.
-		_, e, delta, err := remez(taps, bands, init, density, nil)
+		_, e, delta, err := remez(taps, bands, init, density, sh.target(bands, 1, 0))
 		if err == nil {
 			dc, ext = 1+delta, e
 		}
 	}
 	tg := func(i int, f float64) (float64, float64) {
-		if i == 0 && f == 0 {
-			return dc, dcWeight
-		}
-		return bands[i].Gain, bands[i].Weight
+		return sh.target(bands, dc, dcWeight)(i, f)
 	}
 	h, e, _, err := remez(taps, bands, ext, density, tg)
 	// The largest amplitude between grid points may still exceed the pinned
@@ -180,6 +178,35 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, top bool, in
 	return h, e, "remez", err
 }
 
+// shaping says how a β filter departs from the plain equiripple lowpass.
+type shaping struct {
+	// top pins zero offset to the top of the passband ripple (see lowpass).
+	top bool
+	// slope > 0 makes the stopband weight rise as (f/fs)^slope beyond the
+	// stopband edge fs (Spec.Rising): the flat stopband error of the
+	// equiripple design is a comb of equal ripples up to half the sampling
+	// rate, whose transform is a pair of spikes in the filter's end taps, so
+	// in the pulse's first and last samples; a rising weight lets the ripples
+	// decay away from the edge and lowers the spikes, at some cost in ripple
+	// near the edge. 0: the published flat stopband.
+	slope float64
+}
+
+// target returns the gain and weight at frequency f of band i, with zero
+// offset pinned to dc by weight pin (none when pin is 0).
+func (sh shaping) target(bands []Band, dc, pin float64) target {
+	fs := bands[1].Lo
+	return func(i int, f float64) (float64, float64) {
+		if i == 0 && f == 0 && pin > 0 {
+			return dc, pin
+		}
+		if i == 1 && sh.slope > 0 {
+			return 0, bands[1].Weight * math.Pow(f/fs, sh.slope)
+		}
+		return bands[i].Gain, bands[i].Weight
+	}
+}
+
 // dcWeight pins the amplitude at zero offset (see lowpass): its weighted error
 // is at most the levelled error, so its unweighted error at most that divided
 // by dcWeight.
@@ -207,7 +234,7 @@ func zeroPhase(h []float64, f float64) float64 {
 // and moves within it with the ripples and with tbw (by a few per cent at
 // TBW 4 to 12); the transition, its width kept, is then moved by secant steps
 // until that point is at tbw/(2n) within centreTol. It returns the edges used.
-func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, top bool) (h []float64, fp, fs float64, method string, err error) {
+func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
 	want := tbw / (2 * float64(n))
 	p0, s0 := edges(n, taps, tbw, DInf(d1, d2))
 	half := (s0 - p0) / 2
@@ -221,7 +248,7 @@ func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, top b
 		if !(fp > 0 && fs < 0.5) {
 			break
 		}
-		h, ext, _, err = lowpass(ctx, taps, fp, fs, d1, d2, top, ext, coarseDensity)
+		h, ext, _, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, coarseDensity)
 		if err != nil {
 			break
 		}
@@ -240,7 +267,7 @@ func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, top b
 		c, ext = want, nil
 	}
 	fp, fs = c-half, c+half
-	h, _, method, err = lowpass(ctx, taps, fp, fs, d1, d2, top, ext, gridDensity)
+	h, _, method, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, gridDensity)
 	return h, fp, fs, method, err
 }
 
@@ -285,15 +312,16 @@ func crossing(h []float64, level, lo, hi float64) float64 {
 // spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler, Electron.
 // Lett. 6:329, 1970, from memory); maximum phase is its time reversal. It
 // returns the band edges used (cycles/sample) and the method.
-func betaFilter(ctx context.Context, n int, tbw, d1, d2, level float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
+func betaFilter(ctx context.Context, n int, tbw, d1, d2, level float64, design Design, sh shaping, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
 	if design == Linear {
-		h, fp, fs, method, err = centred(ctx, n, n, tbw, d1, d2, level, top)
+		h, fp, fs, method, err = centred(ctx, n, n, tbw, d1, d2, level, sh)
 		return h, fp, fs, method, err
 	}
 	l1, l2 := 2*d1, d2*d2/2
 	taps := 2*n - 1
 	// |β|² ∝ the prototype: |β| = level where it is level².
-	h2, fp, fs, method, err := centred(ctx, n, taps, tbw, l1, l2, level*level, top)
+	sh.slope *= 2 // |β|² decays as fast as |β| with twice the exponent
+	h2, fp, fs, method, err := centred(ctx, n, taps, tbw, l1, l2, level*level, sh)
 	if err != nil {
 		return nil, 0, 0, "", err
 	}
