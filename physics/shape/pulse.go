@@ -82,7 +82,7 @@ type Common struct {
 	Flip      float64 // rad, nominal on-resonance flip; NaN if Peak is given
 	Peak      float64 // T, peak |B1|; NaN if Flip is given
 	Gradient  float64 // T/m slice-select gradient; 0: none
-	Thickness float64 // m slice thickness (derives Gradient from the bandwidth); 0: none
+	Thickness float64 // m slice thickness (derives Gradient from the measured profile width, see SetSlice); 0: none
 	Role      Role
 }
 
