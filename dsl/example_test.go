@@ -26,7 +26,7 @@ pulse hard = rect(duration = 200 us, flip = 90 deg)
 	// field 7 T: 31P Larmor frequency 120.76 MHz
 	// 57.9662 µT
 	// 1811.4 Hz
-	// pulse hard: rect, 200 µs, 1 sample, peak 72.4577 µT (1250 Hz), flip 90 deg, design bandwidth 5 kHz
+	// pulse hard: rect, 200 µs, 1 sample, peak 72.4577 µT (1250 Hz), flip 90 deg, bandwidth 5 kHz (design)
 	// <nil>
 }
 

@@ -66,7 +66,7 @@ var commonArgs = []argSpec{
 	{Name: "samples", Kind: argCount, Group: "sampling", Default: "the shape's own", Help: "number of waveform samples"},
 	{Name: "dwell", Dim: dimTime, Group: "sampling", Help: "sample length; must divide the duration"},
 	{Name: "gradient", Dim: dimGradient, Group: "slice", Help: "slice-select gradient played with the pulse"},
-	{Name: "thickness", Dim: dimLength, Group: "slice", Help: "slice thickness; derives the gradient from the bandwidth (thickness = BW/(γ̄·G))"},
+	{Name: "thickness", Dim: dimLength, Group: "slice", Help: "slice thickness as selected: the gradient comes from the measured width W of the role's own profile where it is half-way (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus), thickness = W/(γ̄·G)"},
 	{Name: "role", Kind: argWord, Words: []string{"excite", "invert", "refocus", "saturate"}, Help: "what the pulse is for; sets the default `show` quantity and the target of measured properties"},
 }
 
@@ -85,7 +85,7 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "zeros", Help: "time-bandwidth product (= number of zero crossings)"},
 			{Name: "lobes", Kind: argCount, Group: "zeros", Help: "number of lobes, main lobe included (tbw = lobes + 1, common practice)"},
-			{Name: "bandwidth", Dim: dimFrequency, Group: "zeros", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "zeros", Help: "measured band instead of tbw: the full width of the role's own profile at half-way (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus); the design tbw is chosen to give it"},
 			{Name: "window", Kind: argWord, Words: shape.WindowNames(), Default: "none", Help: "taper: Hann 0.5 + 0.5·cos(2πt/T) or Hamming 0.54 + 0.46·cos(2πt/T)"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
@@ -93,7 +93,7 @@ var shapes = []*shapeSpec{
 			if l, ok := b.vals["lobes"]; ok {
 				return shape.SincLobes(b.common(), b.gamma, int(l), w)
 			}
-			return shape.Sinc(b.common(), b.gamma, b.tbw(4), w)
+			return measuredBand(b, b.tbw(4), func(tbw float64) (*shape.Pulse, error) { return shape.Sinc(b.common(), b.gamma, tbw, w) })
 		},
 	},
 	{
@@ -103,26 +103,27 @@ var shapes = []*shapeSpec{
 		Args: []argSpec{
 			{Name: "tbw", Dim: dimNumber, Default: "cutoff 1.1 % (T = 6σ)", Group: "width", Help: "time-bandwidth product (small-tip FWHM × duration)"},
 			{Name: "cutoff", Dim: dimNumber, Group: "width", Help: "relative amplitude at the ends, 0 to 1 (fraction or %)"},
-			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "measured band instead of tbw: the full width of the role's own profile at half-way (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus); the design tbw is chosen to give it"},
 		},
 		Build: func(b *builder) (*shape.Pulse, error) {
 			tbw, cut := b.tbw(0), b.num("cutoff", 0)
 			if tbw == 0 && cut == 0 {
 				cut = math.Exp(-4.5) // T = 6σ (common practice)
 			}
-			return shape.Gauss(b.common(), b.gamma, tbw, cut)
+			return measuredBand(b, tbw, func(tbw float64) (*shape.Pulse, error) { return shape.Gauss(b.common(), b.gamma, tbw, cut) })
 		},
 	},
 	{
 		Name:   "slr",
-		Help:   "Shinnar–Le Roux design for a role, with pass and stop ripples",
-		Method: "Shinnar–Le Roux (Pauly et al., IEEE TMI 10:53, 1991); filter length from D∞ (Herrmann, Rabiner & Chan 1973)",
+		Help:   "Shinnar–Le Roux design for a role, with pass and stop ripples; the role's own profile (|Mxy| for excite, Mz for invert and saturate, |β|² for refocus) is half-way at ±bandwidth/2",
+		Method: "Shinnar–Le Roux (Pauly et al., IEEE TMI 10:53, 1991): equiripple β filter, transition D∞/TBW of the band (Herrmann, Rabiner & Chan 1973), edges (1 ∓ W)·TBW/(2T) moved together so the role's profile is half-way at TBW/(2T); on-resonance flip pinned",
 		Args: []argSpec{
-			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "width", Help: "time-bandwidth product"},
-			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "bandwidth instead of tbw (tbw = bandwidth × duration)"},
+			{Name: "tbw", Dim: dimNumber, Default: "4", Group: "width", Help: "time-bandwidth product: the full width of the role's profile at half-way × duration"},
+			{Name: "bandwidth", Dim: dimFrequency, Group: "width", Help: "full width of the role's profile at half-way, instead of tbw (tbw = bandwidth × duration)"},
 			{Name: "pass", Dim: dimNumber, Default: "1%", Help: "pass-band ripple of the profile (fraction or %)"},
 			{Name: "stop", Dim: dimNumber, Default: "1%", Help: "stop-band ripple of the profile (fraction or %)"},
 			{Name: "design", Kind: argWord, Words: slr.DesignNames(), Default: "linear", Help: "phase of the underlying filter"},
+			{Name: "stopband", Kind: argWord, Words: []string{"flat", "rising"}, Default: "flat", Help: "flat: the published equiripple stopband, whose ripples put spikes in the first and last samples (5–80 % of the peak); rising (linear phase only): the stopband weight rises away from the edge, which brings the end samples to about 1 % of the peak at some cost in ripple near the edges (most for 90° excite)"},
 		},
 		Build: buildSLR,
 	},
@@ -279,6 +280,50 @@ func (b *builder) num(name string, def float64) float64 {
 	}
 	return def
 }
+
+// measuredBand builds an amplitude-modulated pulse with build at the design
+// time-bandwidth product tbw; when the bandwidth argument was given, it then
+// scales the design tbw by asked/measured until the measured width of the
+// role's own profile (shape.ProfileWidth) is the bandwidth asked within
+// bandTol, and records that width in Pulse.Width.
+func measuredBand(b *builder, tbw float64, build func(tbw float64) (*shape.Pulse, error)) (*shape.Pulse, error) {
+	p, err := build(tbw)
+	want, ok := b.vals["bandwidth"]
+	if err != nil || !ok {
+		return p, err
+	}
+	ctx := b.ctx
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	for range 6 {
+		w, werr := shape.ProfileWidth(ctx, p)
+		if werr != nil {
+			return p, nil // no half-way width: the design bandwidth stands
+		}
+		p.Width = w
+		if math.Abs(w-want) <= bandTol*want {
+			break
+		}
+		tbw *= want / w
+		q, err := build(tbw)
+		if err != nil {
+			return nil, err
+		}
+		p = q
+		p.Width = 0
+	}
+	if p.Width == 0 {
+		if w, err := shape.ProfileWidth(ctx, p); err == nil {
+			p.Width = w
+		}
+	}
+	return p, nil
+}
+
+// bandTol is how close to the asked bandwidth measuredBand brings the
+// measured width.
+const bandTol = 1e-3
 
 // tbw is the time-bandwidth product given as tbw, or as bandwidth × duration.
 func (b *builder) tbw(def float64) float64 {
@@ -473,8 +518,12 @@ func (ev *evaluator) build(spec *shapeSpec, args map[string]argVal, callPos Pos)
 		return nil, errAt(ev.blame(err, args, callPos), "%s", asWritten(strings.TrimPrefix(err.Error(), spec.Name+": "), args, b))
 	}
 	if a, ok := args["thickness"]; ok && math.Abs(p.Gradient) > maxGradient {
-		return nil, errAt(a.Pos, "thickness %s needs a gradient of %s for a bandwidth of %s, over the limit of 1 T/m; want a thicker slice",
-			a.Val, Quantity{math.Abs(p.Gradient), dimGradient}.format("T/m"), Quantity{p.Bandwidth, dimFrequency})
+		bw, what := p.Bandwidth, "a bandwidth"
+		if p.Width > 0 {
+			bw, what = p.Width, "a measured profile width"
+		}
+		return nil, errAt(a.Pos, "thickness %s needs a gradient of %s for %s of %s, over the limit of 1 T/m; want a thicker slice",
+			a.Val, Quantity{math.Abs(p.Gradient), dimGradient}.format("T/m"), what, Quantity{bw, dimFrequency})
 	}
 	if n := p.Wave.Len(); n > maxPulseSamples {
 		at, what := callPos, "the shape's own sampling"
@@ -687,10 +736,23 @@ func rampWarning(ctx context.Context, p *shape.Pulse) (string, error) {
 	if x == 0 || 1-math.Sin(x)/x < 0.01 {
 		return "", nil
 	}
+	// An slr pulse divides the hold's loss at the centre out of its field
+	// (package slr): what is left is the change of that loss across the band.
+	sinc := func(x float64) float64 { return math.Sin(x) / x }
+	edgeLoss := 0.0
+	if p.Shape == "slr" {
+		xe := math.Pi * (math.Abs(p.Center) + p.Bandwidth/2) * dwell
+		edgeLoss = 1 - sinc(xe)/sinc(x)
+		if math.Abs(p.Center)*dwell < 0.5 && edgeLoss < 0.01 {
+			return "", nil
+		}
+	}
 	msg := fmt.Sprintf("\nwarning: the centre %s turns the phase by %s per sample (dwell %s), held over each sample: ", Quantity{p.Center, dimFrequency}.String(), formatNumber(roundSig(math.Abs(p.Center)*dwell*360, 3))+" deg", Quantity{dwell, dimTime}.String())
 	switch {
 	case math.Abs(p.Center)*dwell >= 0.5:
 		msg += "the band aliases and plays elsewhere than the centre"
+	case p.Shape == "slr":
+		msg += fmt.Sprintf("the field is scaled to keep the rotation at the centre, but falls by about %s %% more towards the band's edge", formatNumber(roundSig(100*edgeLoss, 2)))
 	case !math.IsNaN(p.Flip) && !p.Adiabatic && !imported(p):
 		w := p.Wave
 		w.Gradient = nil
@@ -855,16 +917,29 @@ func pulseSummary(d *pulseDef) string {
 	} else if a, ok := d.Args["flip"]; ok && d.Spec != nil {
 		parts = append(parts, "rotation "+a.Val.String()+" by design")
 	}
+	// Design figures (from the shape's bandwidth) and, where a slice is
+	// selected, the measured width of the role's own profile beside them.
 	if p.Bandwidth != 0 {
-		parts = append(parts, "design bandwidth "+Quantity{p.Bandwidth, dimFrequency}.String())
+		bw := "bandwidth " + Quantity{p.Bandwidth, dimFrequency}.String() + " (design)"
+		if p.Width > 0 {
+			bw = "bandwidth " + Quantity{p.Width, dimFrequency}.String() + " measured (" + Quantity{p.Bandwidth, dimFrequency}.String() + " design)"
+		}
+		parts = append(parts, bw)
 	}
 	if p.Role != shape.RoleNone {
 		parts = append(parts, "role "+p.Role.String())
 	}
 	if p.Gradient != 0 {
 		parts = append(parts, "gradient "+Quantity{p.Gradient, dimGradient}.format("mT/m"))
-		if p.Bandwidth != 0 {
-			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")+" (design)")
+		design := "thickness " + Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm") + " (design)"
+		switch {
+		case p.Width > 0 && p.Bandwidth != 0:
+			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Width, p.Gamma, p.Gradient), dimLength}.format("mm")+
+				" measured ("+Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")+" design)")
+		case p.Width > 0:
+			parts = append(parts, "thickness "+Quantity{shape.SliceThickness(p.Width, p.Gamma, p.Gradient), dimLength}.format("mm")+" measured")
+		case p.Bandwidth != 0:
+			parts = append(parts, design)
 		}
 	}
 	return strings.Join(parts, ", ")

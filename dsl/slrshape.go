@@ -32,6 +32,7 @@ func buildSLR(b *builder) (*shape.Pulse, error) {
 		d, _ := slr.ParseDesign(w)
 		spec.Design = d
 	}
+	spec.Rising = b.words["stopband"] == "rising"
 	ctx := b.ctx
 	if ctx == nil {
 		ctx = context.Background()

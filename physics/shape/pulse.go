@@ -32,6 +32,7 @@
 package shape
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -81,7 +82,7 @@ type Common struct {
 	Flip      float64 // rad, nominal on-resonance flip; NaN if Peak is given
 	Peak      float64 // T, peak |B1|; NaN if Flip is given
 	Gradient  float64 // T/m slice-select gradient; 0: none
-	Thickness float64 // m slice thickness (derives Gradient from the bandwidth); 0: none
+	Thickness float64 // m slice thickness (derives Gradient from the measured profile width, see SetSlice); 0: none
 	Role      Role
 }
 
@@ -103,7 +104,12 @@ type Pulse struct {
 	Sweep     float64   // Hz, frequency-sweep range of a frequency-modulated pulse; 0 if none
 	Freq      []float64 // Hz, instantaneous RF frequency relative to the carrier, per sample; nil if none
 	Gradient  float64   // T/m, constant slice-select gradient; 0: none
-	Center    float64   // Hz
+	// Width is the measured full width (Hz) of the role's own profile at
+	// half-way (ProfileWidth), set where a gradient or thickness is given (and
+	// by the language where a bandwidth was asked); 0 otherwise. The selected thickness is Width/(γ̄·|Gradient|); the design
+	// figure is Bandwidth/(γ̄·|Gradient|).
+	Width  float64
+	Center float64 // Hz
 	// Plane is set for a plane rotation by Flip about a fixed transverse axis
 	// at phase Axis (rad) whatever the B1 (BIR-4): its target holds the whole
 	// magnetization to that rotation, phase included (see TargetMet).
@@ -327,9 +333,18 @@ func Rect(c Common, gamma float64) (*Pulse, error) {
 	return amplitudeModulated("rect", c, gamma, u, dt, 1)
 }
 
-// setSlice derives the slice-select gradient from thickness and bandwidth:
-// thickness = BW/(γ̄·G) (common practice).
+// setSlice sets the slice-select gradient, given or derived from the thickness:
+// thickness = W/(γ̄·G) (common practice), W the measured width of the role's
+// own profile (ProfileWidth), so that the pulse selects the thickness asked
+// rather than the one its design bandwidth would give.
 func (p *Pulse) setSlice(c Common) error {
+	return SetSlice(p, c)
+}
+
+// SetSlice sets p's slice-select gradient from c.Gradient or c.Thickness (see
+// setSlice) and records the measured profile width in p.Width. Shapes built
+// outside this package (SLR) use it too.
+func SetSlice(p *Pulse, c Common) error {
 	if c.Gradient != 0 && c.Thickness != 0 {
 		return fmt.Errorf("%s: give gradient or thickness, not both", p.Shape)
 	}
@@ -338,7 +353,7 @@ func (p *Pulse) setSlice(c Common) error {
 	}
 	g := c.Gradient
 	if c.Thickness != 0 {
-		if !(c.Thickness > 0) {
+		if !(c.Thickness > 0) || math.IsInf(c.Thickness, 0) {
 			return fmt.Errorf("%s: thickness must be positive, got %g m", p.Shape, c.Thickness)
 		}
 		if p.Bandwidth == 0 {
@@ -347,7 +362,16 @@ func (p *Pulse) setSlice(c Common) error {
 			}
 			return fmt.Errorf("%s: thickness needs a pulse with a bandwidth: give gradient instead", p.Shape)
 		}
-		g = 2 * math.Pi * p.Bandwidth / (math.Abs(p.Gamma) * c.Thickness)
+		w, err := ProfileWidth(context.Background(), p)
+		if err != nil {
+			return fmt.Errorf("%s: thickness needs a profile with a half-way width (%v): give gradient instead", p.Shape, err)
+		}
+		p.Width = w
+		g = 2 * math.Pi * w / (math.Abs(p.Gamma) * c.Thickness)
+	} else if g != 0 {
+		if w, err := ProfileWidth(context.Background(), p); err == nil {
+			p.Width = w
+		}
 	}
 	if g == 0 {
 		return nil

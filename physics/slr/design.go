@@ -107,15 +107,110 @@ func gridSize(n int) int {
 	return m
 }
 
-// edges returns the passband and stopband edges (cycles/sample) of an n-tap β
-// filter of time-bandwidth product tbw whose equiripple design of length taps has
-// factor dinf: the transition of about dinf/taps cycles/sample is centred on the
-// nominal edge tbw/(2n).
+// edges returns the published passband and stopband edges (cycles/sample) of an
+// n-sample β filter of time-bandwidth product tbw whose equiripple design of
+// length taps has factor dinf (Pauly et al. 1991): the transition of dinf/taps
+// cycles/sample centred on tbw/(2n), i.e. (1 ∓ W)·tbw/(2n) with W = D∞/TBW for
+// linear phase (taps = n).
 func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 	edge := tbw / (2 * float64(n))
 	half := dinf / (2 * float64(taps))
 	return edge - half, edge + half
 }
+
+// lowpass designs the published equiripple lowpass (Pauly et al. 1991): taps
+// coefficients, passband 0 to fp with ripple d1, stopband fs to 0.5 with ripple
+// d2 (weights 1 and d1/d2), by Remez exchange; least squares over the same bands
+// when the exchange does not converge. It reports the method used.
+//
+// One point departs from the plain design: the amplitude at zero offset is
+// pinned to 1 (weight dcWeight), so that the on-resonance rotation is the
+// nominal flip rather than anywhere within the passband ripple. With top (for
+// 180° designs, whose |β| cannot exceed 1, so that the filter is scaled by its
+// largest amplitude) it is pinned to the top of the passband ripple of the
+// plain design, 1 + δ, so that zero offset is the passband's largest amplitude
+// and keeps |β| = 1 after scaling.
+func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, init []float64, density int) ([]float64, []float64, string, error) {
+	top := sh.top
+	if err := ctx.Err(); err != nil {
+		return nil, nil, "", err
+	}
+	bands := []Band{{0, fp, 1, 1}, {fs, 0.5, 0, d1 / d2}}
+	dc := 1.0
+	ext := init
+	if top {
+		// The levelled error δ of the plain design (D∞ is an estimate): the
+		// top of its passband ripple is 1 + δ.
+		_, e, delta, err := remez(taps, bands, init, density, sh.target(bands, 1, 0))
+		if err == nil {
+			dc, ext = 1+delta, e
+		}
+	}
+	tg := func(i int, f float64) (float64, float64) {
+		return sh.target(bands, dc, dcWeight)(i, f)
+	}
+	h, e, _, err := remez(taps, bands, ext, density, tg)
+	// The largest amplitude between grid points may still exceed the pinned
+	// one by a little: pin to it again (a shortfall ε of |β(0)| costs √(8ε)
+	// rad of flip).
+	for k := 0; top && err == nil && k < 6; k++ {
+		mx := dc
+		const m = 512
+		for i := 1; i <= m; i++ {
+			mx = math.Max(mx, zeroPhase(h, fs*float64(i)/m))
+		}
+		if mx <= dc*(1+1e-9) {
+			break
+		}
+		dc = 2*mx - dc // the excess grows as dc does: step beyond it
+		h, e, _, err = remez(taps, bands, e, density, tg)
+	}
+	if errors.Is(err, ErrNoConvergence) {
+		h, err = LeastSquares(taps, bands)
+		if err == nil {
+			g := 1 / zeroPhase(h, 0)
+			for i := range h {
+				h[i] *= g
+			}
+		}
+		return h, nil, "least squares", err
+	}
+	return h, e, "remez", err
+}
+
+// shaping says how a β filter departs from the plain equiripple lowpass.
+type shaping struct {
+	// top pins zero offset to the top of the passband ripple (see lowpass).
+	top bool
+	// slope > 0 makes the stopband weight rise as (f/fs)^slope beyond the
+	// stopband edge fs (Spec.Rising): the flat stopband error of the
+	// equiripple design is a comb of equal ripples up to half the sampling
+	// rate, whose transform is a pair of spikes in the filter's end taps, so
+	// in the pulse's first and last samples; a rising weight lets the ripples
+	// decay away from the edge and lowers the spikes, at some cost in ripple
+	// near the edge. 0: the published flat stopband.
+	slope float64
+}
+
+// target returns the gain and weight at frequency f of band i, with zero
+// offset pinned to dc by weight pin (none when pin is 0).
+func (sh shaping) target(bands []Band, dc, pin float64) target {
+	fs := bands[1].Lo
+	return func(i int, f float64) (float64, float64) {
+		if i == 0 && f == 0 && pin > 0 {
+			return dc, pin
+		}
+		if i == 1 && sh.slope > 0 {
+			return 0, bands[1].Weight * math.Pow(f/fs, sh.slope)
+		}
+		return bands[i].Gain, bands[i].Weight
+	}
+}
+
+// dcWeight pins the amplitude at zero offset (see lowpass): its weighted error
+// is at most the levelled error, so its unweighted error at most that divided
+// by dcWeight.
+const dcWeight = 1e4
 
 // zeroPhase is the amplitude Σ h[k]·cos(2πf·(k − (L−1)/2)) of a symmetric filter.
 func zeroPhase(h []float64, f float64) float64 {
@@ -131,10 +226,62 @@ func zeroPhase(h []float64, f float64) float64 {
 	return s
 }
 
-// crossing returns the first frequency above lo at which the amplitude of the
-// symmetric filter h falls below level, searching up to hi; NaN if it does not.
+// centred designs the published lowpass of taps coefficients for an n-sample
+// pulse of time-bandwidth product tbw: the transition of D∞/taps cycles/sample
+// (Herrmann, Rabiner & Chan 1973; Pauly et al. 1991), centred first on
+// tbw/(2n) (the published edges, see edges). The role's profile is half-way
+// where the filter's amplitude is level, which is not the transition's centre
+// and moves within it with the ripples and with tbw (by a few per cent at
+// TBW 4 to 12); the transition, its width kept, is then moved by secant steps
+// until that point is at tbw/(2n) within centreTol. It returns the edges used.
+func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
+	want := tbw / (2 * float64(n))
+	p0, s0 := edges(n, taps, tbw, DInf(d1, d2))
+	half := (s0 - p0) / 2
+	c := want
+	// Secant steps on a coarse grid, each warm-started from the last; then
+	// one design on the full grid from the coarse extremal set.
+	var ext []float64
+	found := false
+	for range 6 {
+		fp, fs = c-half, c+half
+		if !(fp > 0 && fs < 0.5) {
+			break
+		}
+		h, ext, _, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, coarseDensity)
+		if err != nil {
+			break
+		}
+		f := crossing(h, level*zeroPhase(h, 0), fp, fs)
+		if math.IsNaN(f) {
+			break
+		}
+		found = true
+		if math.Abs(f-want) <= centreTol*want {
+			break
+		}
+		c += want - f // the crossing moves with the transition
+	}
+	if !found || !(c-half > 0 && c+half < 0.5) {
+		// No crossing found: the published edges as they are.
+		c, ext = want, nil
+	}
+	fp, fs = c-half, c+half
+	h, _, method, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, gridDensity)
+	return h, fp, fs, method, err
+}
+
+// coarseDensity is the design grid density of centred's secant steps.
+const coarseDensity = 4
+
+// centreTol is how close to tbw/(2n) centred puts the role's half-way point.
+const centreTol = 1e-3
+
+// crossing returns the frequency between lo and hi at which the amplitude of
+// the symmetric filter h falls through level (bisection, after a scan for the
+// first fall); NaN if it does not.
 func crossing(h []float64, level, lo, hi float64) float64 {
-	const steps = 64
+	const steps = 32
 	prev := lo
 	if zeroPhase(h, lo) < level {
 		return math.NaN()
@@ -158,232 +305,23 @@ func crossing(h []float64, level, lo, hi float64) float64 {
 	return math.NaN()
 }
 
-// shaping says how a β filter departs from the plain equiripple lowpass of
-// Pauly et al. (1991), whose stopband error keeps its full height up to half the
-// sampling rate. That flat error is a comb of equal ripples across the whole
-// stopband, and its transform is a pair of spikes in the filter's end taps, so in
-// the first and last samples of the pulse, which grow with the number of samples
-// per time-bandwidth product. Here the stopband weight rises as (f/fs)^slope
-// beyond the stopband edge fs: the ripples keep their specified height near the
-// transition, where the profile is specified, and decay further out, where it
-// only costs the end spikes.
-type shaping struct {
-	slope float64 // stopband weight grows as (f/fs)^slope
-	// top makes the amplitude at zero offset the largest of the passband (for
-	// 180° designs, whose |β| cannot exceed 1, so that the on-resonance flip
-	// is the nominal one); otherwise the amplitude at zero offset is exactly 1.
-	top bool
-	// lift centres the stopband ripple above zero (for the non-negative
-	// prototype of minimum-phase designs), so that it needs no constant raise.
-	lift bool
-}
-
-// dcWeight pins the amplitude at zero offset (see shaping): its weighted error
-// is at most the levelled error, so the unweighted error there is at most that
-// divided by dcWeight.
-const dcWeight = 1e4
-
-// topMargin places a top passband (see shaping) topMargin·d1 below the amplitude
-// 1 at zero offset rather than d1: the largest error between the points of the
-// design grid exceeds the levelled error by a little, and |β| at zero offset must
-// stay the largest for the flip there to be 180° (a shortfall ε in |β| costs
-// √(8ε) rad of flip).
-const topMargin = 1.0
-
-// errNarrow reports a transition band wider than the passband it bounds: the
-// time-bandwidth product is too small for the ripples.
-var errNarrow = errors.New("transition does not fit")
-
-// narrowRatio is how far above the asked ripple the passband error of a design
-// that ran out of steps may be before lowpass gives up with errNarrow.
-const narrowRatio = 1.1
-
-// narrowEdgeTol is how far from the nominal edge the crossing of such a design
-// may be (the checks ask for 2 %; the search aims at edgeTol).
-const narrowEdgeTol = 1.5e-2
-
-// Tolerances of lowpass: the 50 % crossing within edgeTol of the nominal edge;
-// the levelled passband error δ between rippleLo and rippleHi times the asked
-// ripple, aiming at rippleAim times it. rippleHi is just above 1 because a
-// design with a top passband (see shaping) cannot have δ below the ripple.
-const (
-	edgeTol   = 2e-3
-	rippleLo  = 0.96
-	rippleAim = 0.98
-	rippleHi  = 1.002
-	topLo     = 0.94
-	topAim    = 0.965
-	topHi     = 0.99
-)
-
-// lowpass designs a linear-phase lowpass of taps coefficients, amplitude 1 at
-// zero offset, whose amplitude falls through level at edge, with passband ripple
-// d1 and stopband ripple d2: equiripple by Remez exchange with the stopband
-// weighting of sh, falling back to least squares when the exchange fails.
-//
-// The transition width starts at tw (from D∞, Herrmann, Rabiner & Chan 1973,
-// which holds for the plain equiripple design); it is then widened or narrowed
-// until the levelled passband error of the design is d1 within rippleTol, by a
-// D∞-scaled first step and secant steps in log δ, since the constraints of sh
-// cost ripple at a given width. Together with it the transition is moved by
-// secant steps until the crossing is within edgeTol of edge (the transition of
-// an equiripple filter with δ1 ≠ δ2 is not symmetric about its centre). The
-// steps run on a coarse grid, each warm-started from the last; the final design
-// on the full grid starts from the coarse extremal set. It returns errNarrow
-// (wrapped) when the transition no longer fits, and reports the method used.
-func lowpass(ctx context.Context, taps int, edge, tw, level, d1, d2 float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
-	ws := d1 / d2
-	// A top passband is centred d1 below the amplitude 1 at zero offset; a
-	// lifted stopband is centred just above its ripple, which is at most
-	// rippleHi·d2 when δ is accepted.
-	off, lift := 0.0, 0.0
-	if sh.top {
-		off = topMargin * d1
-	}
-	if sh.lift {
-		lift = rippleHi * d2
-	}
-	lo, aimR, hi := rippleLo, rippleAim, rippleHi
-	if sh.top && !sh.lift {
-		lo, aimR, hi = topLo, topAim, topHi
-	}
-	bands := func(c, tw float64) ([]Band, target, bool) {
-		p, s := c-tw/2, c+tw/2
-		b := []Band{{0, p, 1 - off, 1}, {s, 0.5, 0, ws}}
-		pass, stop := 1-off, lift
-		tg := func(i int, f float64) (float64, float64) {
-			if i == 0 {
-				if f == 0 {
-					return 1, dcWeight
-				}
-				return pass, 1
-			}
-			env := math.Pow(s/f, sh.slope) // ≤ 1: the allowed error decays as env
-			return stop * env, ws / env
-		}
-		return b, tg, p > 0 && s < 0.5
-	}
-	type designer func([]Band, target) ([]float64, float64, error)
-	// solve moves the centre c and width tw of the transition until the
-	// crossing and the ripple are met, or maxSteps designs are made.
-	solve := func(design designer, c, tw float64, maxSteps int) (float64, float64, []float64, error) {
-		var h []float64
-		prevC, prevF := math.NaN(), math.NaN()
-		prevW, prevD := math.NaN(), math.NaN()
-		for range maxSteps {
-			b, tg, ok := bands(c, tw)
-			if !ok {
-				return c, tw, nil, fmt.Errorf("%w: transition %.4g to %.4g cycles/sample", errNarrow, c-tw/2, c+tw/2)
-			}
-			hh, delta, err := design(b, tg)
-			if err != nil {
-				return c, tw, nil, err
-			}
-			h = hh
-			f := crossing(hh, level, 0, math.Min(0.5, c+1.5*tw))
-			okF := math.IsNaN(f) || math.Abs(f-edge) <= edgeTol*edge
-			okD := (delta >= lo*d1 && delta <= hi*d1) || delta == 0
-			if okF && okD {
-				return c, tw, h, nil
-			}
-			nc, nw := c, tw
-			if !okF {
-				slope := 1.0 // the crossing moves with the transition
-				if !math.IsNaN(prevF) && f != prevF && prevW == tw {
-					slope = (f - prevF) / (c - prevC)
-				}
-				nc = c + (edge-f)/slope
-			}
-			if !okD {
-				// A first step that scales the width as D∞ would: the
-				// design behaves as a plain one of ripples delta and
-				// delta/ws; later steps are secant steps in log δ.
-				aim := aimR * d1
-				k := DInf(aim, aim/ws) / DInf(delta, delta/ws)
-				if !math.IsNaN(prevD) && prevW != tw {
-					s := (math.Log(delta) - math.Log(prevD)) / (tw - prevW)
-					if s < 0 {
-						k = 1 + (math.Log(aim)-math.Log(delta))/s/tw
-					}
-				}
-				nw = tw * math.Min(math.Max(k, 0.5), 2)
-			}
-			// Keep the bands inside 0 to 0.5: halve the step until they fit.
-			for k := 0; k < 30 && !(nc-nw/2 > 0 && nc+nw/2 < 0.5); k++ {
-				nc, nw = (c+nc)/2, (tw+nw)/2
-			}
-			prevC, prevF, prevW, prevD = c, f, tw, delta
-			c, tw = nc, nw
-		}
-		if prevD > narrowRatio*d1 {
-			return prevC, prevW, nil, fmt.Errorf("%w: passband error %.3g, want %.3g", errNarrow, prevD, d1)
-		}
-		if !(math.Abs(prevF-edge) <= narrowEdgeTol*edge) {
-			return prevC, prevW, nil, fmt.Errorf("%w: 50 %% point at %.4g cycles/sample, want %.4g", errNarrow, prevF, edge)
-		}
-		return prevC, prevW, h, nil
-	}
-	var ext []float64
-	coarse := func(b []Band, tg target) ([]float64, float64, error) {
-		if err := ctx.Err(); err != nil {
-			return nil, 0, err
-		}
-		hh, e, delta, err := remez(taps, b, ext, 4, tg)
-		ext = e
-		return hh, delta, err
-	}
-	fine := func(b []Band, tg target) ([]float64, float64, error) {
-		if err := ctx.Err(); err != nil {
-			return nil, 0, err
-		}
-		hh, e, delta, err := remez(taps, b, ext, gridDensity, tg)
-		ext = e
-		return hh, delta, err
-	}
-	c, tw, _, err := solve(coarse, edge, tw, 16)
-	if err == nil {
-		// One full-grid design; solve again on the full grid only if it moved.
-		c, tw, h, err = solve(fine, c, tw, 8)
-	}
-	method = "remez"
-	if errors.Is(err, ErrNoConvergence) {
-		method = "least squares"
-		b, _, ok := bands(edge, tw)
-		if !ok {
-			return nil, 0, 0, "", fmt.Errorf("%w: transition %.4g to %.4g cycles/sample", errNarrow, b[0].Hi, b[1].Lo)
-		}
-		// Centred on the edge; unit amplitude at zero offset.
-		c = edge
-		h, err = LeastSquares(taps, []Band{{0, b[0].Hi, 1, 1}, {b[1].Lo, 0.5, 0, ws}})
-		if err == nil {
-			g := 1 / zeroPhase(h, 0)
-			for i := range h {
-				h[i] *= g
-			}
-		}
-	}
-	if err != nil {
-		return nil, 0, 0, "", err
-	}
-	return h, c - tw/2, c + tw/2, method, nil
-}
-
-// betaFilter designs the β filter of n taps with ripples d1, d2, amplitude 1 at
-// zero offset. Minimum phase follows the published construction: a linear-phase
-// filter of 2n−1 taps with ripples 2δ1 and δ2²/2, non-negative, and its
-// minimum-phase spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler,
-// Electron. Lett. 6:329, 1970, from memory); maximum phase is its time reversal.
-// It returns the band edges used (cycles/sample) and the method.
-func betaFilter(ctx context.Context, n int, tbw, d1, d2 float64, design Design, top bool, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
-	edge := tbw / (2 * float64(n))
+// betaFilter designs the β filter of n taps with ripples d1, d2 and the
+// published band edges (see edges). Minimum phase follows the published
+// construction: a linear-phase filter of 2n−1 taps with ripples 2δ1 and δ2²/2,
+// raised by its stopband ripple to be non-negative, and its minimum-phase
+// spectral factor taken (Pauly et al. 1991; Herrmann & Schüssler, Electron.
+// Lett. 6:329, 1970, from memory); maximum phase is its time reversal. It
+// returns the band edges used (cycles/sample) and the method.
+func betaFilter(ctx context.Context, n int, tbw, d1, d2, level float64, design Design, sh shaping, cep *cepstrum) (h []float64, fp, fs float64, method string, err error) {
 	if design == Linear {
-		// The 50 % point of |β| at the nominal edge.
-		return lowpass(ctx, n, edge, DInf(d1, d2)/float64(n), 0.5, d1, d2, shaping{slope: stopSlope, top: top})
+		h, fp, fs, method, err = centred(ctx, n, n, tbw, d1, d2, level, sh)
+		return h, fp, fs, method, err
 	}
 	l1, l2 := 2*d1, d2*d2/2
 	taps := 2*n - 1
-	// |β|² ∝ the prototype: |β| = 1/2 where it is 1/4.
-	h2, fp, fs, method, err := lowpass(ctx, taps, edge, DInf(l1, l2)/float64(taps), 0.25, l1, l2, shaping{slope: 2 * stopSlope, top: top, lift: true})
+	// |β|² ∝ the prototype: |β| = level where it is level².
+	sh.slope *= 2 // |β|² decays as fast as |β| with twice the exponent
+	h2, fp, fs, method, err := centred(ctx, n, taps, tbw, l1, l2, level*level, sh)
 	if err != nil {
 		return nil, 0, 0, "", err
 	}
@@ -397,8 +335,9 @@ func betaFilter(ctx context.Context, n int, tbw, d1, d2 float64, design Design, 
 		amp[k] = real(v)*c - imag(v)*s
 		low = math.Min(low, amp[k])
 	}
-	// Raise what negative ripple is left just above zero so the factor has no
-	// zeros on |z| = 1, keeping the amplitude 1 at zero offset.
+	// Raise the stopband ripple (about δ2²/2 as designed; the measured one)
+	// just above zero so the factor has no zeros on |z| = 1, and scale the
+	// amplitude at zero offset back to 1.
 	raise := -low * (1 + 1e-3)
 	a0 := amp[0] + raise
 	for k, v := range amp {
@@ -413,14 +352,15 @@ func betaFilter(ctx context.Context, n int, tbw, d1, d2 float64, design Design, 
 	return h, fp, fs, method + ", minimum-phase factor", nil
 }
 
-// stopSlope is the exponent of the rising stopband weight (see shaping) of the
-// linear-phase β filter; the minimum-phase prototype, which is |β|², uses twice
-// it, so that |β| decays alike.
-const stopSlope = 2.0
-
 // betaMargin keeps max|β| on the design grid at most 1 − betaMargin, so that
-// |α| = √(1 − |β|²) stays away from zero and its cepstrum converges.
-const betaMargin = 1e-6
+// |α| = √(1 − |β|²) stays away from zero and its cepstrum converges; a margin
+// ε costs √(8ε) rad of a 180° flip (0.05° here). Minimum and maximum phase,
+// whose β is itself a cepstral factor with less accurate magnitude, keep
+// phaseMargin (0.16°) so that |α|² + |β|² stays within 1e-6 of 1.
+const (
+	betaMargin  = 1e-7
+	phaseMargin = 1e-6
+)
 
 // gridFactor sets the minimum-phase grid to gridFactor·n points (at least 2^14):
 // with betaMargin it keeps the forward transform of the RF within about 1e-8 of β.
@@ -429,15 +369,15 @@ const gridFactor = 256
 // polynomials scales the unit β filter h to β = i·sin(θ/2)·h (the factor i makes
 // phase 0 put B1 along +x, as in package physics) and completes α as the
 // minimum-phase sequence with |α|² = 1 − |β|² (Pauly et al. 1991).
-func polynomials(h []float64, flip float64, cep *cepstrum) (a, b []complex128, scaled bool) {
+func polynomials(h []float64, flip, margin float64, cep *cepstrum) (a, b []complex128, scaled bool) {
 	s := math.Sin(flip / 2)
 	H := cep.response(h)
 	peak := 0.0
 	for _, v := range H {
 		peak = math.Max(peak, cmplx.Abs(v))
 	}
-	if s*peak > 1-betaMargin {
-		s = (1 - betaMargin) / peak
+	if s*peak > 1-margin {
+		s = (1 - margin) / peak
 		scaled = true
 	}
 	mag := make([]float64, len(H))

@@ -17,10 +17,14 @@
 // (Remez exchange) algorithm, least squares when the exchange fails, in linear,
 // minimum or maximum phase; it converts profile ripples to filter ripples per role,
 // completes α as the minimum-phase factor of 1 − |β|², and inverts to the RF.
-// Unlike the plain equiripple filter, whose flat stopband error puts spikes in
-// the pulse's end samples, the stopband weight rises away from the band edge, the
-// transition width is solved for the asked ripple, and the amplitude at zero
-// offset is pinned so that the on-resonance rotation is the nominal flip.
+// The filter is the published one: transition D∞/TBW of the band wide
+// (Herrmann, Rabiner & Chan 1973), pass and stop edges (1 ∓ W)·TBW/(2T). Two
+// departures, neither of which widens the transition: the amplitude at zero
+// offset is pinned so that the on-resonance rotation is the nominal flip, and
+// the transition is moved (by a few per cent at most) so that the role's own
+// profile is half-way at TBW/(2T). Like every plain equiripple design, its flat
+// stopband error puts spikes in the pulse's first and last samples (up to the
+// peak itself for saturation and minimum-phase 180° designs at small TBW).
 // PulseContext lets a long design be cancelled.
 //
 // Units are those of package physics: seconds, tesla, hertz, radians, rad·s⁻¹·T⁻¹.

@@ -27,7 +27,7 @@ func ExamplePulse() {
 	fmt.Println(err)
 	// Output:
 	// slr invert: 256 samples, bandwidth 2000 Hz
-	// slr: tbw: got 1.5, too small for filter ripples 0.00125 and 0.0707 (pass 0.01, stop 0.01, invert, linear phase): want at least 3.014, or larger ripples
+	// slr: tbw: got 1.5, too small for filter ripples 0.00125 and 0.0707 (pass 0.01, stop 0.01, invert, linear phase): want more than 2.011, or larger ripples
 }
 
 // Forward and Inverse are each other's inverse: rotation angles per sample in,

@@ -2,7 +2,6 @@ package slr
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 
@@ -27,7 +26,17 @@ type Spec struct {
 	PassRipple float64    // δe1: passband ripple of the profile, fraction
 	StopRipple float64    // δe2: stopband ripple of the profile, fraction
 	Design     Design     // phase of the β filter
+	// Rising makes the β filter's stopband weight rise away from the
+	// stopband edge (opt-in, linear phase only; see shaping), which lowers
+	// the spikes the published flat stopband puts in the first and last
+	// samples (from 5–80 % of the peak to about 1 % at TBW 4 to 12) at some
+	// cost in ripple near the edges (most for 90° excitation, up to 5× the
+	// asked pass ripple).
+	Rising bool
 }
+
+// risingSlope is the exponent of the stopband weight of Spec.Rising.
+const risingSlope = 2.0
 
 // NewSpec returns a specification for role with every optional value unset.
 func NewSpec(role shape.Role) Spec {
@@ -61,19 +70,28 @@ func roleFlip(r shape.Role) float64 {
 // samples or dwell, flip for excitation, phase, center, gradient or thickness) for
 // a nucleus of gyromagnetic ratio gamma (rad·s⁻¹·T⁻¹). Inversion and refocusing
 // pulses are 180°, saturation 90°; excitation takes c.Flip in (0, 180°); c.Peak
-// cannot be given, as the design sets the amplitude. The bandwidth is
-// TBW/duration between the 50 % points of |β|. Errors say which value cannot be
-// met and the closest that can.
+// cannot be given, as the design sets the amplitude. The bandwidth TBW/duration
+// is the full width of the role's own profile where it is half-way between its
+// pass and stop values (excitation |Mxy|, inversion and saturation Mz,
+// refocusing |β|²). Errors say which value cannot be met and the closest that
+// can.
 //
-// The profile ripples hold within the published relations, the transition being
-// widened from the D∞ estimate as far as the design needs for them (see
-// shaping). The on-resonance rotation is the nominal flip: exactly (to about
-// 0.01°) for excitation and saturation, whose β filter has amplitude 1 at zero
-// offset; for 180° designs |β| at zero offset is the passband's largest, kept
-// 1e-6 below 1, which leaves the flip about 0.2° short of 180° (up to 0.6° for
-// linear phase, where the passband may exceed its zero-offset value by a few
-// 1e-6 between design grid points). The first and last samples are small
-// against the peak (about 1 % at TBW 4 and above; see shaping).
+// The β filter is the published equiripple design (Pauly et al. 1991): pass and
+// stop edges (1 ∓ W)·TBW/(2T), W = D∞(δ1, δ2)/TBW, with the filter ripples of
+// Ripples, moved together (see centred) so that the role's profile is half-way
+// at TBW/(2T). The profile ripples are those the published relations give
+// (within 2× of the asked at TBW 4, 8 and 12; 90° excitation exceeds that
+// between, as the published design does). The on-resonance rotation is the
+// nominal flip: exactly (to about 0.01°) for excitation and saturation, whose β
+// filter has amplitude 1 at zero offset; for 180° designs |β| at zero offset is
+// pinned to the top of the passband and kept 1e-7 below 1 (1e-6 for minimum
+// and maximum phase), which leaves the flip about 0.05° short of 180° (up to
+// 0.6° for minimum phase, whose cepstral factor loses a little). Off centre,
+// the default sampling takes 40 samples per cycle of the centre's phase ramp
+// and the field is divided by the sample-and-hold loss sinc(π·center·dwell),
+// so that the rotation at the band's centre is the one designed. The first
+// and last samples carry the equiripple design's end spikes (see the package
+// doc).
 func Pulse(spec Spec, c shape.Common, gamma float64) (*shape.Pulse, error) {
 	p, _, err := design(context.Background(), spec, c, gamma, true)
 	return p, err
@@ -120,6 +138,9 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	if spec.Design < Linear || spec.Design > Maximum {
 		return fail("design: got %v, want linear, minimum or maximum", spec.Design)
 	}
+	if spec.Rising && spec.Design != Linear {
+		return fail("stopband rising: got %v phase, want linear (the rising stopband lowers the end samples of linear-phase designs only)", spec.Design)
+	}
 	tbw := orDefault(spec.TBW, DefaultTBW)
 	pass := orDefault(spec.PassRipple, DefaultRipple)
 	stop := orDefault(spec.StopRipple, DefaultRipple)
@@ -165,45 +186,11 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	if spec.Design != Linear {
 		dinf, taps = DInf(2*d1, d2*d2/2), 2*n-1
 	}
-	tooSmall := func() (*shape.Pulse, *Info, error) {
-		// The design needs a wider transition than D∞ gives (see shaping):
-		// search upward from the D∞ bound for a product that designs.
-		need := math.Max(tbw, float64(n)*dinf/float64(taps)) * 1.02
-		found := false
-		if !suggest {
-			return fail("tbw: got %g, too small", tbw)
-		}
-		for range 12 {
-			need = math.Ceil(need*1000) / 1000
-			// Near the bound a design may succeed and a slightly larger
-			// one fail: suggest a product whose neighbours design too.
-			ok := true
-			for _, k := range []float64{1, 1.001, 1.05} {
-				s := spec
-				s.TBW = need * k
-				if _, _, err := design(ctx, s, c, gamma, false); err != nil {
-					ok = false
-					break
-				}
-			}
-			if ok {
-				found = true
-				break
-			}
-			if err := ctx.Err(); err != nil {
-				return nil, nil, fmt.Errorf("slr: %w", err)
-			}
-			need *= 1.08
-		}
-		if !found {
-			return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want larger ripples", tbw, d1, d2, pass, stop, role, spec.Design)
-		}
-		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want at least %.4g, or larger ripples",
-			tbw, d1, d2, pass, stop, role, spec.Design, need)
-	}
 	if fp, _ := edges(n, taps, tbw, dinf); !(fp > 0) {
-		// fp > 0 ⇔ tbw > n·D∞/taps.
-		return tooSmall()
+		// fp > 0 ⇔ W < 1 ⇔ tbw > n·D∞/taps: the transition fits the band.
+		need := math.Ceil(float64(n)*dinf/float64(taps)*1.001*1000) / 1000
+		return fail("tbw: got %g, too small for filter ripples %.3g and %.3g (pass %g, stop %g, %v, %v phase): want more than %.4g, or larger ripples",
+			tbw, d1, d2, pass, stop, role, spec.Design, need)
 	}
 	if _, fs := edges(n, taps, tbw, dinf); !(fs < 0.5) {
 		need := n
@@ -227,19 +214,22 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 			putCepstrum(cep)
 		}
 	}()
-	// Where the passband ripple could carry |β| above 1, the passband is kept
-	// below its value at zero offset (see shaping).
+	// Where the passband ripple could carry |β| above 1, zero offset is kept
+	// the passband's largest amplitude (see lowpass).
 	top := math.Sin(flip/2)*(1+d1) > 1-betaMargin
-	h, fp, fs, method, err := betaFilter(ctx, n, tbw, d1, d2, spec.Design, top, cep)
-	if errors.Is(err, errNarrow) {
-		putCepstrum(cep)
-		cep = nil
-		return tooSmall()
+	sh := shaping{top: top}
+	if spec.Rising {
+		sh.slope = risingSlope
 	}
+	h, fp, fs, method, err := betaFilter(ctx, n, tbw, d1, d2, HalfLevel(role, flip), spec.Design, sh, cep)
 	if err != nil {
 		return nil, nil, fmt.Errorf("slr: %w", err)
 	}
-	a, b, scaled := polynomials(h, flip, cep)
+	margin := betaMargin
+	if spec.Design != Linear {
+		margin = phaseMargin
+	}
+	a, b, scaled := polynomials(h, flip, margin, cep)
 	rf := Inverse(a, b)
 	p := &shape.Pulse{
 		Shape:     "slr",
@@ -253,6 +243,14 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	p.Wave.Dwell = make([]float64, n)
 	p.Wave.B1 = make([]complex128, n)
 	T := c.Duration
+	// The ramp held over each sample scales the field at the centre by
+	// sinc(π·center·dwell) (the spectrum of a sample-and-hold); dividing it
+	// out keeps the designed rotation at the band's centre (0.1 % of the flip,
+	// 0.2° of a 180°, at the default 40 samples per cycle).
+	hold := 1.0
+	if x := math.Pi * c.Center * dt; x != 0 {
+		hold = math.Sin(x) / x
+	}
 	for j, r := range rf {
 		p.Wave.Dwell[j] = dt
 		// rf = γ·B1·Δt. Phase and Center as for every shape: the ramp
@@ -261,7 +259,7 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 		// spin at offset Δf turns as exp(−i·2πΔf·t) in the carrier frame.
 		ph := c.Phase - 2*math.Pi*c.Center*((float64(j)+0.5)*dt-T/2)
 		s, co := math.Sincos(ph)
-		p.Wave.B1[j] = r / complex(gamma*dt, 0) * complex(co, s)
+		p.Wave.B1[j] = r / complex(gamma*dt*hold, 0) * complex(co, s)
 	}
 	if err := slice(p, c); err != nil {
 		return nil, nil, err
@@ -287,6 +285,9 @@ func orDefault(v, def float64) float64 {
 const (
 	samplesPerTBW    = 8
 	minSamplesPerTBW = 3
+	// centerSamplesPerCycle is the default samples per cycle of an off-centre
+	// band's phase ramp, as package shape takes for every other shape.
+	centerSamplesPerCycle = 40
 )
 
 // sampling returns the number of samples and the dwell from c for a design of
@@ -310,6 +311,16 @@ func sampling(c shape.Common, tbw float64) (int, float64, error) {
 	}
 	if n == 0 {
 		n = min(MaxSamples, max(DefaultSamples, int(math.Ceil(samplesPerTBW*tbw))))
+		// An off-centre band is a phase ramp held over each sample, which
+		// scales the band by sinc(π·center·dwell) (the spectrum of a
+		// sample-and-hold): as for every shape, the default takes at least
+		// centerSamplesPerCycle samples per cycle of the ramp (0.1 %).
+		if need := math.Ceil(centerSamplesPerCycle * math.Abs(c.Center) * c.Duration); need > float64(n) {
+			if need > MaxSamples {
+				return 0, 0, fmt.Errorf("center %g Hz over %g s needs %.0f samples (1/%d cycle each), want at most %d: give samples or dwell, or a shorter duration", c.Center, c.Duration, need, centerSamplesPerCycle, MaxSamples)
+			}
+			n = int(need)
+		}
 	}
 	if n < 8 || n > MaxSamples {
 		return 0, 0, fmt.Errorf("samples: got %d, want 8 to %d", n, MaxSamples)
@@ -320,28 +331,9 @@ func sampling(c shape.Common, tbw float64) (int, float64, error) {
 	return n, c.Duration / float64(n), nil
 }
 
-// slice sets the slice-select gradient: thickness = BW/(γ̄·G) (common practice).
+// slice sets the slice-select gradient as for every shape (shape.SetSlice): a
+// thickness is turned into a gradient through the measured width of the role's
+// own profile.
 func slice(p *shape.Pulse, c shape.Common) error {
-	if c.Gradient != 0 && c.Thickness != 0 {
-		return fmt.Errorf("slr: gradient and thickness: got both, want one")
-	}
-	g := c.Gradient
-	if c.Thickness != 0 {
-		if !(c.Thickness > 0) || math.IsInf(c.Thickness, 0) {
-			return fmt.Errorf("slr: thickness: got %g m, want > 0", c.Thickness)
-		}
-		g = 2 * math.Pi * p.Bandwidth / (math.Abs(p.Gamma) * c.Thickness)
-	}
-	if math.IsNaN(g) || math.IsInf(g, 0) {
-		return fmt.Errorf("slr: gradient: got %g T/m, want a finite value", g)
-	}
-	if g == 0 {
-		return nil
-	}
-	p.Gradient = g
-	p.Wave.Gradient = make([]float64, p.Wave.Len())
-	for j := range p.Wave.Gradient {
-		p.Wave.Gradient[j] = g
-	}
-	return nil
+	return shape.SetSlice(p, c)
 }

@@ -6,49 +6,19 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"strings"
 	"testing"
 
 	"Nutate/physics/shape"
 )
 
-// endBound is the largest |B1| allowed in the first and last samples, as a
-// fraction of the peak. A usable pulse falls close to zero at its ends (common
-// practice); the plain equiripple β filter puts 10 % to 100 % there (its flat
-// stopband error transforms to spikes in the end taps). 3 % is met with margin
-// by the shaped designs at TBW 4 and above.
-const endBound = 0.03
-
-// The end samples of typical designs are small against the peak, in every role
-// and phase.
-func TestEndSamplesSmall(t *testing.T) {
-	g := proton(t)
-	cases := designCases()
-	for _, p := range roleProfiles {
-		for _, tbw := range []float64{4, 6, 12} {
-			cases = append(cases, designCase{p, Linear, tbw, 0.01, 0.01}, designCase{p, Minimum, tbw, 0.01, 0.01})
-		}
-	}
-	for _, c := range cases {
-		t.Run(fmt.Sprintf("%s_%v_tbw%g_%g_%g", c.prof.name, c.design, c.tbw, c.pass, c.stop), func(t *testing.T) {
-			p, _ := c.build(t, g, 4e-3) // the same designs as the other tests (cached)
-			n := p.Wave.Len()
-			pk := p.Peak()
-			end := math.Max(cmplx.Abs(p.Wave.B1[0]), cmplx.Abs(p.Wave.B1[n-1])) / pk
-			t.Logf("end samples %.4f of the peak", end)
-			if end > endBound {
-				t.Errorf("end sample %.4f of the peak, want ≤ %g", end, endBound)
-			}
-		})
-	}
-}
-
-// The on-resonance rotation is the nominal flip: |β(0)| = sin(θ/2) (Pauly et al.
-// 1991). Excitation and saturation pin the β filter's amplitude at zero offset to
-// 1, so the flip holds to 0.05°; 180° designs keep |β| < 1 by 1e-6 (betaMargin,
-// 0.16° of flip) and the passband below its value at zero offset on the design
-// grid, which leaves a shortfall ε of |β(0)| between grid points of a few 1e-6
-// (√(8ε) rad of flip): at least 179.4° (the brief's 179.5° for TBW 8 is
-// checked in TestInversionOnResonance).
+// The on-resonance rotation is the nominal flip within the passband ripple: the
+// published β filter is 1 ± δ1 across its passband, zero offset included (Pauly
+// et al. 1991), so the role's profile at zero offset is within the asked pass
+// ripple of its pass value (2× allowed, as for the ripple checks); 180° designs
+// pin |β(0)| to the top of the passband (lowpass) and keep it below 1 by
+// betaMargin, 0.05° of flip (phaseMargin, 0.16°, for minimum phase); the cepstral minimum-phase factor loses a little
+// more: at least 179.4°.
 func TestOnResonanceFlip(t *testing.T) {
 	g := proton(t)
 	var cases []designCase
@@ -65,14 +35,14 @@ func TestOnResonanceFlip(t *testing.T) {
 			r := simulate(t, p, []float64{0})
 			flip := 2 * math.Asin(math.Min(1, cmplx.Abs(r.Beta[0]))) * 180 / math.Pi
 			want := p.Flip * 180 / math.Pi
-			t.Logf("on-resonance flip %.3f°, nominal %g°", flip, want)
-			if want == 180 {
-				if flip < 179.4 {
-					t.Errorf("on-resonance flip %.3f°, want ≥ 179.4°", flip)
-				}
-				return
+			v := c.prof.value(r.Mx[0], r.My[0], r.Mz[0], r.Beta[0])
+			t.Logf("on-resonance flip %.3f°, nominal %g°; profile %.5f, pass value %g", flip, want, v, c.prof.passTarget)
+			if want == 180 && flip < 179.4 {
+				t.Errorf("on-resonance flip %.3f°, want ≥ 179.4°", flip)
 			}
-			within(t, "on-resonance flip (deg)", flip, want, 0.05)
+			if d := math.Abs(v - c.prof.passTarget); d > 2*c.pass {
+				t.Errorf("on-resonance profile %.5f, want %g ± 2 × %g", v, c.prof.passTarget, c.pass)
+			}
 		})
 	}
 }
@@ -116,5 +86,100 @@ func TestWideBandDefaultSamples(t *testing.T) {
 	}
 	if pr.PassRipple > 0.015 || pr.StopRipple > 0.015 {
 		t.Errorf("ripples pass %.4f, stop %.4f; want ≤ 0.015 for a 1 %% design", pr.PassRipple, pr.StopRipple)
+	}
+}
+
+// 180° designs change smoothly with the time-bandwidth product (5 ms, TBW 4 to
+// 12 in steps of 0.4, 1 %/1 %): the role's profile is half-way at TBW/(2T)
+// within 2 % (CHECKS.md) at every step, the measured transition (as in
+// TestAgainstScipyReference) changes by at most 6 % from step to step (the
+// published width D∞/TBW·TBW/T does not change at all), and the peak B1 by a
+// factor within 0.9 to 1.2 (about +9 % per step is the growth of a peak ∝ TBW).
+func TestSmoothInTBW(t *testing.T) {
+	g := proton(t)
+	const T = 5e-3
+	for _, pi := range []int{2, 3} {
+		prof := roleProfiles[pi]
+		for _, d := range []Design{Linear, Minimum} {
+			t.Run(fmt.Sprintf("%s_%v", prof.name, d), func(t *testing.T) {
+				prevTr, prevPk := math.NaN(), math.NaN()
+				for k := 0; k <= 20; k++ {
+					tbw := 4 + 0.4*float64(k)
+					spec := NewSpec(prof.role)
+					spec.TBW, spec.Design = tbw, d
+					cm := shape.NewCommon()
+					cm.Duration = T
+					p, info, err := PulseInfo(spec, cm, g)
+					if err != nil {
+						t.Fatal(err)
+					}
+					m := measureRole(t, p, prof, tbw, T, info.PassEdge, info.StopEdge, 0.01, 4001)
+					pk := p.Peak()
+					t.Logf("tbw %.1f: half-way %.2f Hz, transition %.1f Hz, peak %.2f µT", tbw, m.half, m.transition, pk*1e6)
+					want := tbw / (2 * T)
+					if math.Abs(m.half-want) > 0.02*want {
+						t.Errorf("tbw %.1f: half-way at %.2f Hz, want %.2f ± 2 %%", tbw, m.half, want)
+					}
+					if r := m.transition / prevTr; math.Abs(r-1) > 0.06 {
+						t.Errorf("tbw %.1f: transition %.1f Hz after %.1f Hz, want a change within 6 %%", tbw, m.transition, prevTr)
+					}
+					if r := pk / prevPk; r < 0.9 || r > 1.2 {
+						t.Errorf("tbw %.1f: peak %.2f µT after %.2f µT, want a ratio within 0.9 to 1.2", tbw, pk*1e6, prevPk*1e6)
+					}
+					prevTr, prevPk = m.transition, pk
+				}
+			})
+		}
+	}
+}
+
+// The opt-in rising stopband (Spec.Rising) earns its place: the published flat
+// stopband puts 5–80 % of the peak in the end samples (a comb of equal stopband
+// ripples transforms to spikes in the end taps; Parks & McClellan's equiripple
+// property), the rising one at most 2 %, with the role's profile still half-way
+// at TBW/(2T) within 2 % (CHECKS.md) and the ripples within 2× of the asked
+// (CHECKS.md) except for 90° excitation, whose cost is documented (within 5×).
+func TestRisingStopband(t *testing.T) {
+	g := proton(t)
+	const T = 8e-3
+	for _, prof := range roleProfiles {
+		for _, tbw := range []float64{8, 12} {
+			t.Run(fmt.Sprintf("%s_tbw%g", prof.name, tbw), func(t *testing.T) {
+				spec := NewSpec(prof.role)
+				spec.TBW, spec.Rising = tbw, true
+				c := shape.NewCommon()
+				c.Duration = T
+				c.Flip = prof.flip
+				p, info, err := PulseInfo(spec, c, g)
+				if err != nil {
+					t.Fatal(err)
+				}
+				n := p.Wave.Len()
+				end := math.Max(cmplx.Abs(p.Wave.B1[0]), cmplx.Abs(p.Wave.B1[n-1])) / p.Peak()
+				m := measureRole(t, p, prof, tbw, T, info.PassEdge, info.StopEdge, 0.01, 4001)
+				t.Logf("end samples %.4f of the peak; half-way %.2f Hz; ripples %.4f, %.4f", end, m.half, m.pass, m.stop)
+				if end > 0.02 {
+					t.Errorf("end samples %.4f of the peak, want ≤ 0.02", end)
+				}
+				want := tbw / (2 * T)
+				if math.Abs(m.half-want) > 0.02*want {
+					t.Errorf("half-way at %.2f Hz, want %.2f ± 2 %%", m.half, want)
+				}
+				lim := 2.0
+				if prof.role == shape.RoleExcite && prof.flip == math.Pi/2 {
+					lim = 5
+				}
+				if m.pass > lim*0.01 || m.stop > lim*0.01 {
+					t.Errorf("ripples %.4f, %.4f, want ≤ %g × 0.01", m.pass, m.stop, lim)
+				}
+			})
+		}
+	}
+	spec := NewSpec(shape.RoleInvert)
+	spec.Rising, spec.Design = true, Minimum
+	c := shape.NewCommon()
+	c.Duration = T
+	if _, err := Pulse(spec, c, g); err == nil || !strings.Contains(err.Error(), "want linear") {
+		t.Errorf("rising minimum phase: err %v, want one asking for linear phase", err)
 	}
 }

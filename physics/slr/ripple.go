@@ -71,6 +71,26 @@ func Ripples(role shape.Role, flip, pass, stop float64) (d1, d2 float64) {
 	return pass, stop
 }
 
+// HalfLevel is the β filter amplitude |β|/sin(θ/2) at which the profile of a
+// pulse of role and flip (rad) is half-way between its pass and stop values:
+// inversion Mz = 1 − 2|β|² = 0 and refocusing |β|² = ½ at |β| = 1/√2;
+// saturation Mz = ½ at |β| = ½; excitation |Mxy| = 2|β|·√(1 − |β|²) = ½·sin θ
+// at |β|² = (1 − √(1 − ¼·sin²θ))/2 (Pauly et al. 1991 for the profiles; the
+// solutions are elementary).
+func HalfLevel(role shape.Role, flip float64) float64 {
+	var b float64
+	switch role {
+	case shape.RoleInvert, shape.RoleRefocus:
+		b = math.Sqrt(0.5)
+	case shape.RoleSaturate:
+		b = 0.5
+	default:
+		s := math.Sin(flip)
+		b = math.Sqrt((1 - math.Sqrt(1-s*s/4)) / 2)
+	}
+	return b / math.Sin(flip/2)
+}
+
 // Design is the phase of the β filter, which sets the phase of the profile and
 // where the pulse's energy sits in time.
 type Design int

@@ -304,40 +304,47 @@ func TestDesignedPulses(t *testing.T) {
 				t.Errorf("stopband ripple %.4g, want ≤ 2 × %g", stopDev, c.stop)
 			}
 
-			// 50 % points of |β| relative to its passband mean, both sides
-			// (the filter's band edge, which the TBW defines).
+			// The role's own profile is half-way between its pass and stop
+			// values at TBW/(2T), both sides (CHECKS.md; Pauly et al. 1991).
 			want := c.tbw / (2 * T)
-			b0, np := 0.0, 0
-			for i, f := range offs {
-				if math.Abs(f) <= info.PassEdge {
-					b0 += cmplx.Abs(res.Beta[i])
-					np++
-				}
+			vals := make([]float64, len(offs))
+			for i := range offs {
+				vals[i] = c.prof.value(res.Mx[i], res.My[i], res.Mz[i], res.Beta[i])
 			}
-			b0 /= float64(np)
+			mid := (c.prof.passTarget + c.prof.stopTarget) / 2
+			if c.prof.flip > math.Pi/2 {
+				// Above 90° |Mxy| is not monotonic in |β| (it passes sin 90°
+				// = 1 in the transition): no published half-way rule.
+				return
+			}
 			for _, side := range []float64{1, -1} {
-				f50 := halfPoint(offs, res.Beta, b0, side)
-				t.Logf("50%% point %+.2f Hz, want %+.2f", f50, side*want)
+				f50 := halfPoint(offs, vals, mid, c.prof.passTarget > c.prof.stopTarget, side)
+				t.Logf("half-way point %+.2f Hz, want %+.2f", f50, side*want)
 				if math.Abs(f50-side*want) > 0.02*want {
-					t.Errorf("50 %% point at %+.2f Hz, want %+.2f ± 2 %%", f50, side*want)
+					t.Errorf("half-way point at %+.2f Hz, want %+.2f ± 2 %%", f50, side*want)
 				}
 			}
 		})
 	}
 }
 
-// halfPoint finds where |β| first falls to half of b0 going out from 0 Hz on the
-// side given, interpolating linearly between offsets.
-func halfPoint(offs []float64, beta []complex128, b0, side float64) float64 {
-	mid := len(offs) / 2
+// halfPoint finds where the profile v first crosses mid going out from 0 Hz on
+// the side given (falling through it when down, rising otherwise),
+// interpolating linearly between offsets.
+func halfPoint(offs, v []float64, mid float64, down bool, side float64) float64 {
+	sgn := 1.0
+	if !down {
+		sgn = -1
+	}
+	c := len(offs) / 2
 	dir := 1
 	if side < 0 {
 		dir = -1
 	}
-	for i := mid; i+dir >= 0 && i+dir < len(offs); i += dir {
-		v0, v1 := cmplx.Abs(beta[i])/b0, cmplx.Abs(beta[i+dir])/b0
-		if v0 >= 0.5 && v1 < 0.5 {
-			return offs[i] + (offs[i+dir]-offs[i])*(v0-0.5)/(v0-v1)
+	for i := c; i+dir >= 0 && i+dir < len(offs); i += dir {
+		v0, v1 := sgn*(v[i]-mid), sgn*(v[i+dir]-mid)
+		if v0 >= 0 && v1 < 0 {
+			return offs[i] + (offs[i+dir]-offs[i])*v0/(v0-v1)
 		}
 	}
 	return math.NaN()
