@@ -49,8 +49,9 @@ func TestProgressDisplayCleared(t *testing.T) {
 		code    string
 		results int // displays of results the cell makes
 	}{
-		{"sweep p over offset -20 kHz to 20 kHz points 3000 show mz", 1},
-		{"print 1 kHz in uT\nsweep p over offset -20 kHz to 20 kHz points 3000 show mz\nprint 2 kHz in uT", 3},
+		// A sweep answers with its figure, then its table.
+		{"sweep p over offset -20 kHz to 20 kHz points 3000 show mz", 2},
+		{"print 1 kHz in uT\nsweep p over offset -20 kHz to 20 kHz points 3000 show mz\nprint 2 kHz in uT", 4},
 	}
 	for _, c := range cells {
 		outs, err := run(c.code)
@@ -86,9 +87,12 @@ func TestProgressDisplayCleared(t *testing.T) {
 				t.Errorf("%q: kept output %d is not a result: %+v", c.code, i+1, o)
 			}
 		}
-		if c.results == 3 {
+		if c.results == 4 {
 			first, _ := store[0].Data["text/plain"].(string)
-			last, _ := store[2].Data["text/plain"].(string)
+			last, _ := store[3].Data["text/plain"].(string)
+			if _, ok := store[1].Data["image/svg+xml"]; !ok {
+				t.Errorf("%q: kept output 2 is not the sweep's figure: %+v", c.code, store[1])
+			}
 			if !strings.HasSuffix(first, "µT") || !strings.HasSuffix(last, "µT") {
 				t.Errorf("%q: kept outputs %q … %q, want the prints first and last", c.code, first, last)
 			}

@@ -61,10 +61,12 @@ Recording(long_nb, timeout=120, kernel_name="nutate", resources={"metadata": {"p
 check(Recording.progress_msgs > 0, "progress cell: no progress display was sent (the sweep is too short to test)")
 outs = long_nb.cells[1].outputs
 kinds = [sorted(o.get("data", {})) for o in outs]
-check(len(outs) == 3, "progress cell: nbclient stored %d outputs %r, want 3 results" % (len(outs), kinds))
+# the print, the sweep's figure and its table, the second print
+check(len(outs) == 4, "progress cell: nbclient stored %d outputs %r, want 4 results" % (len(outs), kinds))
+check("image/svg+xml" in outs[1].get("data", {}), "progress cell: output 2 is not the figure %r" % kinds)
 for o in outs:
     text = o.get("data", {}).get("text/plain", "")
     check(o.output_type == "display_data" and "".join(text).strip(), "progress cell: empty or odd output %r" % o)
-check("µT" in "".join(outs[0].data["text/plain"]) and "µT" in "".join(outs[2].data["text/plain"]),
+check("µT" in "".join(outs[0].data["text/plain"]) and "µT" in "".join(outs[3].data["text/plain"]),
       "progress cell: results out of order %r" % kinds)
 ok("nbclient_progress_leaves_nothing (%d outputs after %d progress messages)" % (len(outs), Recording.progress_msgs))
