@@ -37,3 +37,17 @@ func TestDynamicallyLinked(t *testing.T) {
 		t.Error("a shell script was reported as a dynamically linked ELF")
 	}
 }
+
+// The hint after an install from `go run` names the binary and the shell of
+// each system.
+func TestBuildHint(t *testing.T) {
+	for goos, want := range map[string]string{
+		"linux":   "CGO_ENABLED=0 go build -o nutate . && ./nutate install",
+		"darwin":  "CGO_ENABLED=0 go build -o nutate . && ./nutate install",
+		"windows": `$env:CGO_ENABLED=0; go build -o nutate.exe .; .\nutate.exe install`,
+	} {
+		if got := buildHint(goos); got != want {
+			t.Errorf("buildHint(%q) = %q, want %q", goos, got, want)
+		}
+	}
+}
