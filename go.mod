@@ -1,6 +1,6 @@
 module Nutate
 
-go 1.26.8
+go 1.24.0
 
 require (
 	github.com/go-zeromq/zmq4 v0.17.0
