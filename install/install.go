@@ -3,7 +3,7 @@
 // (logo-32x32.png, logo-64x64.png) inside a Jupyter "kernels" directory.
 //
 // Entry points: UserKernelsDir, PrefixKernelsDir and SysPrefixKernelsDir find
-// where to install (per system: Linux, macOS, Windows); Install writes the spec (idempotently: running it again
+// where to install; Install writes the spec (idempotently: running it again
 // rewrites the same files); Uninstall removes it.
 package install
 
@@ -29,21 +29,9 @@ type Spec struct {
 	Metadata      map[string]any    `json:"metadata,omitempty"`
 }
 
-// BinaryName is the file name the README's build gives the binary on the
-// system goos: nutate.exe on Windows (which runs only files so named), else
-// nutate.
-func BinaryName(goos string) string {
-	if goos == "windows" {
-		return "nutate.exe"
-	}
-	return "nutate"
-}
-
 // NewSpec returns the kernelspec that launches binary (an absolute path) as
 // `binary kernel --connection-file {connection_file}`. Interrupts travel as
-// messages on the control channel (interrupt_mode "message") on every
-// system: Windows has no SIGINT to send, and on Unix the message reaches the
-// kernel as surely as the signal.
+// messages on the control channel.
 func NewSpec(binary, version string) Spec {
 	return Spec{
 		Argv:          []string{binary, "kernel", "--connection-file", "{connection_file}"},
@@ -141,6 +129,18 @@ func sysPrefixKernelsDir(goos string, getenv func(string) string) (string, error
 		return filepath.Join(p, "jupyter", "kernels"), nil
 	}
 	return "", fmt.Errorf("--sys-prefix: got no VIRTUAL_ENV, CONDA_PREFIX or PROGRAMDATA, want one of them (or use --prefix DIR)")
+}
+
+// BinaryName is the file name the README's build gives the binary on the
+// system goos: nutate.exe on Windows (which runs only files so named), else
+// nutate. The kernelspec is the same on every system: its interrupt_mode
+// "message" (interrupt_request on the control channel) is what Windows needs,
+// having no SIGINT for Jupyter to send, and works on Unix as well.
+func BinaryName(goos string) string {
+	if goos == "windows" {
+		return "nutate.exe"
+	}
+	return "nutate"
 }
 
 // Install writes the kernelspec into kernelsDir/nutate, creating directories
