@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"net"
 	"path/filepath"
+	"syscall"
 	"testing"
 )
 
@@ -113,5 +114,30 @@ func TestBindAllIPC(t *testing.T) {
 		}
 		c.Close()
 		ln.Close()
+	}
+}
+
+// Both ways of opening a socket (flags in the call on Linux, set afterwards
+// on macOS) give one that is close-on-exec and non-blocking, as net.Listen's.
+func TestSocketFlags(t *testing.T) {
+	for name, open := range map[string]func(int) (int, error){"socket": socket, "socketThenFlags": socketThenFlags} {
+		for _, family := range []int{syscall.AF_INET, syscall.AF_UNIX} {
+			fd, err := open(family)
+			if err != nil {
+				t.Fatalf("%s(%d): %v", name, family, err)
+			}
+			fdFlags, _, e1 := syscall.Syscall(syscall.SYS_FCNTL, uintptr(fd), syscall.F_GETFD, 0)
+			flFlags, _, e2 := syscall.Syscall(syscall.SYS_FCNTL, uintptr(fd), syscall.F_GETFL, 0)
+			syscall.Close(fd)
+			if e1 != 0 || e2 != 0 {
+				t.Fatalf("fcntl: %v %v", e1, e2)
+			}
+			if fdFlags&syscall.FD_CLOEXEC == 0 {
+				t.Errorf("%s(%d): not close-on-exec", name, family)
+			}
+			if flFlags&syscall.O_NONBLOCK == 0 {
+				t.Errorf("%s(%d): blocking", name, family)
+			}
+		}
 	}
 }

@@ -2,24 +2,5 @@
 
 package prebind
 
-import "syscall"
-
-// socket opens a stream socket, then makes it close-on-exec and non-blocking
-// (macOS has no SOCK_CLOEXEC or SOCK_NONBLOCK flags), holding syscall.ForkLock
-// as package net does so that no process started meanwhile inherits it.
-func socket(family int) (int, error) {
-	syscall.ForkLock.RLock()
-	fd, err := syscall.Socket(family, syscall.SOCK_STREAM, 0)
-	if err == nil {
-		syscall.CloseOnExec(fd)
-	}
-	syscall.ForkLock.RUnlock()
-	if err != nil {
-		return -1, err
-	}
-	if err := syscall.SetNonblock(fd, true); err != nil {
-		syscall.Close(fd)
-		return -1, err
-	}
-	return fd, nil
-}
+// socket: macOS has no SOCK_CLOEXEC or SOCK_NONBLOCK flags.
+func socket(family int) (int, error) { return socketThenFlags(family) }
