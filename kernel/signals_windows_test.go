@@ -10,6 +10,41 @@ import (
 	"time"
 )
 
+var (
+	kernel32    = syscall.NewLazyDLL("kernel32.dll")
+	createEvent = kernel32.NewProc("CreateEventW")
+	setEvent    = kernel32.NewProc("SetEvent")
+)
+
+// The interrupt event a Windows client passes in JPY_INTERRUPT_EVENT (an
+// auto-reset event, as jupyter_client creates it) interrupts the running
+// cell each time it is set.
+func TestInterruptEvent(t *testing.T) {
+	h, _, err := createEvent.Call(0, 0, 0, 0) // no attributes, auto-reset, not set, no name
+	if h == 0 {
+		t.Fatal("CreateEventW:", err)
+	}
+	defer syscall.CloseHandle(syscall.Handle(h))
+	t.Setenv("JPY_INTERRUPT_EVENT", strconv.FormatUint(uint64(h), 10))
+	sys := notifySystem()
+	defer sys.stop()
+	for i := 0; i < 2; i++ {
+		if r, _, err := setEvent.Call(h); r == 0 {
+			t.Fatal("SetEvent:", err)
+		}
+		select {
+		case <-sys.interrupt:
+		case <-time.After(10 * time.Second):
+			t.Fatalf("interrupt %d: not reported", i+1)
+		}
+	}
+	select {
+	case <-sys.interrupt:
+		t.Fatal("an interrupt reported with the event not set")
+	case <-time.After(4 * waitSlice * time.Millisecond):
+	}
+}
+
 // JPY_PARENT_PID as jupyter_client sets it on Windows, a handle of the parent
 // process: the watch stays quiet while the process lives and reports its exit.
 func TestWatchParentHandle(t *testing.T) {
