@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 
 	"Nutate/install"
@@ -15,10 +16,12 @@ import (
 // cmdInstall writes (or with --uninstall removes) the kernelspec "nutate".
 //
 //	--user        per-user kernels directory (the default): $JUPYTER_DATA_DIR,
-//	              else ~/.local/share/jupyter (Linux), ~/Library/Jupyter (macOS)
+//	              else ~/.local/share/jupyter (Linux), ~/Library/Jupyter (macOS),
+//	              %APPDATA%\jupyter (Windows)
 //	--prefix DIR  DIR/share/jupyter/kernels
 //	--sys-prefix  the active Python environment without running Python:
-//	              $VIRTUAL_ENV, else $CONDA_PREFIX, else /usr/local
+//	              $VIRTUAL_ENV, else $CONDA_PREFIX, else the system-wide
+//	              /usr/local/share/jupyter (Unix), %PROGRAMDATA%\jupyter (Windows)
 func cmdInstall(args []string) int {
 	fs := flag.NewFlagSet("install", flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
@@ -57,7 +60,12 @@ func cmdInstall(args []string) int {
 		}
 		kernels = install.PrefixKernelsDir(abs)
 	case *sysPrefix:
-		kernels = install.PrefixKernelsDir(install.SysPrefix())
+		d, err := install.SysPrefixKernelsDir()
+		if err != nil {
+			fmt.Fprintf(os.Stderr, "nutate install: %v\n", err)
+			return 1
+		}
+		kernels = d
 	default:
 		d, err := install.UserKernelsDir()
 		if err != nil {
@@ -91,7 +99,7 @@ func cmdInstall(args []string) int {
 		return 1
 	}
 	if goRunBinary(bin) {
-		fmt.Fprintf(os.Stderr, "nutate install: %s is a temporary binary of `go run`, gone when it exits; build one to keep and install from it:\n  CGO_ENABLED=0 go build -o nutate . && ./nutate install\n", bin)
+		fmt.Fprintf(os.Stderr, "nutate install: %s is a temporary binary of `go run`, gone when it exits; build one to keep and install from it:\n  %s\n", bin, buildHint(runtime.GOOS))
 		return 1
 	}
 	spec := install.NewSpec(bin, version)
@@ -118,6 +126,16 @@ func cmdInstall(args []string) int {
 		fmt.Fprintln(os.Stderr, "note: this binary is dynamically linked (built with cgo); `CGO_ENABLED=0 go build -o nutate .` gives the single static binary, which also starts faster")
 	}
 	return 0
+}
+
+// buildHint is the command that builds a binary to keep and installs it, in
+// the shell of the system goos.
+func buildHint(goos string) string {
+	name := install.BinaryName(goos)
+	if goos == "windows" {
+		return "$env:CGO_ENABLED=0; go build -o " + name + " .; .\\" + name + " install"
+	}
+	return "CGO_ENABLED=0 go build -o " + name + " . && ./" + name + " install"
 }
 
 // goRunBinary tells whether bin is the temporary executable `go run` builds

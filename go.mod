@@ -1,6 +1,6 @@
 module Nutate
 
-go 1.26.8
+go 1.24.0
 
 require (
 	codeberg.org/go-pdf/fpdf v0.11.1

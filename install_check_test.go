@@ -3,6 +3,7 @@ package main
 import (
 	"os"
 	"path/filepath"
+	"runtime"
 	"testing"
 )
 
@@ -23,6 +24,9 @@ func TestGoRunBinary(t *testing.T) {
 // dynamicallyLinked reads ELF program headers: the system shell (a C program)
 // has an interpreter; a file that is not ELF is reported as not dynamic.
 func TestDynamicallyLinked(t *testing.T) {
+	if runtime.GOOS != "linux" {
+		t.Skip("ELF executables: Linux")
+	}
 	if _, err := os.Stat("/bin/sh"); err != nil {
 		t.Skip("no /bin/sh")
 	}
@@ -35,5 +39,19 @@ func TestDynamicallyLinked(t *testing.T) {
 	}
 	if dynamicallyLinked(notELF) {
 		t.Error("a shell script was reported as a dynamically linked ELF")
+	}
+}
+
+// The hint after an install from `go run` names the binary and the shell of
+// each system.
+func TestBuildHint(t *testing.T) {
+	for goos, want := range map[string]string{
+		"linux":   "CGO_ENABLED=0 go build -o nutate . && ./nutate install",
+		"darwin":  "CGO_ENABLED=0 go build -o nutate . && ./nutate install",
+		"windows": `$env:CGO_ENABLED=0; go build -o nutate.exe .; .\nutate.exe install`,
+	} {
+		if got := buildHint(goos); got != want {
+			t.Errorf("buildHint(%q) = %q, want %q", goos, got, want)
+		}
 	}
 }

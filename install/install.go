@@ -54,30 +54,56 @@ func NewSpec(binary, version string) Spec {
 }
 
 // UserKernelsDir returns the per-user Jupyter kernels directory, as Jupyter
-// finds it: $JUPYTER_DATA_DIR/kernels if set; otherwise on Linux and other
-// Unix $XDG_DATA_HOME/jupyter/kernels (default ~/.local/share/jupyter/kernels),
-// on macOS ~/Library/Jupyter/kernels, on Windows %APPDATA%\jupyter\kernels.
+// (jupyter_core's jupyter_data_dir) finds it: $JUPYTER_DATA_DIR/kernels if
+// set; otherwise on macOS ~/Library/Jupyter/kernels; on Windows
+// %APPDATA%\jupyter\kernels (without APPDATA, the data folder of the config
+// directory: %JUPYTER_CONFIG_DIR%\data\kernels, else ~\.jupyter\data\kernels);
+// on Linux and other Unix $XDG_DATA_HOME/jupyter/kernels, by default
+// ~/.local/share/jupyter/kernels.
 func UserKernelsDir() (string, error) {
-	if d := os.Getenv("JUPYTER_DATA_DIR"); d != "" {
+	home, err := os.UserHomeDir()
+	return userKernelsDir(runtime.GOOS, os.Getenv, home, err)
+}
+
+// userKernelsDir is UserKernelsDir for the system goos (a GOOS value), with
+// the environment read through getenv and the home directory given (homeErr
+// when it is unknown), so that tests cover every system on any host.
+func userKernelsDir(goos string, getenv func(string) string, home string, homeErr error) (string, error) {
+	if d := getenv("JUPYTER_DATA_DIR"); d != "" {
 		return filepath.Join(d, "kernels"), nil
 	}
-	home, err := os.UserHomeDir()
-	switch runtime.GOOS {
-	case "darwin":
-		if err != nil {
-			return "", fmt.Errorf("user kernels directory: %w", err)
+	needHome := func() error {
+		if homeErr != nil {
+			return fmt.Errorf("user kernels directory: %w", homeErr)
+		}
+		if home == "" {
+			return fmt.Errorf("user kernels directory: got no home directory, want one (or set JUPYTER_DATA_DIR)")
+		}
+		return nil
+	}
+	switch goos {
+	case "darwin", "ios":
+		if err := needHome(); err != nil {
+			return "", err
 		}
 		return filepath.Join(home, "Library", "Jupyter", "kernels"), nil
 	case "windows":
-		if a := os.Getenv("APPDATA"); a != "" {
+		if a := getenv("APPDATA"); a != "" {
 			return filepath.Join(a, "jupyter", "kernels"), nil
 		}
+		if c := getenv("JUPYTER_CONFIG_DIR"); c != "" {
+			return filepath.Join(c, "data", "kernels"), nil
+		}
+		if err := needHome(); err != nil {
+			return "", err
+		}
+		return filepath.Join(home, ".jupyter", "data", "kernels"), nil
 	}
-	if x := os.Getenv("XDG_DATA_HOME"); x != "" {
+	if x := getenv("XDG_DATA_HOME"); x != "" {
 		return filepath.Join(x, "jupyter", "kernels"), nil
 	}
-	if err != nil {
-		return "", fmt.Errorf("user kernels directory: %w", err)
+	if err := needHome(); err != nil {
+		return "", err
 	}
 	return filepath.Join(home, ".local", "share", "jupyter", "kernels"), nil
 }
@@ -88,16 +114,41 @@ func PrefixKernelsDir(prefix string) string {
 	return filepath.Join(prefix, "share", "jupyter", "kernels")
 }
 
-// SysPrefix returns the prefix of the Python environment Jupyter most likely
-// runs in, without running Python: $VIRTUAL_ENV if set, else $CONDA_PREFIX if
-// set, else /usr/local (which Jupyter searches on every Unix system).
-func SysPrefix() string {
+// SysPrefixKernelsDir returns the kernels directory of --sys-prefix: that of
+// the active Python environment ($VIRTUAL_ENV, else $CONDA_PREFIX; Jupyter
+// reads sys.prefix/share/jupyter/kernels), else the system-wide one Jupyter
+// searches: /usr/local/share/jupyter/kernels on Unix and macOS,
+// %PROGRAMDATA%\jupyter\kernels on Windows.
+func SysPrefixKernelsDir() (string, error) {
+	return sysPrefixKernelsDir(runtime.GOOS, os.Getenv)
+}
+
+// sysPrefixKernelsDir is SysPrefixKernelsDir for the system goos.
+func sysPrefixKernelsDir(goos string, getenv func(string) string) (string, error) {
 	for _, v := range []string{"VIRTUAL_ENV", "CONDA_PREFIX"} {
-		if p := os.Getenv(v); p != "" {
-			return p
+		if p := getenv(v); p != "" {
+			return PrefixKernelsDir(p), nil
 		}
 	}
-	return "/usr/local"
+	if goos != "windows" {
+		return PrefixKernelsDir("/usr/local"), nil
+	}
+	if p := getenv("PROGRAMDATA"); p != "" {
+		return filepath.Join(p, "jupyter", "kernels"), nil
+	}
+	return "", fmt.Errorf("--sys-prefix: got no VIRTUAL_ENV, CONDA_PREFIX or PROGRAMDATA, want one of them (or use --prefix DIR)")
+}
+
+// BinaryName is the file name the README's build gives the binary on the
+// system goos: nutate.exe on Windows (which runs only files so named), else
+// nutate. The kernelspec is the same on every system: its interrupt_mode
+// "message" (interrupt_request on the control channel) is what Windows needs,
+// having no SIGINT for Jupyter to send, and works on Unix as well.
+func BinaryName(goos string) string {
+	if goos == "windows" {
+		return "nutate.exe"
+	}
+	return "nutate"
 }
 
 // Install writes the kernelspec into kernelsDir/nutate, creating directories

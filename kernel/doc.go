@@ -25,8 +25,12 @@
 //     kernel_info_request.
 //   - heartbeat echoes; stdin accepts connections (the kernel never asks for
 //     input).
-//   - Run also treats SIGINT as an interrupt, SIGTERM as a shutdown, and shuts
-//     down when the process named by JPY_PARENT_PID dies.
+//   - Run also shuts down when the parent named by JPY_PARENT_PID dies (a
+//     process id on Unix, an inherited process handle on Windows, as
+//     jupyter_client sets it). On Unix SIGINT interrupts and SIGTERM shuts
+//     down; on Windows, where the kernelspec asks for interrupt_request
+//     messages, Ctrl-C and the event named by JPY_INTERRUPT_EVENT interrupt
+//     and closing the console shuts down (signals_*.go).
 //
 // Messages are signed with HMAC (hmac-sha256 unless the connection file says
 // otherwise) over header, parent header, metadata and content, compared in

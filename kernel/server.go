@@ -3,17 +3,14 @@ package kernel
 import (
 	"context"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"log"
 	"net"
 	"os"
-	"os/signal"
 	"strconv"
 	"strings"
 	"sync"
 	"sync/atomic"
-	"syscall"
 	"time"
 
 	"github.com/go-zeromq/zmq4"
@@ -380,12 +377,14 @@ func (s *Server) waitShutdown() {
 	close(s.done)
 }
 
-// parentPollInterval is how often Run checks that the parent process lives.
-const parentPollInterval = time.Second
-
 // Run serves exec on the sockets named by connectionFile until a shutdown
-// request, SIGTERM, the end of ctx, or the death of the parent process named by
-// the JPY_PARENT_PID environment variable. SIGINT interrupts the running cell.
+// request, the end of ctx, a request to terminate from the system, or the
+// death of the parent process named by the JPY_PARENT_PID environment
+// variable. What the system sends is read per system (signals_unix.go,
+// signals_windows.go): on Unix SIGINT interrupts the running cell and SIGTERM
+// shuts down; on Windows, where kernelspecs ask for interrupts as messages,
+// Ctrl-C and the event named by JPY_INTERRUPT_EVENT interrupt, and closing the
+// console shuts down.
 func Run(ctx context.Context, connectionFile string, exec Executor) error {
 	info, err := ReadConnectionFile(connectionFile)
 	if err != nil {
@@ -395,40 +394,41 @@ func Run(ctx context.Context, connectionFile string, exec Executor) error {
 	if err != nil {
 		return err
 	}
-	sig := make(chan os.Signal, 4)
-	signal.Notify(sig, os.Interrupt, syscall.SIGTERM)
-	defer signal.Stop(sig)
-
-	var parent <-chan time.Time
-	var parentProc *os.Process
-	if pid, err := strconv.Atoi(os.Getenv("JPY_PARENT_PID")); err == nil && pid > 1 {
-		if p, err := os.FindProcess(pid); err == nil {
-			parentProc = p
-			tk := time.NewTicker(parentPollInterval)
-			defer tk.Stop()
-			parent = tk.C
-		}
-	}
+	sys := notifySystem()
+	defer sys.stop()
+	parent := os.Getenv("JPY_PARENT_PID")
+	parentGone := watchParent(parent, s.Done())
 	ctxDone := ctx.Done()
 	for {
 		select {
 		case <-s.Done():
 			return nil
-		case v := <-sig:
-			if v == os.Interrupt {
-				s.Interrupt()
-			} else {
-				s.Shutdown()
-			}
+		case <-sys.interrupt:
+			s.Interrupt()
+		case <-sys.terminate:
+			s.Shutdown()
 		case <-ctxDone:
 			s.Shutdown()
 			ctxDone = nil
-		case <-parent:
-			if err := parentProc.Signal(syscall.Signal(0)); errors.Is(err, os.ErrProcessDone) {
-				s.log.Printf("parent process %d is gone; shutting down", parentProc.Pid)
-				s.Shutdown()
-				parent = nil
-			}
+		case <-parentGone:
+			s.log.Printf("parent process (JPY_PARENT_PID=%s) is gone; shutting down", parent)
+			s.Shutdown()
+			parentGone = nil
 		}
+	}
+}
+
+// systemEvents are what the operating system asks of the kernel process.
+type systemEvents struct {
+	interrupt <-chan struct{} // interrupt the running cell
+	terminate <-chan struct{} // shut down
+	stop      func()          // stop listening
+}
+
+// poke sends on ch unless a value is already waiting there.
+func poke(ch chan<- struct{}) {
+	select {
+	case ch <- struct{}{}:
+	default:
 	}
 }

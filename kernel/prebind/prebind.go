@@ -13,12 +13,17 @@
 // Anything unexpected (another command, an unreadable or unusual connection
 // file, an IPv6 address or host name, a port already taken) leaves that port
 // unbound: the kernel then binds it itself and reports errors as usual.
+//
+// Binding happens on Linux and macOS (bind_unix.go). Elsewhere, and in a
+// binary built with the tag noprebind, bind binds nothing (bind_other.go) and
+// the kernel binds every port itself, after the package initialisers: a client
+// that connects before then waits for ZeroMQ's reconnect (BenchmarkE2EKernel
+// and BenchmarkE2EKernelNoPrebind in the root package measure the difference).
 package prebind
 
 import (
 	"os"
 	"sync"
-	"syscall"
 )
 
 var (
@@ -103,46 +108,6 @@ func connectionFile(args []string) (string, bool) {
 		}
 	}
 	return "", false
-}
-
-// bind creates a listening socket as net.Listen would (SO_REUSEADDR, close on
-// exec) and returns it with the network and address the kernel will ask for.
-func bind(transport, ip string, port int) (network, addr string, f *os.File) {
-	var sa syscall.Sockaddr
-	family := syscall.AF_INET
-	switch transport {
-	case "", "tcp":
-		a, ok := parseIPv4(ip)
-		if !ok {
-			return "", "", nil // IPv6 and host names: the kernel binds them itself
-		}
-		network, addr = "tcp", ip+":"+itoa(port)
-		sa = &syscall.SockaddrInet4{Port: port, Addr: a}
-	case "ipc":
-		family = syscall.AF_UNIX
-		network, addr = "unix", ip+"-"+itoa(port)
-		sa = &syscall.SockaddrUnix{Name: addr}
-	default:
-		return "", "", nil
-	}
-	fd, err := syscall.Socket(family, syscall.SOCK_STREAM|syscall.SOCK_CLOEXEC|syscall.SOCK_NONBLOCK, 0)
-	if err != nil {
-		return "", "", nil
-	}
-	if family != syscall.AF_UNIX {
-		err = syscall.SetsockoptInt(fd, syscall.SOL_SOCKET, syscall.SO_REUSEADDR, 1)
-	}
-	if err == nil {
-		err = syscall.Bind(fd, sa)
-	}
-	if err == nil {
-		err = syscall.Listen(fd, 4096)
-	}
-	if err != nil {
-		syscall.Close(fd)
-		return "", "", nil
-	}
-	return network, addr, os.NewFile(uintptr(fd), addr)
 }
 
 // parseFlat reads a JSON object whose values are strings, numbers, booleans or
