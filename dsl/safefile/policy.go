@@ -80,7 +80,14 @@ func (p *Policy) Resolve(name string) (string, error) {
 	case filepath.VolumeName(n) != "":
 		// "C:x" on Windows: relative to a drive's own working directory.
 		return "", fmt.Errorf("%s names a drive without a folder: %w", name, ErrOutside)
+	case os.PathSeparator == '\\' && (n[0] == '\\' || n[0] == '/'):
+		// "\x.csv" on Windows: the current drive's root, not the notebook's folder.
+		return "", fmt.Errorf("%s starts at a drive's root: %w", name, ErrOutside)
 	default:
+		if c := filepath.Clean(n); os.PathSeparator == '\\' && c != ".." && !strings.HasPrefix(c, `..\`) && !filepath.IsLocal(c) {
+			// NUL, CON, COM1 ...: a device, not a file in the folder.
+			return "", fmt.Errorf("%s names a Windows device, not a file", name)
+		}
 		abs = filepath.Join(p.root, n)
 	}
 	real, err := resolveExisting(abs)
