@@ -14,7 +14,8 @@ import (
 // TestDependencyDirection enforces the layering of ../shared/STYLE.md: physics
 // imports only the standard library and gonum (its sub-packages may import physics
 // packages); display knows nothing of the language or the protocol; the kernel knows
-// nothing of the language; install stands alone. main wires them.
+// nothing of the language; install stands alone; the notebook format
+// (kernel/nbformat) needs only the standard library. main wires them.
 func TestDependencyDirection(t *testing.T) {
 	allowed := map[string][]string{
 		"physics": {"Nutate/physics", "gonum.org/v1/gonum"},
@@ -24,6 +25,9 @@ func TestDependencyDirection(t *testing.T) {
 		"dsl":     {"Nutate/physics", "Nutate/display", "Nutate/dsl", "gonum.org/v1/gonum"},
 		"kernel":  {"Nutate/kernel", "github.com/go-zeromq/zmq4", "github.com/google/uuid"},
 		"install": {"Nutate/install"},
+		// The notebook format: read, check, write and compare nbformat 4, for
+		// `nutate run` in main; it knows no language, kernel or display.
+		"kernel/nbformat": nil,
 	}
 	checked := 0
 	for top, ok := range allowed {
@@ -44,7 +48,7 @@ func TestDependencyDirection(t *testing.T) {
 			checked++
 			for _, imp := range f.Imports {
 				p := strings.Trim(imp.Path.Value, `"`)
-				if !strings.Contains(strings.SplitN(p, "/", 2)[0], ".") && !strings.HasPrefix(p, "nutate") {
+				if !strings.Contains(strings.SplitN(p, "/", 2)[0], ".") && !hasAnyPrefix(p, []string{"Nutate"}) {
 					continue // standard library
 				}
 				if !hasAnyPrefix(p, ok) {
