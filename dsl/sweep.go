@@ -1117,10 +1117,10 @@ func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*puls
 		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Y: c.values})
 	}
 	prof.Marks = bandMarks(a, defs, st)
-	prof.Summary = summaryTable(title, a, x, curves, defs, start)
+	prof.Summary = summaryTable(title, a, x, curves, defs, st, start)
 	prof.Summary.Notes = append(slices.Clone(notes), prof.Summary.Notes...)
 	// The caution travels inside the image, which is what gets saved or pasted.
-	prof.Notes = append(slices.Clone(notes), energyNote(curves)...)
+	prof.Notes = append(slices.Clone(notes), energyNote(curves, imageCaution)...)
 	return profileBundle(prof)
 }
 
@@ -1168,7 +1168,7 @@ func unitLabel(u string) string {
 // summaryTable lists up to 50 points row by row; longer curves are summarized by
 // their features (start is the initial magnetization, the baseline of the half
 // levels).
-func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, defs []*pulseDef, start [3]float64) display.Table {
+func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, defs []*pulseDef, st *state, start [3]float64) display.Table {
 	if len(x) <= 50 {
 		t := display.Table{Title: title, Columns: []display.Column{{Name: a.kind, Unit: unitLabel(a.unit)}}}
 		for _, c := range curves {
@@ -1188,7 +1188,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 			}
 			t.Rows = append(t.Rows, row)
 		}
-		t.Notes = energyNote(curves)
+		t.Notes = energyNote(curves, energyCaution)
 		return t
 	}
 	t := display.Table{
@@ -1259,7 +1259,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 	}
 	var head []string
 	if hasLevels {
-		head = append(head, halfLevelNote)
+		head = append(head, st.definition(halfLevelNote, halfLevelBrief))
 	}
 	if hasXY {
 		head = append(head, "mx and my: extremes only; they oscillate across an offset axis as the phase runs, so a half level, width or ripple of theirs says nothing (show phase for the slope of that phase).")
@@ -1268,7 +1268,7 @@ func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, 
 		head = append(head, "phase and echophase: no extremes (a phase's range depends on where it is unwrapped); a line is fitted to the unwrapped phase over the band where its magnitude (mxy or echo) is at least half its maximum.")
 	}
 	t.Notes = append(head, notes...)
-	t.Notes = append(t.Notes, energyNote(curves)...)
+	t.Notes = append(t.Notes, energyNote(curves, energyCaution)...)
 	return t
 }
 
@@ -1292,15 +1292,11 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 	return fx, fy, fa
 }
 
-// halfLevelNote explains the half level, the width and the ripples of a sweep's
-// feature table, naming the regions the ripples cover; describe's ripple
-// (shape.Measure) uses other regions, and the note says so.
-const halfLevelNote = "Measured from the swept points, with the definitions of describe (help quantities): half level midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's: mz = cos flip, −1 for inversion, 0 for saturation, mxy = sin flip, echo = sin²(flip/2), 1 for an adiabatic pulse; otherwise the curve's extreme); width at half: the distance between the crossings around the band (the FWHM), \"—\" when the curve does not pass the half level and come back on both sides inside the window. Pass ripple: the largest distance from the pass-band value within the band edges moved inward by one 90 %–10 % transition width; stop ripple: the largest distance from the far-from-band value beyond the edges moved outward by one transition width; both in % of M0 in the quantity shown (for inversion, of Mz). Crossings are interpolated between points, so a coarse grid can miss a ripple's extreme; describe refines by simulation."
-
-func energyNote(curves []*curveData) []string {
+// energyNote is caution when a curve shows energy or B1rms.
+func energyNote(curves []*curveData, caution string) []string {
 	for _, c := range curves {
 		if c.quantity.Name == "energy" || c.quantity.Name == "b1rms" {
-			return []string{energyCaution}
+			return []string{caution}
 		}
 	}
 	return nil
@@ -1377,7 +1373,7 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 		Label:    c.label,
 		Unit:     unitLabel(c.quantity.Unit),
 		Z:        z,
-		Notes:    append(slices.Clone(axisNotes), energyNote([]*curveData{c})...),
+		Notes:    append(slices.Clone(axisNotes), energyNote([]*curveData{c}, imageCaution)...),
 	}
 	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
 	m.Cyclic = c.quantity.Name == "phase" || c.quantity.Name == "echophase"
@@ -1415,7 +1411,7 @@ func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 		}
 		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(n), 4)) + of})
 	}
-	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: append(slices.Clone(axisNotes), energyNote([]*curveData{c})...)}
+	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: append(slices.Clone(axisNotes), energyNote([]*curveData{c}, energyCaution)...)}
 	if note != "" {
 		m.Summary.Notes = append([]string{note}, m.Summary.Notes...)
 	}
