@@ -1,6 +1,7 @@
 package main
 
 import (
+	"go/ast"
 	"go/parser"
 	"go/token"
 	"io"
@@ -64,6 +65,33 @@ func TestDependencyDirection(t *testing.T) {
 	if checked == 0 {
 		t.Fatal("no Go files checked")
 	}
+}
+
+// TestPresentTakesPlainValues holds the sweep's presentation (dsl/present.go)
+// to the direction results → tables and figures: it takes plain result values
+// and imports only the standard library and display; it names none of the
+// study layer's types (the evaluator, the session state, pulses, axes, runs,
+// settings), nor physics.
+func TestPresentTakesPlainValues(t *testing.T) {
+	const file = "dsl/present.go"
+	f, err := parser.ParseFile(token.NewFileSet(), file, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, imp := range f.Imports {
+		p := strings.Trim(imp.Path.Value, `"`)
+		if hasAnyPrefix(p, []string{"Nutate"}) && p != "Nutate/display" {
+			t.Errorf("%s imports %s: presentation may import only the standard library and Nutate/display", file, p)
+		}
+	}
+	study := map[string]bool{"evaluator": true, "state": true, "Session": true, "pulseDef": true, "sweepAxis": true,
+		"curveData": true, "sweepRun": true, "settings": true, "physics": true, "shape": true}
+	ast.Inspect(f, func(n ast.Node) bool {
+		if id, ok := n.(*ast.Ident); ok && study[id.Name] {
+			t.Errorf("%s names %s: presentation takes plain result values, not the study layer's", file, id.Name)
+		}
+		return true
+	})
 }
 
 func hasAnyPrefix(p string, prefixes []string) bool {

@@ -360,12 +360,12 @@ func (ev *evaluator) presentSweep(s *SweepStmt, defs []*pulseDef, axes []*sweepA
 	}
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emitFigure(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote, notes, leftCells), set))
+			ev.emitFigure(withSettingsJSON(mapOutput(mapResult(title, axes, c, n0, n1, mapNote, notes, leftCells)), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return
 	}
-	ev.emitFigure(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start, notes), set))
+	ev.emitFigure(withSettingsJSON(profileOutput(ev.profileResult(title, axes[0], curves, defs, set.start, notes)), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 }
 
@@ -1182,24 +1182,6 @@ func t2FromT1(axes []*sweepAxis, set *settings) bool {
 // t2FromT1Note says so in the sweep's notes.
 const t2FromT1Note = "t2 not given: taken as 2·t1 at every point, the longest T2 consistent with T1 (T2 ≤ 2·T1; with no transverse decay at all |M| would exceed M0); give t2 for a real sample's value."
 
-// profileOutput draws the curves of a one-axis sweep with its summary.
-func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64, notes []string) figureOut {
-	x := a.display()
-	prof := display.Profile{
-		Title: title,
-		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse, Log: a.logScale},
-	}
-	for _, c := range curves {
-		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Y: c.values})
-	}
-	prof.Marks = bandMarks(a, defs, st)
-	prof.Summary = summaryTable(title, a, x, curves, defs, st, start)
-	prof.Summary.Notes = append(slices.Clone(notes), prof.Summary.Notes...)
-	// The caution travels inside the image, which is what gets saved or pasted.
-	prof.Notes = append(slices.Clone(notes), energyNote(curves, imageCaution)...)
-	return profileBundle(prof)
-}
-
 // bandMarks marks the design band edges of each pulse on offset and position axes.
 func bandMarks(a *sweepAxis, defs []*pulseDef, st *state) []display.Mark {
 	var marks []display.Mark
@@ -1229,125 +1211,6 @@ func bandMarks(a *sweepAxis, defs []*pulseDef, st *state) []display.Mark {
 	return marks
 }
 
-func unitLabel(u string) string {
-	switch u {
-	case "uT":
-		return "µT"
-	case "us":
-		return "µs"
-	case "um":
-		return "µm"
-	}
-	return u
-}
-
-// summaryTable lists up to 50 points row by row; longer curves are summarized by
-// their features (start is the initial magnetization, the baseline of the half
-// levels).
-func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, defs []*pulseDef, st *state, start [3]float64) display.Table {
-	if len(x) <= 50 {
-		t := display.Table{Title: title, Columns: []display.Column{{Name: a.kind, Unit: unitLabel(a.unit)}}}
-		for _, c := range curves {
-			name := c.quantity.Name
-			if c.label != "" {
-				name = c.label
-			}
-			if len(uniquePulses(curves)) > 1 {
-				name = c.pulse + " " + name
-			}
-			t.Columns = append(t.Columns, display.Column{Name: name, Unit: unitLabel(c.quantity.Unit)})
-		}
-		for i := range x {
-			row := []string{formatNumber(x[i])}
-			for _, c := range curves {
-				row = append(row, fmtCell(c.values[i]))
-			}
-			t.Rows = append(t.Rows, row)
-		}
-		t.Notes = energyNote(curves, energyCaution)
-		return t
-	}
-	t := display.Table{
-		Title: title + " (features; the data is in the JSON output and `export`)",
-		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
-			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple", Unit: "% of M0"}, {Name: "stop ripple", Unit: "% of M0"}},
-	}
-	hasPhase, hasLevels, hasXY := false, false, false
-	for _, c := range curves {
-		switch c.quantity.Name {
-		case "phase", "echophase":
-			hasPhase = true
-		case "mx", "my":
-			hasXY = true
-		}
-	}
-	if hasPhase {
-		per := "deg/" + unitLabel(a.unit)
-		if unitLabel(a.unit) == "" {
-			per = "deg per unit " + a.kind // a factor axis (b1)
-		}
-		t.Columns = append(t.Columns, display.Column{Name: "phase slope", Unit: per}, display.Column{Name: "phase off linear", Unit: "deg"})
-	}
-	var notes []string
-	for _, c := range curves {
-		var p *shape.Pulse
-		for _, d := range defs {
-			if d.Name == c.pulse {
-				p = d.Pulse
-			}
-		}
-		if c.quantity.Name == "phase" || c.quantity.Name == "echophase" {
-			slope, dev, x0, x1 := phaseFeatures(x, c.values, c.mag)
-			// A phase constant to rounding (a time-symmetric pulse's echo) reads 0,
-			// not 1e-13.
-			if math.Abs(slope*(x1-x0)) < 1e-9 {
-				slope = 0
-			}
-			if dev < 1e-9 {
-				dev = 0
-			}
-			row := []string{c.pulse, c.quantity.Name, "—", "—", "—", "—", "—", "—", fmtCellOpt(slope), fmtCellOpt(dev)}
-			t.Rows = append(t.Rows, row)
-			if !math.IsNaN(slope) {
-				band := "the band where mxy is at least half its maximum"
-				if c.quantity.Name == "echophase" {
-					band = "the band where echo is at least half its maximum"
-				}
-				span := formatNumber(roundSig(x0, 5)) + " to " + formatNumber(roundSig(x1, 5))
-				if u := unitLabel(a.unit); u != "" {
-					span += " " + u
-				}
-				notes = append(notes, fmt.Sprintf("%s %s: unwrapped, fitted by a line over %s, %s; \"off linear\" is the largest deviation from that line.", c.pulse, c.quantity.Name, band, span))
-			}
-			continue
-		}
-		base, target := curveLevels(c.quantity.Name, a.kind, start, p)
-		hasLevels = hasLevels || !math.IsNaN(base)
-		fx, fy, _ := finitePoints(x, c.values, nil)
-		f := curveFeatures(fx, fy, base, target)
-		row := []string{c.pulse, c.quantity.Name,
-			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
-			fmtCellOpt(f.width), f.crossings, fmtCellOpt(100 * f.passRipple), fmtCellOpt(100 * f.stopRipple)}
-		if hasPhase {
-			row = append(row, "—", "—")
-		}
-		t.Rows = append(t.Rows, row)
-	}
-	var head []string
-	if hasLevels {
-		head = append(head, st.definition(halfLevelNote, halfLevelBrief))
-	}
-	if hasXY {
-		head = append(head, "mx and my: extremes only; they oscillate across an offset axis as the phase runs, so a half level, width or ripple of theirs says nothing (show phase for the slope of that phase).")
-	}
-	if hasPhase {
-		head = append(head, "phase and echophase: no extremes (a phase's range depends on where it is unwrapped); a line is fitted to the unwrapped phase over the band where its magnitude (mxy or echo) is at least half its maximum.")
-	}
-	t.Notes = append(head, notes...)
-	t.Notes = append(t.Notes, energyNote(curves, energyCaution)...)
-	return t
-}
-
 // finitePoints keeps the points where y is not NaN (points left out of a sweep,
 // t2 > 2·t1), with the matching x and also (when not nil); the inputs are
 // returned as they are when nothing is left out.
@@ -1368,130 +1231,87 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 	return fx, fy, fa
 }
 
-// energyNote is caution when a curve shows energy or B1rms.
-func energyNote(curves []*curveData, caution string) []string {
+// curveView is the curve as presentation shows it.
+func (c *curveData) view() curveView {
+	return curveView{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Values: c.values,
+		Energy: c.quantity.Name == "energy" || c.quantity.Name == "b1rms"}
+}
+
+// view is the axis as presentation shows it.
+func (a *sweepAxis) view() axisView {
+	return axisView{Kind: a.label(), Unit: unitLabel(a.unit), Values: a.display(), Reverse: a.reverse, Log: a.logScale,
+		At: func(i int) string { return a.value(i).String() }}
+}
+
+// profileResult measures the curves of a one-axis sweep for presentation: the
+// design band edges, and on a sweep of over 50 points (summarized by features)
+// each curve's features, against the half levels set by start (the initial
+// magnetization) and the pulse's design.
+func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, start [3]float64, notes []string) profileView {
+	v := profileView{Title: title, X: a.view(), Marks: bandMarks(a, defs, ev.st), Notes: notes}
+	x := v.X.Values
+	hasLevels := false
 	for _, c := range curves {
-		if c.quantity.Name == "energy" || c.quantity.Name == "b1rms" {
-			return []string{caution}
+		cv := c.view()
+		if len(x) > 50 {
+			if c.quantity.Name == "phase" || c.quantity.Name == "echophase" {
+				slope, dev, x0, x1 := phaseFeatures(x, c.values, c.mag)
+				// A phase constant to rounding (a time-symmetric pulse's echo)
+				// reads 0, not 1e-13.
+				if math.Abs(slope*(x1-x0)) < 1e-9 {
+					slope = 0
+				}
+				if dev < 1e-9 {
+					dev = 0
+				}
+				cv.Phase = &phaseFit{Slope: slope, Dev: dev, X0: x0, X1: x1}
+			} else {
+				var p *shape.Pulse
+				for _, d := range defs {
+					if d.Name == c.pulse {
+						p = d.Pulse
+					}
+				}
+				base, target := curveLevels(c.quantity.Name, a.kind, start, p)
+				hasLevels = hasLevels || !math.IsNaN(base)
+				fx, fy, _ := finitePoints(x, c.values, nil)
+				cv.Features = curveFeatures(fx, fy, base, target)
+			}
 		}
+		v.Curves = append(v.Curves, cv)
 	}
-	return nil
+	if hasLevels {
+		v.LevelNote = ev.st.definition(halfLevelNote, halfLevelBrief)
+	}
+	return v
 }
 
-func uniquePulses(curves []*curveData) []string {
-	var out []string
-	for _, c := range curves {
-		if !contains(out, c.pulse) {
-			out = append(out, c.pulse)
-		}
-	}
-	return out
-}
-
-func fmtCell(v float64) string {
-	if math.IsNaN(v) {
-		return "—"
-	}
-	if math.Abs(v) < 1e-10 {
-		v = 0 // rounding noise of an exact zero
-	}
-	return fmt.Sprintf("%.4g", v)
-}
-
-func fmtCellOpt(v float64) string {
-	if math.IsNaN(v) {
-		return "—"
-	}
-	return formatNumber(roundSig(v, 5))
-}
-
-func roundSig(v float64, sig int) float64 {
-	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-		return v
-	}
-	e := math.Pow(10, float64(sig-1)-math.Floor(math.Log10(math.Abs(v))))
-	return math.Round(v*e) / e
-}
-
-// colourRange is the fixed colour scale of a magnetization map, so that maps of
-// different pulses or settings compare at a glance: −1…1 for the components,
-// 0…1 for the magnitudes |Mxy| and |β|², −180…180 deg for the phases. Pulse
-// properties get (0, 0): the data's own range.
-func colourRange(q string) (lo, hi float64) {
-	switch q {
-	case "mx", "my", "mz":
-		return -1, 1
-	case "mxy", "echo":
-		return 0, 1
-	case "phase", "echophase":
-		return -180, 180
-	}
-	return 0, 0
-}
-
-// mapOutput draws one quantity of one pulse over two axes; leftOut cells were not
-// simulated (t2 > 2·t1).
-func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) figureOut {
-	// Z[iy][ix] with the first axis horizontal.
-	z := make([][]float64, n1)
-	for iy := range z {
-		z[iy] = make([]float64, n0)
-		for ix := range z[iy] {
-			z[iy][ix] = c.values[ix*n1+iy]
-		}
-	}
-	m := display.Map{
-		Title:    title + ": " + c.pulse + " " + c.quantity.Name,
-		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse, Log: axes[0].logScale},
-		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse, Log: axes[1].logScale},
-		Pulse:    c.pulse,
-		Quantity: c.quantity.Name,
-		Label:    c.label,
-		Unit:     unitLabel(c.quantity.Unit),
-		Z:        z,
-		Notes:    append(slices.Clone(axisNotes), energyNote([]*curveData{c}, imageCaution)...),
-	}
-	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
-	m.Cyclic = c.quantity.Name == "phase" || c.quantity.Name == "echophase"
+// mapResult measures one quantity of one pulse over two axes for presentation:
+// its extremes and, for its role's quantity, how many points meet the target;
+// leftOut cells were not simulated (t2 > 2·t1).
+func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) mapView {
+	v := mapView{Title: title, X: axes[0].view(), Y: axes[1].view(), Curve: c.view(), N0: n0, N1: n1, Note: note, AxisNotes: axisNotes, LeftOut: leftOut}
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
-	if ok {
-		m.Contour, m.HasContour = level, true
-	}
 	lo, hi, loAt, hiAt := math.Inf(1), math.Inf(-1), 0, 0
 	met := 0
-	for i, v := range c.values {
+	for i, x := range c.values {
 		// Ties within rounding noise keep the first point, so that the
 		// summary does not hinge on the last bits of the simulation.
-		if v < lo-tieTol(lo) {
-			lo, loAt = v, i
+		if x < lo-tieTol(lo) {
+			lo, loAt = x, i
 		}
-		if v > hi+tieTol(hi) {
-			hi, hiAt = v, i
+		if x > hi+tieTol(hi) {
+			hi, hiAt = x, i
 		}
-		if ok && cmp(v) {
+		if ok && cmp(x) {
 			met++
 		}
 	}
-	at := func(i int) string {
-		return axes[0].value(i/n1).String() + ", " + axes[1].value(i%n1).String()
-	}
-	rows := [][]string{
-		{"points", fmt.Sprintf("%d × %d", n0, n1)},
-		{"min", fmtCell(lo) + " at " + at(loAt)},
-		{"max", fmtCell(hi) + " at " + at(hiAt)},
-	}
+	v.Lo, v.Hi, v.LoAt, v.HiAt = lo, hi, loAt, hiAt
 	if ok {
-		of, n := " % of the map", len(c.values)
-		if leftOut > 0 {
-			of, n = " % of the simulated points", n-leftOut
-		}
-		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(n), 4)) + of})
+		v.Target = &mapTarget{Level: level, Text: targetText(c.role, level), Met: met}
 	}
-	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: append(slices.Clone(axisNotes), energyNote([]*curveData{c}, energyCaution)...)}
-	if note != "" {
-		m.Summary.Notes = append([]string{note}, m.Summary.Notes...)
-	}
-	return mapBundle(m)
+	return v
 }
 
 // roleTarget is the level a role's profile must reach (the targets of
