@@ -1,6 +1,7 @@
 package main
 
 import (
+	"go/ast"
 	"go/parser"
 	"go/token"
 	"io"
@@ -14,7 +15,8 @@ import (
 // TestDependencyDirection enforces the layering of ../shared/STYLE.md: physics
 // imports only the standard library and gonum (its sub-packages may import physics
 // packages); display knows nothing of the language or the protocol; the kernel knows
-// nothing of the language; install stands alone. main wires them.
+// nothing of the language; install stands alone; the notebook format
+// (kernel/nbformat) needs only the standard library. main wires them.
 func TestDependencyDirection(t *testing.T) {
 	allowed := map[string][]string{
 		"physics": {"Nutate/physics", "gonum.org/v1/gonum"},
@@ -24,6 +26,9 @@ func TestDependencyDirection(t *testing.T) {
 		"dsl":     {"Nutate/physics", "Nutate/display", "Nutate/dsl", "gonum.org/v1/gonum"},
 		"kernel":  {"Nutate/kernel", "github.com/go-zeromq/zmq4", "github.com/google/uuid"},
 		"install": {"Nutate/install"},
+		// The notebook format: read, check, write and compare nbformat 4, for
+		// `nutate run` in main; it knows no language, kernel or display.
+		"kernel/nbformat": nil,
 	}
 	checked := 0
 	for top, ok := range allowed {
@@ -44,7 +49,7 @@ func TestDependencyDirection(t *testing.T) {
 			checked++
 			for _, imp := range f.Imports {
 				p := strings.Trim(imp.Path.Value, `"`)
-				if !strings.Contains(strings.SplitN(p, "/", 2)[0], ".") && !strings.HasPrefix(p, "nutate") {
+				if !strings.Contains(strings.SplitN(p, "/", 2)[0], ".") && !hasAnyPrefix(p, []string{"Nutate"}) {
 					continue // standard library
 				}
 				if !hasAnyPrefix(p, ok) {
@@ -60,6 +65,33 @@ func TestDependencyDirection(t *testing.T) {
 	if checked == 0 {
 		t.Fatal("no Go files checked")
 	}
+}
+
+// TestPresentTakesPlainValues holds the sweep's presentation (dsl/present.go)
+// to the direction results → tables and figures: it takes plain result values
+// and imports only the standard library and display; it names none of the
+// study layer's types (the evaluator, the session state, pulses, axes, runs,
+// settings), nor physics.
+func TestPresentTakesPlainValues(t *testing.T) {
+	const file = "dsl/present.go"
+	f, err := parser.ParseFile(token.NewFileSet(), file, nil, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, imp := range f.Imports {
+		p := strings.Trim(imp.Path.Value, `"`)
+		if hasAnyPrefix(p, []string{"Nutate"}) && p != "Nutate/display" {
+			t.Errorf("%s imports %s: presentation may import only the standard library and Nutate/display", file, p)
+		}
+	}
+	study := map[string]bool{"evaluator": true, "state": true, "Session": true, "pulseDef": true, "sweepAxis": true,
+		"curveData": true, "sweepRun": true, "settings": true, "physics": true, "shape": true}
+	ast.Inspect(f, func(n ast.Node) bool {
+		if id, ok := n.(*ast.Ident); ok && study[id.Name] {
+			t.Errorf("%s names %s: presentation takes plain result values, not the study layer's", file, id.Name)
+		}
+		return true
+	})
 }
 
 func hasAnyPrefix(p string, prefixes []string) bool {

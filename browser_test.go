@@ -118,7 +118,7 @@ func figureContract(t *testing.T, path string) {
 	if n == 0 {
 		t.Fatal("the run stored no image/svg+xml output")
 	}
-	raw, err := nb.encode()
+	raw, err := nb.Encode()
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -30,7 +30,7 @@ func gather(files []string, w io.Writer) error {
 		if err != nil {
 			return fmt.Errorf("%s: %v", f, err)
 		}
-		if k := kernelOf(nb); k != "" && k != "nutate" {
+		if k := nb.Kernel("nutate"); k != "" && k != "nutate" {
 			return fmt.Errorf("%s: a notebook for the %q kernel, not Nutate", f, k)
 		}
 		j := job{file: f, sets: map[string]string{}}

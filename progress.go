@@ -37,14 +37,3 @@ func (r *runner) clearStatus() {
 		fmt.Fprint(r.stderr, "\r\033[K")
 	}
 }
-
-// codeCells counts a notebook's code cells.
-func codeCells(nb notebook) int {
-	n := 0
-	for _, c := range nb["cells"].([]any) {
-		if cell, ok := c.(map[string]any); ok && cell["cell_type"] == "code" {
-			n++
-		}
-	}
-	return n
-}

@@ -179,7 +179,7 @@ func TestCheckUsesRecordedSettingsAndIgnoresProgressLeftovers(t *testing.T) {
 	cell := nb["cells"].([]any)[1].(map[string]any)
 	empty := map[string]any{"output_type": "display_data", "data": map[string]any{"text/plain": ""}, "metadata": map[string]any{}}
 	cell["outputs"] = append([]any{empty}, cell["outputs"].([]any)...)
-	raw, err := nb.encode()
+	raw, err := nb.Encode()
 	if err != nil {
 		t.Fatal(err)
 	}

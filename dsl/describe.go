@@ -10,9 +10,6 @@ import (
 	"Nutate/physics/shape"
 )
 
-// energyCaution goes wherever energy or B1rms is shown.
-const energyCaution = "Energy and B1rms are relative, waveform-only estimates, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer."
-
 // measure runs shape.Measure for a pulse with the session's field and the tr
 // given, telling prog (when not nil) of its progress.
 func (ev *evaluator) measure(d *pulseDef, tr float64, prog *progress) (shape.Properties, error) {
@@ -128,6 +125,7 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 			return err
 		}
 		t := propertiesTable(d, pr, set.tr, ev.st.field)
+		t.Notes = []string{ev.st.definition(rippleNote, rippleBrief), energyCaution}
 		if w, err := ev.thresholdWarning(d, pr); err != nil {
 			return err
 		} else if w != "" {
@@ -302,12 +300,8 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		Title:   "pulse " + d.Name,
 		Columns: []display.Column{{Name: "property"}, {Name: "value"}},
 		Rows:    rows,
-		Notes:   []string{rippleNote, energyCaution},
 	}
 }
-
-// rippleNote states describe's definitions (help quantities).
-const rippleNote = "Measured figures come from the simulated profile of the role's quantity (Mz for invert and saturate, |Mxy| for excite or no role, echo |β|² for refocus): FWHM is the width where it is half-way between its stop-band value and its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation; the centre's value where the design fixes none); the transition is the mean 90 %–10 % width of the two edges; pass ripple is the largest deviation from the pass-band value within the band edges moved inward by one transition width, stop ripple the largest deviation from the stop-band value beyond the edges moved outward by one transition width, both in % of M0 in that quantity (as slr's pass and stop are given). A sweep's feature table uses the same definitions on its points."
 
 func pct(v float64) string { return formatNumber(100*v) + " %" }
 

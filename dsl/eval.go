@@ -18,9 +18,10 @@ type state struct {
 	nucleus physics.Nucleus
 	field   float64 // T; 0: not set
 	names   map[string]*binding
-	seq     int            // definition counter, for listing names in order
-	last    *sweepTable    // the last sweep's data, for `export sweep to "file.csv"`
-	figure  display.Figure // the last figure, for `export figure to "file.svg"`
+	seq     int             // definition counter, for listing names in order
+	last    *sweepTable     // the last sweep's data, for `export sweep to "file.csv"`
+	figure  display.Figure  // the last figure, for `export figure to "file.svg"`
+	shown   map[string]bool // definition notes already given in full this session (notes.go)
 }
 
 // binding is a named quantity or a named pulse.
@@ -38,6 +39,7 @@ func newState() *state {
 func (s *state) clone() *state {
 	c := *s
 	c.names = maps.Clone(s.names)
+	c.shown = maps.Clone(s.shown)
 	return &c
 }
 
@@ -144,7 +146,9 @@ func (ev *evaluator) exec(s Stmt) error {
 		}
 		ev.emit(textBundle(text))
 	case *ResetStmt:
+		shown := ev.st.shown // definitions given stay given: once per session
 		*ev.st = *newState()
+		ev.st.shown = shown
 		ev.emit(textBundle("reset: every name forgotten; nucleus 1H, no field"))
 	default:
 		return errAt(s.Position(), "statement not supported")

@@ -8,6 +8,9 @@ import (
 	"Nutate/physics"
 )
 
+// helpTopics are the topics of `help TOPIC` beside the names.
+var helpTopics = []string{"statements", "shapes", "arguments", "quantities", "settings", "axes", "units", "nuclei", "conventions", "files", "errors", "safety"}
+
 // statementHelp is the syntax and meaning of each statement.
 var statementHelp = []struct{ Name, Syntax, Help string }{
 	{"nucleus", "nucleus NUCLEUS", "set the working nucleus (default 1H): its signed γ scales amplitudes and sets the sense of rotation. Known: " + physics.NucleusNames()},
@@ -20,7 +23,7 @@ var statementHelp = []struct{ Name, Syntax, Help string }{
 	{"export", "export NAME to \"file.csv\"\nexport sweep to \"file.csv\"\nexport figure to \"file.svg\" | \"file.png\" | \"file.pdf\"", "write the pulse's waveform as CSV: time (s), amplitude (T), phase (rad), frequency offset (Hz), gradient (T/m), after a comment line with nucleus, duration, dwell and role (if any). The phase is B1's own in the carrier frame (any offset's ramp included); the frequency offset is the pulse's centre, or its instantaneous frequency when swept (see `help files`). `export sweep to \"file.csv\"` writes the last sweep's data (axes, then one column per curve). `export figure to \"file.svg\"` writes the session's last figure (of a sweep or describe) as SVG, PNG (300 dpi) or PDF (fonts embedded), as the extension says; the same figure gives the same bytes. A file that is not an export is never overwritten; the write is atomic, and the path stays in the notebook's folder (see `help files`)"},
 	{"import", "import NAME from \"file.csv\" [with dwell = EXPR, flip = EXPR | peak = EXPR, role = ROLE]", "read a waveform: an export, a CSV with a header naming time and amplitude (other columns optional, units in parentheses), a plain two-column time/amplitude file, or with `with dwell = EXPR` a plain one-column file of amplitudes (T), one sample a row; a file with a time column refuses dwell. Amplitudes are in tesla unless the header names a unit; `flip` or `peak` scales the waveform (a normalised shape), `role` says what it is for (an export's own role otherwise); a peak over 10 mT read as given is refused as a unit mistake. A constant frequency offset column is the pulse's centre, a varying one a frequency modulation (see `help files`). Paths are relative to the notebook's folder and stay inside it unless the person starting Nutate allowed more (see `help files`)"},
 	{"report", "report NAME[, NAME...] [as markdown | as latex]", "a methods-section table of the pulses: shape, duration, samples, peak in µT and Hz, flip, bandwidth, TBW, energy (with its caution), adiabatic threshold. Like describe, it shows its progress for long pulses"},
-	{"help", "help [TOPIC]", "topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors, or any statement, shape, argument, quantity or unit name"},
+	{"help", "help [TOPIC]", "topics: " + strings.Join(helpTopics, ", ") + ", or any statement, shape, argument, quantity or unit name"},
 	{"reset", "reset", "forget every name; nucleus 1H, no field"},
 }
 
@@ -153,7 +156,7 @@ func Help(topic string) (string, error) {
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "quantities":
 		return nameList("Quantities for `show` (default by role: excite mxy phase; invert, saturate mz; refocus echo, with echophase on one axis; otherwise mx my mz, or mz on a map; a map shows the first)",
-			10, len(quantityTable), func(i int) (string, string) { return quantityTable[i].Name, quantityTable[i].Help }) + "\n\n" + definitionsHelp, nil
+			10, len(quantityTable), func(i int) (string, string) { return quantityTable[i].Name, quantityTable[i].Help }) + "\n\n" + definitionsHelp + "\n\n" + definitionNotesHelp(), nil
 	case "settings":
 		return nameList("Settings after `with`", 7, len(settingTable),
 			func(i int) (string, string) { return settingTable[i].Name, settingTable[i].Help }), nil
@@ -202,11 +205,13 @@ func Help(topic string) (string, error) {
 		return filesHelp, nil
 	case "errors":
 		return errorsHelp, nil
+	case "safety":
+		return safetyHelp, nil
 	}
 	if text, ok := wordHelp(topic); ok {
 		return text, nil
 	}
-	return "", fmt.Errorf("no help for %s%s; topics: statements, shapes, arguments, quantities, settings, axes, units, nuclei, conventions, files, errors", quoteText(topic), suggest(topic, helpWords()))
+	return "", fmt.Errorf("no help for %s%s; topics: %s", quoteText(topic), suggest(topic, helpWords()), strings.Join(helpTopics, ", "))
 }
 
 func overviewHelp() string {
@@ -215,7 +220,7 @@ func overviewHelp() string {
 	for _, s := range statementHelp {
 		fmt.Fprintf(&b, "  %-9s %s\n", s.Name, strings.Split(s.Syntax, "\n")[0])
 	}
-	b.WriteString("\nMore: help statements | shapes | arguments | quantities | settings | axes | units | nuclei | conventions | files | errors, or help NAME (e.g. help sinc, help flip).")
+	b.WriteString("\nMore: help " + strings.Join(helpTopics, " | ") + ", or help NAME (e.g. help sinc, help flip).")
 	return b.String()
 }
 
@@ -419,7 +424,7 @@ func argNamesOf(list []argSpec) []string {
 // helpWords lists every word with help, for suggestions and completion.
 func helpWords() []string {
 	set := map[string]bool{}
-	for _, w := range []string{"statements", "shapes", "arguments", "quantities", "settings", "axes", "units", "nuclei", "conventions", "files", "errors"} {
+	for _, w := range helpTopics {
 		set[w] = true
 	}
 	for _, s := range statementHelp {

@@ -15,8 +15,10 @@
 // (quantities and dimension checks), errors.go (positions, carets, suggestions),
 // eval.go (statements), shapes.go, slrshape.go and train.go (the shape table: one
 // explicit row per shape), quantities.go and settings.go (the `show` and `with`
-// tables), sweep.go, features.go and sweepfile.go (sweeps, their summaries and
-// CSV), describe.go, report.go, files.go (waveform CSV), render.go (the adapter to
+// tables), sweep.go, features.go and sweepfile.go (sweeps: check, plan, run,
+// measure; CSV), present.go (a sweep's tables and figures from plain result
+// values), notes.go (definitions once per session, the safety caution),
+// describe.go, report.go, files.go (waveform CSV), render.go (the adapter to
 // package display), help.go and complete.go (help texts, completion, inspection).
 //
 // Limits: a cell of at most 1 MiB, expressions nested at most 100 deep, sweeps

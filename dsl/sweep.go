@@ -284,7 +284,9 @@ func quantityLabel(q string, tr float64) string {
 	return q
 }
 
-// sweep runs `sweep NAMES over AXES [show ...] [with ...]`.
+// sweep runs `sweep NAMES over AXES [show ...] [with ...]`: it checks the
+// statement against the pulses (axes, quantities, limits), plans and runs the
+// builds, then presents the curves.
 func (ev *evaluator) sweep(s *SweepStmt) error {
 	defs, err := ev.pulses(s.Names)
 	if err != nil {
@@ -294,109 +296,21 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	if err != nil {
 		return err
 	}
-	var axes []*sweepAxis
-	for _, ax := range s.Axes {
-		a, err := ev.evalAxis(ax, defs)
-		if err != nil {
-			return err
-		}
-		for _, b := range axes {
-			if b.kind == a.kind {
-				return errAt(ax.Kind.P, "axis %s given twice", a.kind)
-			}
-		}
-		if _, fixed := set.given[a.kind]; fixed && a.spin {
-			return errAt(set.given[a.kind], "%s is both an axis and a setting", a.kind)
-		}
-		axes = append(axes, a)
+	axes, err := ev.sweepAxes(s, defs, set)
+	if err != nil {
+		return err
 	}
-	anyShapeAxis := false
-	for _, a := range axes {
-		if !a.spin {
-			anyShapeAxis = true
-		}
+	qs, mapNote, err := sweepQuantities(s, defs, axes, set)
+	if err != nil {
+		return err
 	}
-	// Quantities.
-	var qs []quantitySpec
-	mapNote := ""
-	if len(s.Show) == 0 {
-		names := defaultQuantities(defs[0].Pulse.Role)
-		if len(axes) == 2 {
-			// A map shows one quantity: the role's first, or mz without a role
-			// (an mx map says little), and says which was picked.
-			names = names[:1]
-			why := "the default for role " + defs[0].Pulse.Role.String()
-			if defs[0].Pulse.Role == shape.RoleNone {
-				names = []string{"mz"}
-				why = "the default for a pulse without a role"
-			}
-			mapNote = "showing " + names[0] + ", " + why + "; choose another with `show` (mx, my, mz, mxy, phase, echo, echophase)"
-		}
-		for _, n := range names {
-			q, _ := lookupQuantity(n)
-			qs = append(qs, q)
-		}
-	}
-	for _, id := range s.Show {
-		q, ok := lookupQuantity(id.Name)
-		if !ok {
-			return errAt(id.P, "unknown quantity %s%s (quantities: %s)", quoteText(id.Name), suggest(id.Name, quantityNames()), strings.Join(quantityNames(), ", "))
-		}
-		if q.Property && !anyShapeAxis {
-			return errAt(id.P, "%s is a property of the pulse and does not change over %s; sweep a shape argument (duration, flip, ...) to show it", q.Name, axes[0].kind)
-		}
-		if q.Name == "b1rms" && set.tr == 0 {
-			return errAt(id.P, "b1rms needs the repetition time: add `with tr = ...`")
-		}
-		if isEcho(q.Name) && (set.t1 > 0 || set.t2 > 0 || axisNamed(axes, "t1") || axisNamed(axes, "t2")) {
-			return errAt(id.P, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
-		}
-		for _, p := range qs {
-			if p.Name == q.Name {
-				return errAt(id.P, "quantity %s listed twice", q.Name)
-			}
-		}
-		qs = append(qs, q)
-	}
-	if len(axes) == 2 && len(qs) > 1 {
-		return errAt(s.Show[1].P, "a map over two axes shows one quantity, got %d", len(qs))
-	}
-	if len(axes) == 1 {
-		qs = withEchoPhase(qs)
+	skip, left, err := checkSweep(s, defs, axes, qs, set)
+	if err != nil {
+		return err
 	}
 	n0, n1 := axes[0].n, 1
 	if len(axes) == 2 {
 		n1 = axes[1].n
-		if n0*n1 > maxMapCells {
-			return errAt(s.Axes[1].Kind.P, "map of %d × %d = %d points exceeds the limit of %d", n0, n1, n0*n1, maxMapCells)
-		}
-	}
-	for _, d := range defs {
-		if axisNamed(axes, "position") && d.Pulse.Wave.Gradient == nil && !anyShapeAxis {
-			return errAt(axisPos(axes, "position"), "a position axis needs a slice gradient, but %s has none (give gradient or thickness)", d.Name)
-		}
-	}
-	for _, q := range qs {
-		if isEcho(q.Name) {
-			if axisNamed(axes, "t1") || axisNamed(axes, "t2") {
-				return errAt(axisPos(axes, "t1", "t2"), "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; sweep t1 or t2 with mz, mxy ...", q.Name)
-			}
-		}
-	}
-	skip, left := relaxMask(axes, set)
-	if left > 0 && left == len(skip) {
-		var over []string
-		for _, name := range []string{"t1", "t2"} {
-			for _, a := range axes {
-				if a.kind == name {
-					over = append(over, name+" "+a.value(0).String()+" to "+a.value(a.n-1).String())
-				}
-			}
-			if _, ok := set.given[name]; ok {
-				over = append(over, name+" = "+set.writtenValue(name))
-			}
-		}
-		return errAt(axisPos(axes, "t1", "t2"), "t2 exceeds 2·t1 at every point of the sweep (%s); want t2 ≤ 2·t1 somewhere (beyond it the Bloch equations let |M| exceed M0)", strings.Join(over, ", "))
 	}
 	runs, total, err := ev.planSweep(defs, axes, qs, set)
 	if err != nil {
@@ -418,6 +332,17 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 			unwrapDefined(c.values, c.mag)
 		}
 	}
+	ev.presentSweep(s, defs, axes, curves, runs, set, skip, left, mapNote)
+	return nil
+}
+
+// presentSweep emits the figures and tables of a sweep and keeps its data for
+// `export sweep`.
+func (ev *evaluator) presentSweep(s *SweepStmt, defs []*pulseDef, axes []*sweepAxis, curves []*curveData, runs []*sweepRun, set *settings, skip []bool, left int, mapNote string) {
+	n0, n1 := axes[0].n, 1
+	if len(axes) == 2 {
+		n1 = axes[1].n
+	}
 	title := "sweep " + joinNames(s.Names) + " over " + axes[0].kind
 	if len(axes) == 2 {
 		title += " and " + axes[1].kind
@@ -435,14 +360,133 @@ func (ev *evaluator) sweep(s *SweepStmt) error {
 	}
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emitFigure(withSettingsJSON(mapOutput(title, axes, c, n0, n1, mapNote, notes, leftCells), set))
+			ev.emitFigure(withSettingsJSON(mapOutput(mapResult(title, axes, c, n0, n1, mapNote, notes, leftCells)), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
-		return nil
+		return
 	}
-	ev.emitFigure(withSettingsJSON(profileOutput(title, axes[0], curves, defs, ev.st, set.start, notes), set))
+	ev.emitFigure(withSettingsJSON(profileOutput(ev.profileResult(title, axes[0], curves, defs, set.start, notes)), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
-	return nil
+}
+
+// sweepAxes evaluates the statement's axes: each kind once, a spin axis not also a setting.
+func (ev *evaluator) sweepAxes(s *SweepStmt, defs []*pulseDef, set *settings) ([]*sweepAxis, error) {
+	var axes []*sweepAxis
+	for _, ax := range s.Axes {
+		a, err := ev.evalAxis(ax, defs)
+		if err != nil {
+			return nil, err
+		}
+		for _, b := range axes {
+			if b.kind == a.kind {
+				return nil, errAt(ax.Kind.P, "axis %s given twice", a.kind)
+			}
+		}
+		if _, fixed := set.given[a.kind]; fixed && a.spin {
+			return nil, errAt(set.given[a.kind], "%s is both an axis and a setting", a.kind)
+		}
+		axes = append(axes, a)
+	}
+	return axes, nil
+}
+
+// sweepQuantities are the quantities a sweep shows: those given with `show`,
+// checked against the axes and settings, or the first pulse's role's defaults
+// (one on a map, which mapNote then names).
+func sweepQuantities(s *SweepStmt, defs []*pulseDef, axes []*sweepAxis, set *settings) (qs []quantitySpec, mapNote string, err error) {
+	// Quantities.
+	if len(s.Show) == 0 {
+		names := defaultQuantities(defs[0].Pulse.Role)
+		if len(axes) == 2 {
+			// A map shows one quantity: the role's first, or mz without a role
+			// (an mx map says little), and says which was picked.
+			names = names[:1]
+			why := "the default for role " + defs[0].Pulse.Role.String()
+			if defs[0].Pulse.Role == shape.RoleNone {
+				names = []string{"mz"}
+				why = "the default for a pulse without a role"
+			}
+			mapNote = "showing " + names[0] + ", " + why + "; choose another with `show` (mx, my, mz, mxy, phase, echo, echophase)"
+		}
+		for _, n := range names {
+			q, _ := lookupQuantity(n)
+			qs = append(qs, q)
+		}
+	}
+	for _, id := range s.Show {
+		q, ok := lookupQuantity(id.Name)
+		if !ok {
+			return nil, "", errAt(id.P, "unknown quantity %s%s (quantities: %s)", quoteText(id.Name), suggest(id.Name, quantityNames()), strings.Join(quantityNames(), ", "))
+		}
+		if q.Property && !anyShapeAxis(axes) {
+			return nil, "", errAt(id.P, "%s is a property of the pulse and does not change over %s; sweep a shape argument (duration, flip, ...) to show it", q.Name, axes[0].kind)
+		}
+		if q.Name == "b1rms" && set.tr == 0 {
+			return nil, "", errAt(id.P, "b1rms needs the repetition time: add `with tr = ...`")
+		}
+		if isEcho(q.Name) && (set.t1 > 0 || set.t2 > 0 || axisNamed(axes, "t1") || axisNamed(axes, "t2")) {
+			return nil, "", errAt(id.P, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
+		}
+		for _, p := range qs {
+			if p.Name == q.Name {
+				return nil, "", errAt(id.P, "quantity %s listed twice", q.Name)
+			}
+		}
+		qs = append(qs, q)
+	}
+	if len(axes) == 2 && len(qs) > 1 {
+		return nil, "", errAt(s.Show[1].P, "a map over two axes shows one quantity, got %d", len(qs))
+	}
+	if len(axes) == 1 {
+		qs = withEchoPhase(qs)
+	}
+	return qs, mapNote, nil
+}
+
+// anyShapeAxis tells whether an axis varies the pulse (a shape argument).
+func anyShapeAxis(axes []*sweepAxis) bool {
+	return slices.ContainsFunc(axes, func(a *sweepAxis) bool { return !a.spin })
+}
+
+// checkSweep refuses a sweep whose axes and quantities do not go together or
+// exceed the map limit, and marks the spins left out where t2 > 2·t1
+// (relaxMask), refusing a sweep with no spin left.
+func checkSweep(s *SweepStmt, defs []*pulseDef, axes []*sweepAxis, qs []quantitySpec, set *settings) (skip []bool, left int, err error) {
+	n0, n1 := axes[0].n, 1
+	if len(axes) == 2 {
+		n1 = axes[1].n
+		if n0*n1 > maxMapCells {
+			return nil, 0, errAt(s.Axes[1].Kind.P, "map of %d × %d = %d points exceeds the limit of %d", n0, n1, n0*n1, maxMapCells)
+		}
+	}
+	for _, d := range defs {
+		if axisNamed(axes, "position") && d.Pulse.Wave.Gradient == nil && !anyShapeAxis(axes) {
+			return nil, 0, errAt(axisPos(axes, "position"), "a position axis needs a slice gradient, but %s has none (give gradient or thickness)", d.Name)
+		}
+	}
+	for _, q := range qs {
+		if isEcho(q.Name) {
+			if axisNamed(axes, "t1") || axisNamed(axes, "t2") {
+				return nil, 0, errAt(axisPos(axes, "t1", "t2"), "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; sweep t1 or t2 with mz, mxy ...", q.Name)
+			}
+		}
+	}
+	skip, left = relaxMask(axes, set)
+	if left > 0 && left == len(skip) {
+		var over []string
+		for _, name := range []string{"t1", "t2"} {
+			for _, a := range axes {
+				if a.kind == name {
+					over = append(over, name+" "+a.value(0).String()+" to "+a.value(a.n-1).String())
+				}
+			}
+			if _, ok := set.given[name]; ok {
+				over = append(over, name+" = "+set.writtenValue(name))
+			}
+		}
+		return nil, 0, errAt(axisPos(axes, "t1", "t2"), "t2 exceeds 2·t1 at every point of the sweep (%s); want t2 ≤ 2·t1 somewhere (beyond it the Bloch equations let |M| exceed M0)", strings.Join(over, ", "))
+	}
+	return skip, left, nil
 }
 
 // isEcho reports whether q is the crushed echo or its phase, which need the
@@ -823,30 +867,16 @@ func (ev *evaluator) runSweep(runs []*sweepRun, axes []*sweepAxis, qs []quantity
 }
 
 // runOne fills the cells of one build; spins marked in skip (see relaxMask) are
-// not simulated and their cells are NaN.
+// not simulated and their cells are NaN. It rebuilds the pulse when the build
+// needs it, simulates the spins, measures the pulse, then reads each quantity.
 func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, set *settings, skip []bool, n1 int, curves []*curveData, prog *progress) error {
+	cell := runCells(r, axes, n1)
 	if r.fail != "" {
-		var spinAx []int
-		for i, a := range axes {
-			if a.spin {
-				spinAx = append(spinAx, i)
-			}
-		}
 		for k := 0; k < r.spins; k++ {
-			idx := [2]int{}
-			for ai, v := range r.fixed {
-				idx[ai] = v
-			}
-			rem := k
-			for j := len(spinAx) - 1; j >= 0; j-- {
-				ai := spinAx[j]
-				idx[ai] = rem % axes[ai].n
-				rem /= axes[ai].n
-			}
 			for _, c := range curves {
-				c.values[idx[0]*n1+idx[1]] = math.NaN()
+				c.values[cell(k)] = math.NaN()
 				if c.mag != nil {
-					c.mag[idx[0]*n1+idx[1]] = math.NaN()
+					c.mag[cell(k)] = math.NaN()
 				}
 			}
 		}
@@ -867,14 +897,46 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 		}
 		return err
 	}
-	gb := gammaBarOf(p)
-	var spinAx []int
-	for i, a := range axes {
-		if a.spin {
-			spinAx = append(spinAx, i)
+	needMag, needMeasure := runNeeds(qs, p)
+	var res *physics.Result
+	if needMag {
+		var err error
+		if res, err = ev.simulateRun(r, axes, set, skip, prog); err != nil {
+			return err
 		}
 	}
-	cell := func(k int) int {
+	var props shape.Properties
+	if needMeasure {
+		var err error
+		if props, err = ev.measureRun(r, axes, set, prog); err != nil {
+			return err
+		}
+	}
+	for qi, q := range qs {
+		c := curves[qi]
+		ri := 0 // index into the simulated spins
+		for k := 0; k < r.spins; k++ {
+			if skip != nil && skip[k] {
+				c.values[cell(k)] = math.NaN()
+				continue
+			}
+			v, err := runValue(r, q, res, ri, props, c, cell(k), axes[0].pos)
+			if err != nil {
+				return err
+			}
+			ri++
+			c.values[cell(k)] = v
+		}
+	}
+	return nil
+}
+
+// runCells maps the k-th spin of a build (spin axes as a grid, first axis
+// slowest) to its cell in the sweep's values (first axis slowest, n1 the
+// second axis's points).
+func runCells(r *sweepRun, axes []*sweepAxis, n1 int) func(k int) int {
+	spinAx := spinIndices(axes)
+	return func(k int) int {
 		idx := [2]int{}
 		for ai, v := range r.fixed {
 			idx[ai] = v
@@ -887,7 +949,22 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 		}
 		return idx[0]*n1 + idx[1]
 	}
-	needMag, needMeasure := false, false
+}
+
+// spinIndices are the indices of the axes that vary the spins.
+func spinIndices(axes []*sweepAxis) []int {
+	var out []int
+	for i, a := range axes {
+		if a.spin {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+// runNeeds tells whether the quantities need the spins simulated (magnetization)
+// and the pulse measured (properties read from its simulated profile).
+func runNeeds(qs []quantitySpec, p *shape.Pulse) (needMag, needMeasure bool) {
 	for _, q := range qs {
 		if !q.Property {
 			needMag = true
@@ -899,121 +976,120 @@ func (ev *evaluator) runOne(r *sweepRun, axes []*sweepAxis, qs []quantitySpec, s
 			needMeasure = needMeasure || math.IsNaN(p.Flip)
 		}
 	}
-	var res *physics.Result
-	if needMag {
-		iso, err := ev.isochromats(r, axes, spinAx, set, gb)
-		if err != nil {
-			return err
+	return needMag, needMeasure
+}
+
+// simulateRun simulates the spins of one build (those not marked in skip).
+func (ev *evaluator) simulateRun(r *sweepRun, axes []*sweepAxis, set *settings, skip []bool, prog *progress) (*physics.Result, error) {
+	p := r.p
+	iso, err := ev.isochromats(r, axes, spinIndices(axes), set, gammaBarOf(p))
+	if err != nil {
+		return nil, err
+	}
+	iso = keepSpins(iso, skip)
+	opt := physics.Options{Start: set.start, MaxSteps: ev.workBudget()}
+	base := 0.0
+	if prog != nil {
+		prog.mu.Lock()
+		base = prog.base
+		prog.mu.Unlock()
+		n := float64(p.Wave.Len())
+		opt.Progress = func(done, total int) { prog.report(float64(done) * n) }
+	}
+	res, err := physics.Simulate(ev.ctx, &p.Wave, p.Gamma, iso, opt)
+	if err != nil {
+		if ev.ctx.Err() != nil {
+			return nil, ev.ctx.Err()
 		}
-		iso = keepSpins(iso, skip)
-		opt := physics.Options{Start: set.start, MaxSteps: ev.workBudget()}
-		base := 0.0
-		if prog != nil {
-			prog.mu.Lock()
-			base = prog.base
-			prog.mu.Unlock()
-			n := float64(p.Wave.Len())
-			opt.Progress = func(done, total int) { prog.report(float64(done) * n) }
+		return nil, errAt(axes[0].pos, "simulating %s: %v", r.def.Name, err)
+	}
+	if prog != nil {
+		prog.mu.Lock()
+		prog.base = base + float64(r.spins)*float64(p.Wave.Len())
+		prog.mu.Unlock()
+	}
+	return res, nil
+}
+
+// measureRun measures the pulse of one build (shape.Measure).
+func (ev *evaluator) measureRun(r *sweepRun, axes []*sweepAxis, set *settings, prog *progress) (shape.Properties, error) {
+	p := r.p
+	props, err := shape.Measure(ev.ctx, p, ev.measureOptions(r.def, set.tr))
+	if err != nil {
+		if ev.ctx.Err() != nil {
+			return props, ev.ctx.Err()
 		}
-		res, err = physics.Simulate(ev.ctx, &p.Wave, p.Gamma, iso, opt)
-		if err != nil {
-			if ev.ctx.Err() != nil {
-				return ev.ctx.Err()
+		return props, errAt(axes[0].pos, "measuring %s at %s: %v", r.def.Name, pointText(axes, r.fixed), withoutPrefix(err, "measure: "))
+	}
+	if prog != nil {
+		prog.mu.Lock()
+		prog.base += measureCost * float64(p.Wave.Len())
+		prog.mu.Unlock()
+		prog.report(0)
+	}
+	return props, nil
+}
+
+// runValue is quantity q of one build at simulated spin j (cell i of curve c,
+// whose magnitude it also fills for the phases).
+func runValue(r *sweepRun, q quantitySpec, res *physics.Result, j int, props shape.Properties, c *curveData, i int, at Pos) (float64, error) {
+	p := r.p
+	var v float64
+	switch q.Name {
+	case "mx":
+		v = res.Mx[j]
+	case "my":
+		v = res.My[j]
+	case "mz":
+		v = res.Mz[j]
+	case "mxy":
+		v = math.Hypot(res.Mx[j], res.My[j])
+	case "phase":
+		c.mag[i] = math.Hypot(res.Mx[j], res.My[j])
+		v = math.NaN()
+		if c.mag[i] >= phaseFloor {
+			v = math.Atan2(res.My[j], res.Mx[j]) * 180 / math.Pi
+		}
+	case "echo", "echophase":
+		if res.Beta == nil {
+			return 0, errAt(at, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
+		}
+		b := res.Beta[j]
+		v = real(b)*real(b) + imag(b)*imag(b)
+		if q.Name == "echophase" {
+			c.mag[i] = v
+			v = math.NaN()
+			if c.mag[i] >= echoPhaseFloor {
+				v = physics.EchoPhase(b) * 180 / math.Pi
 			}
-			return errAt(axes[0].pos, "simulating %s: %v", r.def.Name, err)
 		}
-		if prog != nil {
-			prog.mu.Lock()
-			prog.base = base + float64(r.spins)*float64(p.Wave.Len())
-			prog.mu.Unlock()
+	case "peak":
+		v = p.Peak() * 1e6
+	case "energy":
+		v = p.Energy() * 1e15
+	case "b1rms":
+		v = props.B1rms * 1e6
+	case "flip":
+		v = p.Flip
+		if math.IsNaN(v) {
+			v = props.Rotation
+		}
+		v *= 180 / math.Pi
+	case "bandwidth":
+		v = props.Bandwidth
+	case "tbw":
+		v = props.Bandwidth * p.Duration()
+	case "transition":
+		v = props.Transition
+	case "ripple":
+		v = props.PassRipple * 100 // % of M0 in the role's quantity
+	case "threshold":
+		v = props.Threshold * 1e6
+		if math.IsNaN(v) && r.note == "" {
+			r.note = thresholdReason(p, props)
 		}
 	}
-	var props shape.Properties
-	if needMeasure {
-		var err error
-		props, err = shape.Measure(ev.ctx, p, ev.measureOptions(r.def, set.tr))
-		if err != nil {
-			if ev.ctx.Err() != nil {
-				return ev.ctx.Err()
-			}
-			return errAt(axes[0].pos, "measuring %s at %s: %v", r.def.Name, pointText(axes, r.fixed), withoutPrefix(err, "measure: "))
-		}
-		if prog != nil {
-			prog.mu.Lock()
-			prog.base += measureCost * float64(p.Wave.Len())
-			prog.mu.Unlock()
-			prog.report(0)
-		}
-	}
-	for qi, q := range qs {
-		c := curves[qi]
-		ri := 0 // index into the simulated spins
-		for k := 0; k < r.spins; k++ {
-			if skip != nil && skip[k] {
-				c.values[cell(k)] = math.NaN()
-				continue
-			}
-			j := ri
-			ri++
-			var v float64
-			switch q.Name {
-			case "mx":
-				v = res.Mx[j]
-			case "my":
-				v = res.My[j]
-			case "mz":
-				v = res.Mz[j]
-			case "mxy":
-				v = math.Hypot(res.Mx[j], res.My[j])
-			case "phase":
-				c.mag[cell(k)] = math.Hypot(res.Mx[j], res.My[j])
-				v = math.NaN()
-				if c.mag[cell(k)] >= phaseFloor {
-					v = math.Atan2(res.My[j], res.Mx[j]) * 180 / math.Pi
-				}
-			case "echo", "echophase":
-				if res.Beta == nil {
-					return errAt(axes[0].pos, "%s is computed from the pulse's Cayley–Klein parameters, which exist only without relaxation; drop t1 and t2", q.Name)
-				}
-				b := res.Beta[j]
-				v = real(b)*real(b) + imag(b)*imag(b)
-				if q.Name == "echophase" {
-					c.mag[cell(k)] = v
-					v = math.NaN()
-					if c.mag[cell(k)] >= echoPhaseFloor {
-						v = physics.EchoPhase(b) * 180 / math.Pi
-					}
-				}
-			case "peak":
-				v = p.Peak() * 1e6
-			case "energy":
-				v = p.Energy() * 1e15
-			case "b1rms":
-				v = props.B1rms * 1e6
-			case "flip":
-				v = p.Flip
-				if math.IsNaN(v) {
-					v = props.Rotation
-				}
-				v *= 180 / math.Pi
-			case "bandwidth":
-				v = props.Bandwidth
-			case "tbw":
-				v = props.Bandwidth * p.Duration()
-			case "transition":
-				v = props.Transition
-			case "ripple":
-				v = props.PassRipple * 100 // % of M0 in the role's quantity
-			case "threshold":
-				v = props.Threshold * 1e6
-				if math.IsNaN(v) && r.note == "" {
-					r.note = thresholdReason(p, props)
-				}
-			}
-			c.values[cell(k)] = v
-		}
-	}
-	return nil
+	return v, nil
 }
 
 // isochromats sets up the spins of one build: the spin axes as a grid (first axis
@@ -1106,24 +1182,6 @@ func t2FromT1(axes []*sweepAxis, set *settings) bool {
 // t2FromT1Note says so in the sweep's notes.
 const t2FromT1Note = "t2 not given: taken as 2·t1 at every point, the longest T2 consistent with T1 (T2 ≤ 2·T1; with no transverse decay at all |M| would exceed M0); give t2 for a real sample's value."
 
-// profileOutput draws the curves of a one-axis sweep with its summary.
-func profileOutput(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, st *state, start [3]float64, notes []string) figureOut {
-	x := a.display()
-	prof := display.Profile{
-		Title: title,
-		X:     display.Axis{Label: a.label(), Unit: unitLabel(a.unit), Values: x, Reverse: a.reverse, Log: a.logScale},
-	}
-	for _, c := range curves {
-		prof.Curves = append(prof.Curves, display.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Y: c.values})
-	}
-	prof.Marks = bandMarks(a, defs, st)
-	prof.Summary = summaryTable(title, a, x, curves, defs, start)
-	prof.Summary.Notes = append(slices.Clone(notes), prof.Summary.Notes...)
-	// The caution travels inside the image, which is what gets saved or pasted.
-	prof.Notes = append(slices.Clone(notes), energyNote(curves)...)
-	return profileBundle(prof)
-}
-
 // bandMarks marks the design band edges of each pulse on offset and position axes.
 func bandMarks(a *sweepAxis, defs []*pulseDef, st *state) []display.Mark {
 	var marks []display.Mark
@@ -1153,125 +1211,6 @@ func bandMarks(a *sweepAxis, defs []*pulseDef, st *state) []display.Mark {
 	return marks
 }
 
-func unitLabel(u string) string {
-	switch u {
-	case "uT":
-		return "µT"
-	case "us":
-		return "µs"
-	case "um":
-		return "µm"
-	}
-	return u
-}
-
-// summaryTable lists up to 50 points row by row; longer curves are summarized by
-// their features (start is the initial magnetization, the baseline of the half
-// levels).
-func summaryTable(title string, a *sweepAxis, x []float64, curves []*curveData, defs []*pulseDef, start [3]float64) display.Table {
-	if len(x) <= 50 {
-		t := display.Table{Title: title, Columns: []display.Column{{Name: a.kind, Unit: unitLabel(a.unit)}}}
-		for _, c := range curves {
-			name := c.quantity.Name
-			if c.label != "" {
-				name = c.label
-			}
-			if len(uniquePulses(curves)) > 1 {
-				name = c.pulse + " " + name
-			}
-			t.Columns = append(t.Columns, display.Column{Name: name, Unit: unitLabel(c.quantity.Unit)})
-		}
-		for i := range x {
-			row := []string{formatNumber(x[i])}
-			for _, c := range curves {
-				row = append(row, fmtCell(c.values[i]))
-			}
-			t.Rows = append(t.Rows, row)
-		}
-		t.Notes = energyNote(curves)
-		return t
-	}
-	t := display.Table{
-		Title: title + " (features; the data is in the JSON output and `export`)",
-		Columns: []display.Column{{Name: "pulse"}, {Name: "quantity"}, {Name: "min"}, {Name: "max"},
-			{Name: "width at half", Unit: unitLabel(a.unit)}, {Name: "half-level crossings", Unit: unitLabel(a.unit)}, {Name: "pass ripple", Unit: "% of M0"}, {Name: "stop ripple", Unit: "% of M0"}},
-	}
-	hasPhase, hasLevels, hasXY := false, false, false
-	for _, c := range curves {
-		switch c.quantity.Name {
-		case "phase", "echophase":
-			hasPhase = true
-		case "mx", "my":
-			hasXY = true
-		}
-	}
-	if hasPhase {
-		per := "deg/" + unitLabel(a.unit)
-		if unitLabel(a.unit) == "" {
-			per = "deg per unit " + a.kind // a factor axis (b1)
-		}
-		t.Columns = append(t.Columns, display.Column{Name: "phase slope", Unit: per}, display.Column{Name: "phase off linear", Unit: "deg"})
-	}
-	var notes []string
-	for _, c := range curves {
-		var p *shape.Pulse
-		for _, d := range defs {
-			if d.Name == c.pulse {
-				p = d.Pulse
-			}
-		}
-		if c.quantity.Name == "phase" || c.quantity.Name == "echophase" {
-			slope, dev, x0, x1 := phaseFeatures(x, c.values, c.mag)
-			// A phase constant to rounding (a time-symmetric pulse's echo) reads 0,
-			// not 1e-13.
-			if math.Abs(slope*(x1-x0)) < 1e-9 {
-				slope = 0
-			}
-			if dev < 1e-9 {
-				dev = 0
-			}
-			row := []string{c.pulse, c.quantity.Name, "—", "—", "—", "—", "—", "—", fmtCellOpt(slope), fmtCellOpt(dev)}
-			t.Rows = append(t.Rows, row)
-			if !math.IsNaN(slope) {
-				band := "the band where mxy is at least half its maximum"
-				if c.quantity.Name == "echophase" {
-					band = "the band where echo is at least half its maximum"
-				}
-				span := formatNumber(roundSig(x0, 5)) + " to " + formatNumber(roundSig(x1, 5))
-				if u := unitLabel(a.unit); u != "" {
-					span += " " + u
-				}
-				notes = append(notes, fmt.Sprintf("%s %s: unwrapped, fitted by a line over %s, %s; \"off linear\" is the largest deviation from that line.", c.pulse, c.quantity.Name, band, span))
-			}
-			continue
-		}
-		base, target := curveLevels(c.quantity.Name, a.kind, start, p)
-		hasLevels = hasLevels || !math.IsNaN(base)
-		fx, fy, _ := finitePoints(x, c.values, nil)
-		f := curveFeatures(fx, fy, base, target)
-		row := []string{c.pulse, c.quantity.Name,
-			fmtCell(f.min) + " at " + formatNumber(f.minAt), fmtCell(f.max) + " at " + formatNumber(f.maxAt),
-			fmtCellOpt(f.width), f.crossings, fmtCellOpt(100 * f.passRipple), fmtCellOpt(100 * f.stopRipple)}
-		if hasPhase {
-			row = append(row, "—", "—")
-		}
-		t.Rows = append(t.Rows, row)
-	}
-	var head []string
-	if hasLevels {
-		head = append(head, halfLevelNote)
-	}
-	if hasXY {
-		head = append(head, "mx and my: extremes only; they oscillate across an offset axis as the phase runs, so a half level, width or ripple of theirs says nothing (show phase for the slope of that phase).")
-	}
-	if hasPhase {
-		head = append(head, "phase and echophase: no extremes (a phase's range depends on where it is unwrapped); a line is fitted to the unwrapped phase over the band where its magnitude (mxy or echo) is at least half its maximum.")
-	}
-	t.Notes = append(head, notes...)
-	t.Notes = append(t.Notes, energyNote(curves)...)
-	return t
-}
-
 // finitePoints keeps the points where y is not NaN (points left out of a sweep,
 // t2 > 2·t1), with the matching x and also (when not nil); the inputs are
 // returned as they are when nothing is left out.
@@ -1292,134 +1231,87 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 	return fx, fy, fa
 }
 
-// halfLevelNote explains the half level, the width and the ripples of a sweep's
-// feature table, naming the regions the ripples cover; describe's ripple
-// (shape.Measure) uses other regions, and the note says so.
-const halfLevelNote = "Measured from the swept points, with the definitions of describe (help quantities): half level midway between the magnetization far from the band (the start state; at b1 = 0 on a b1 axis) and the pass-band value (the design's: mz = cos flip, −1 for inversion, 0 for saturation, mxy = sin flip, echo = sin²(flip/2), 1 for an adiabatic pulse; otherwise the curve's extreme); width at half: the distance between the crossings around the band (the FWHM), \"—\" when the curve does not pass the half level and come back on both sides inside the window. Pass ripple: the largest distance from the pass-band value within the band edges moved inward by one 90 %–10 % transition width; stop ripple: the largest distance from the far-from-band value beyond the edges moved outward by one transition width; both in % of M0 in the quantity shown (for inversion, of Mz). Crossings are interpolated between points, so a coarse grid can miss a ripple's extreme; describe refines by simulation."
+// curveView is the curve as presentation shows it.
+func (c *curveData) view() curveView {
+	return curveView{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Values: c.values,
+		Energy: c.quantity.Name == "energy" || c.quantity.Name == "b1rms"}
+}
 
-func energyNote(curves []*curveData) []string {
+// view is the axis as presentation shows it.
+func (a *sweepAxis) view() axisView {
+	return axisView{Kind: a.label(), Unit: unitLabel(a.unit), Values: a.display(), Reverse: a.reverse, Log: a.logScale,
+		At: func(i int) string { return a.value(i).String() }}
+}
+
+// profileResult measures the curves of a one-axis sweep for presentation: the
+// design band edges, and on a sweep of over 50 points (summarized by features)
+// each curve's features, against the half levels set by start (the initial
+// magnetization) and the pulse's design.
+func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, start [3]float64, notes []string) profileView {
+	v := profileView{Title: title, X: a.view(), Marks: bandMarks(a, defs, ev.st), Notes: notes}
+	x := v.X.Values
+	hasLevels := false
 	for _, c := range curves {
-		if c.quantity.Name == "energy" || c.quantity.Name == "b1rms" {
-			return []string{energyCaution}
+		cv := c.view()
+		if len(x) > 50 {
+			if c.quantity.Name == "phase" || c.quantity.Name == "echophase" {
+				slope, dev, x0, x1 := phaseFeatures(x, c.values, c.mag)
+				// A phase constant to rounding (a time-symmetric pulse's echo)
+				// reads 0, not 1e-13.
+				if math.Abs(slope*(x1-x0)) < 1e-9 {
+					slope = 0
+				}
+				if dev < 1e-9 {
+					dev = 0
+				}
+				cv.Phase = &phaseFit{Slope: slope, Dev: dev, X0: x0, X1: x1}
+			} else {
+				var p *shape.Pulse
+				for _, d := range defs {
+					if d.Name == c.pulse {
+						p = d.Pulse
+					}
+				}
+				base, target := curveLevels(c.quantity.Name, a.kind, start, p)
+				hasLevels = hasLevels || !math.IsNaN(base)
+				fx, fy, _ := finitePoints(x, c.values, nil)
+				cv.Features = curveFeatures(fx, fy, base, target)
+			}
 		}
+		v.Curves = append(v.Curves, cv)
 	}
-	return nil
+	if hasLevels {
+		v.LevelNote = ev.st.definition(halfLevelNote, halfLevelBrief)
+	}
+	return v
 }
 
-func uniquePulses(curves []*curveData) []string {
-	var out []string
-	for _, c := range curves {
-		if !contains(out, c.pulse) {
-			out = append(out, c.pulse)
-		}
-	}
-	return out
-}
-
-func fmtCell(v float64) string {
-	if math.IsNaN(v) {
-		return "—"
-	}
-	if math.Abs(v) < 1e-10 {
-		v = 0 // rounding noise of an exact zero
-	}
-	return fmt.Sprintf("%.4g", v)
-}
-
-func fmtCellOpt(v float64) string {
-	if math.IsNaN(v) {
-		return "—"
-	}
-	return formatNumber(roundSig(v, 5))
-}
-
-func roundSig(v float64, sig int) float64 {
-	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-		return v
-	}
-	e := math.Pow(10, float64(sig-1)-math.Floor(math.Log10(math.Abs(v))))
-	return math.Round(v*e) / e
-}
-
-// colourRange is the fixed colour scale of a magnetization map, so that maps of
-// different pulses or settings compare at a glance: −1…1 for the components,
-// 0…1 for the magnitudes |Mxy| and |β|², −180…180 deg for the phases. Pulse
-// properties get (0, 0): the data's own range.
-func colourRange(q string) (lo, hi float64) {
-	switch q {
-	case "mx", "my", "mz":
-		return -1, 1
-	case "mxy", "echo":
-		return 0, 1
-	case "phase", "echophase":
-		return -180, 180
-	}
-	return 0, 0
-}
-
-// mapOutput draws one quantity of one pulse over two axes; leftOut cells were not
-// simulated (t2 > 2·t1).
-func mapOutput(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) figureOut {
-	// Z[iy][ix] with the first axis horizontal.
-	z := make([][]float64, n1)
-	for iy := range z {
-		z[iy] = make([]float64, n0)
-		for ix := range z[iy] {
-			z[iy][ix] = c.values[ix*n1+iy]
-		}
-	}
-	m := display.Map{
-		Title:    title + ": " + c.pulse + " " + c.quantity.Name,
-		X:        display.Axis{Label: axes[0].kind, Unit: unitLabel(axes[0].unit), Values: axes[0].display(), Reverse: axes[0].reverse, Log: axes[0].logScale},
-		Y:        display.Axis{Label: axes[1].kind, Unit: unitLabel(axes[1].unit), Values: axes[1].display(), Reverse: axes[1].reverse, Log: axes[1].logScale},
-		Pulse:    c.pulse,
-		Quantity: c.quantity.Name,
-		Label:    c.label,
-		Unit:     unitLabel(c.quantity.Unit),
-		Z:        z,
-		Notes:    append(slices.Clone(axisNotes), energyNote([]*curveData{c})...),
-	}
-	m.ZMin, m.ZMax = colourRange(c.quantity.Name)
-	m.Cyclic = c.quantity.Name == "phase" || c.quantity.Name == "echophase"
+// mapResult measures one quantity of one pulse over two axes for presentation:
+// its extremes and, for its role's quantity, how many points meet the target;
+// leftOut cells were not simulated (t2 > 2·t1).
+func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) mapView {
+	v := mapView{Title: title, X: axes[0].view(), Y: axes[1].view(), Curve: c.view(), N0: n0, N1: n1, Note: note, AxisNotes: axisNotes, LeftOut: leftOut}
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
-	if ok {
-		m.Contour, m.HasContour = level, true
-	}
 	lo, hi, loAt, hiAt := math.Inf(1), math.Inf(-1), 0, 0
 	met := 0
-	for i, v := range c.values {
+	for i, x := range c.values {
 		// Ties within rounding noise keep the first point, so that the
 		// summary does not hinge on the last bits of the simulation.
-		if v < lo-tieTol(lo) {
-			lo, loAt = v, i
+		if x < lo-tieTol(lo) {
+			lo, loAt = x, i
 		}
-		if v > hi+tieTol(hi) {
-			hi, hiAt = v, i
+		if x > hi+tieTol(hi) {
+			hi, hiAt = x, i
 		}
-		if ok && cmp(v) {
+		if ok && cmp(x) {
 			met++
 		}
 	}
-	at := func(i int) string {
-		return axes[0].value(i/n1).String() + ", " + axes[1].value(i%n1).String()
-	}
-	rows := [][]string{
-		{"points", fmt.Sprintf("%d × %d", n0, n1)},
-		{"min", fmtCell(lo) + " at " + at(loAt)},
-		{"max", fmtCell(hi) + " at " + at(hiAt)},
-	}
+	v.Lo, v.Hi, v.LoAt, v.HiAt = lo, hi, loAt, hiAt
 	if ok {
-		of, n := " % of the map", len(c.values)
-		if leftOut > 0 {
-			of, n = " % of the simulated points", n-leftOut
-		}
-		rows = append(rows, []string{"target met (" + c.quantity.Name + " " + targetText(c.role, level) + ")", formatNumber(roundSig(100*float64(met)/float64(n), 4)) + of})
+		v.Target = &mapTarget{Level: level, Text: targetText(c.role, level), Met: met}
 	}
-	m.Summary = display.Table{Title: m.Title, Columns: []display.Column{{Name: "feature"}, {Name: "value"}}, Rows: rows, Notes: append(slices.Clone(axisNotes), energyNote([]*curveData{c})...)}
-	if note != "" {
-		m.Summary.Notes = append([]string{note}, m.Summary.Notes...)
-	}
-	return mapBundle(m)
+	return v
 }
 
 // roleTarget is the level a role's profile must reach (the targets of

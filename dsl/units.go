@@ -292,3 +292,12 @@ func convert(q Quantity, to Dim, gammaBar, b0 float64, nucleus string) (Quantity
 	}
 	return q, fmt.Errorf("cannot convert %s to %s", q.D.Noun(), to.Noun())
 }
+
+// roundSig rounds v to sig significant digits.
+func roundSig(v float64, sig int) float64 {
+	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
+	}
+	e := math.Pow(10, float64(sig-1)-math.Floor(math.Log10(math.Abs(v))))
+	return math.Round(v*e) / e
+}
