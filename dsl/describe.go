@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics/shape"
 )
 
@@ -88,7 +89,7 @@ func fmtField(b, gammaBar float64) string {
 }
 
 // energyUnit shows ∫B1² dt in µT²·ms.
-func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
+func fmtEnergy(e float64) string { return present.Number(e*1e12*1e3) + " µT²·ms" }
 
 func fmtOpt(v float64, f func(float64) string) string {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -125,13 +126,13 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 			return err
 		}
 		t := propertiesTable(d, pr, set.tr, ev.st.field)
-		t.Notes = []string{ev.st.definition(rippleNote, rippleBrief), energyCaution}
+		t.Notes = []string{ev.st.definition(present.RippleNote, present.RippleBrief), present.EnergyCaution}
 		if w, err := ev.thresholdWarning(d, pr); err != nil {
 			return err
 		} else if w != "" {
 			t.Notes = append([]string{"warning: " + w}, t.Notes...)
 		}
-		f, err := ev.buildBundle(func() figureOut { return waveformBundle(waveformOf(d), t) })
+		f, err := ev.buildBundle(func() present.Figure { return present.WaveformBundle(waveformOf(d), t) })
 		if err != nil {
 			return err
 		}
@@ -145,9 +146,9 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 // the evaluator returns ctx.Err() at once and the abandoned build, which touches
 // no session state, finishes in the background and is dropped. A panic in f is
 // raised again on the evaluator's goroutine, where the session recovers it.
-func (ev *evaluator) buildBundle(f func() figureOut) (figureOut, error) {
+func (ev *evaluator) buildBundle(f func() present.Figure) (present.Figure, error) {
 	type result struct {
-		b     figureOut
+		b     present.Figure
 		panic any
 	}
 	ch := make(chan result, 1)
@@ -166,7 +167,7 @@ func (ev *evaluator) buildBundle(f func() figureOut) (figureOut, error) {
 		}
 		return r.b, nil
 	case <-ev.ctx.Done():
-		return figureOut{}, ev.ctx.Err()
+		return present.Figure{}, ev.ctx.Err()
 	}
 }
 
@@ -189,7 +190,7 @@ func centreText(p *shape.Pulse, field float64) string {
 	s := Quantity{p.Center, dimFrequency}.String()
 	if f := field; f > 0 {
 		ppm := p.Center / (signedGammaBar(p) * f) * 1e6
-		s += " (" + formatNumber(roundSig(ppm, 6)) + " ppm)"
+		s += " (" + present.Number(present.RoundSig(ppm, 6)) + " ppm)"
 	}
 	return s
 }
@@ -264,10 +265,10 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 		[]string{"bandwidth (measured FWHM, " + halfLevelText(p, pr) + ")", fwhmText(p, pr)},
 	)
 	if p.TBW != 0 {
-		rows = append(rows, []string{"TBW (design)", formatNumber(p.TBW)})
+		rows = append(rows, []string{"TBW (design)", present.Number(p.TBW)})
 	}
 	if !math.IsNaN(pr.Bandwidth) {
-		rows = append(rows, []string{"TBW (measured, FWHM × duration)", formatNumber(roundSig(pr.Bandwidth*p.Duration(), 6))})
+		rows = append(rows, []string{"TBW (measured, FWHM × duration)", present.Number(present.RoundSig(pr.Bandwidth*p.Duration(), 6))})
 	}
 	rows = append(rows,
 		[]string{"transition (measured, 90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
@@ -303,7 +304,7 @@ func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) displa
 	}
 }
 
-func pct(v float64) string { return formatNumber(100*v) + " %" }
+func pct(v float64) string { return present.Number(100*v) + " %" }
 
 // roleQuantity names the quantity a role's profile is measured in.
 func roleQuantity(r shape.Role) string {
@@ -324,14 +325,14 @@ func halfLevelText(p *shape.Pulse, pr shape.Properties) string {
 	h := pr.PassValue / 2
 	switch p.Role {
 	case shape.RoleInvert:
-		return "Mz = " + formatNumber(roundSig(1-2*h, 4))
+		return "Mz = " + present.Number(present.RoundSig(1-2*h, 4))
 	case shape.RoleSaturate:
-		return "Mz = " + formatNumber(roundSig(1-h, 4))
+		return "Mz = " + present.Number(present.RoundSig(1-h, 4))
 	}
 	if !pr.PassDesign {
-		return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4)) + ", half the centre value"
+		return roleQuantity(p.Role) + " = " + present.Number(present.RoundSig(h, 4)) + ", half the centre value"
 	}
-	return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4))
+	return roleQuantity(p.Role) + " = " + present.Number(present.RoundSig(h, 4))
 }
 
 // fwhmText is the measured FWHM, or why there is none.

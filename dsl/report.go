@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics/shape"
 )
 
@@ -76,32 +77,32 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		shp := describeShape(d)
 		flip := "—"
 		if !math.IsNaN(p.Flip) && !imported(p) {
-			flip = formatNumber(roundSig(p.Flip*180/math.Pi, 5))
+			flip = present.Number(present.RoundSig(p.Flip*180/math.Pi, 5))
 		} else if !math.IsNaN(pr.Rotation) {
-			flip = formatNumber(roundSig(pr.Rotation*180/math.Pi, 4)) + " (simulated)"
+			flip = present.Number(present.RoundSig(pr.Rotation*180/math.Pi, 4)) + " (simulated)"
 		}
 		tbw := "—"
 		switch {
 		case p.TBW > 0:
-			tbw = formatNumber(roundSig(p.TBW, 4))
+			tbw = present.Number(present.RoundSig(p.TBW, 4))
 		case !math.IsNaN(pr.Bandwidth):
-			tbw = formatNumber(roundSig(pr.Bandwidth*p.Duration(), 4)) + " (measured)"
+			tbw = present.Number(present.RoundSig(pr.Bandwidth*p.Duration(), 4)) + " (measured)"
 		}
-		row := []string{d.Name, shp, formatNumber(roundSig(p.Duration()*1e3, 6)), fmt.Sprint(p.Wave.Len()),
-			formatNumber(roundSig(p.Peak()*1e6, 5)), formatNumber(roundSig(p.Peak()*gb, 5)), flip,
-			fmtOpt(pr.Bandwidth, func(v float64) string { return formatNumber(roundSig(v, 5)) }), tbw,
-			formatNumber(roundSig(p.Energy()*1e15, 5))}
+		row := []string{d.Name, shp, present.Number(present.RoundSig(p.Duration()*1e3, 6)), fmt.Sprint(p.Wave.Len()),
+			present.Number(present.RoundSig(p.Peak()*1e6, 5)), present.Number(present.RoundSig(p.Peak()*gb, 5)), flip,
+			fmtOpt(pr.Bandwidth, func(v float64) string { return present.Number(present.RoundSig(v, 5)) }), tbw,
+			present.Number(present.RoundSig(p.Energy()*1e15, 5))}
 		if centre {
-			row = append(row, formatNumber(roundSig(p.Center, 6)))
+			row = append(row, present.Number(present.RoundSig(p.Center, 6)))
 			if f := ev.st.field; f > 0 {
 				// Δf = γ̄·B0·δ with the sign of γ (README conventions).
-				row = append(row, formatNumber(roundSig(p.Center/(signedGammaBar(p)*f)*1e6, 6)))
+				row = append(row, present.Number(present.RoundSig(p.Center/(signedGammaBar(p)*f)*1e6, 6)))
 			}
 		}
 		if adiabatic {
 			th := "—"
 			if p.Adiabatic {
-				th = fmtOpt(pr.Threshold, func(v float64) string { return formatNumber(roundSig(v*1e6, 4)) })
+				th = fmtOpt(pr.Threshold, func(v float64) string { return present.Number(present.RoundSig(v*1e6, 4)) })
 				if !thresholdBanded(p) && !math.IsNaN(pr.Threshold) {
 					th += " (at the centre)"
 				}
@@ -115,12 +116,12 @@ func (ev *evaluator) report(s *ReportStmt) error {
 		if slice {
 			g, th, fwhm, shift := "—", "—", "—", "—"
 			if p.Gradient != 0 {
-				g = formatNumber(roundSig(p.Gradient*1e3, 5))
+				g = present.Number(present.RoundSig(p.Gradient*1e3, 5))
 				if p.Bandwidth != 0 {
-					th = formatNumber(roundSig(shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient)*1e3, 5))
+					th = present.Number(present.RoundSig(shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient)*1e3, 5))
 				}
-				fwhm = fmtOpt(pr.Thickness, func(v float64) string { return formatNumber(roundSig(v*1e3, 5)) })
-				shift = fmtOpt(pr.ShiftPerPPM, func(v float64) string { return formatNumber(roundSig(v*1e3, 5)) })
+				fwhm = fmtOpt(pr.Thickness, func(v float64) string { return present.Number(present.RoundSig(v*1e3, 5)) })
+				shift = fmtOpt(pr.ShiftPerPPM, func(v float64) string { return present.Number(present.RoundSig(v*1e3, 5)) })
 			}
 			row = append(row, g, th, fwhm)
 			if ev.st.field > 0 {
@@ -139,7 +140,7 @@ func (ev *evaluator) report(s *ReportStmt) error {
 	nuc := defs[0].Nucleus.Name
 	context := "nucleus " + nuc
 	if ev.st.field > 0 {
-		context += fmt.Sprintf(", B0 = %s T", formatNumber(ev.st.field))
+		context += fmt.Sprintf(", B0 = %s T", present.Number(ev.st.field))
 	}
 	notes := []string{
 		"Bandwidth (measured): full width of each pulse's simulated profile (exact Bloch simulation, " + context + ") where its role's quantity is half-way to its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation, echo |β|² = sin²(flip/2) / 2 for refocusing); TBW as designed, or FWHM × duration where the design has none.",
@@ -181,7 +182,7 @@ func describeShape(d *pulseDef) string {
 				s = "(" + describeShape(e.Def) + ")"
 			}
 			if e.Phase != 0 {
-				s += " at " + formatNumber(roundSig(e.Phase*180/math.Pi, 6)) + " deg"
+				s += " at " + present.Number(present.RoundSig(e.Phase*180/math.Pi, 6)) + " deg"
 			}
 			els = append(els, s)
 		}

@@ -8,6 +8,7 @@ import (
 	"sync"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics"
 	"Nutate/physics/shape"
 )
@@ -218,7 +219,7 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 	if a.arg.Kind == argCount {
 		for i := 0; i < a.n; i++ {
 			if v := a.value(i).Q.V; math.Abs(v-math.Round(v)) > 1e-9 {
-				return nil, errAt(ax.Kind.P, "%s takes whole numbers, but the axis reaches %s; choose points or step so every value is whole", a.kind, formatNumber(v))
+				return nil, errAt(ax.Kind.P, "%s takes whole numbers, but the axis reaches %s; choose points or step so every value is whole", a.kind, present.Number(v))
 			}
 		}
 	}
@@ -360,12 +361,12 @@ func (ev *evaluator) presentSweep(s *SweepStmt, defs []*pulseDef, axes []*sweepA
 	}
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emitFigure(withSettingsJSON(mapOutput(mapResult(title, axes, c, n0, n1, mapNote, notes, leftCells)), set))
+			ev.emitFigure(withSettingsJSON(present.MapFigure(mapResult(title, axes, c, n0, n1, mapNote, notes, leftCells)), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return
 	}
-	ev.emitFigure(withSettingsJSON(profileOutput(ev.profileResult(title, axes[0], curves, defs, set.start, notes)), set))
+	ev.emitFigure(withSettingsJSON(present.ProfileFigure(ev.profileResult(title, axes[0], curves, defs, set.start, notes)), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 }
 
@@ -1232,14 +1233,14 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 }
 
 // curveView is the curve as presentation shows it.
-func (c *curveData) view() curveView {
-	return curveView{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Values: c.values,
+func (c *curveData) view() present.Curve {
+	return present.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: present.UnitLabel(c.quantity.Unit), Values: c.values,
 		Energy: c.quantity.Name == "energy" || c.quantity.Name == "b1rms"}
 }
 
 // view is the axis as presentation shows it.
-func (a *sweepAxis) view() axisView {
-	return axisView{Kind: a.label(), Unit: unitLabel(a.unit), Values: a.display(), Reverse: a.reverse, Log: a.logScale,
+func (a *sweepAxis) view() present.Axis {
+	return present.Axis{Kind: a.label(), Unit: present.UnitLabel(a.unit), Values: a.display(), Reverse: a.reverse, Log: a.logScale,
 		At: func(i int) string { return a.value(i).String() }}
 }
 
@@ -1247,8 +1248,8 @@ func (a *sweepAxis) view() axisView {
 // design band edges, and on a sweep of over 50 points (summarized by features)
 // each curve's features, against the half levels set by start (the initial
 // magnetization) and the pulse's design.
-func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, start [3]float64, notes []string) profileView {
-	v := profileView{Title: title, X: a.view(), Marks: bandMarks(a, defs, ev.st), Notes: notes}
+func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, start [3]float64, notes []string) present.Profile {
+	v := present.Profile{Title: title, X: a.view(), Marks: bandMarks(a, defs, ev.st), Notes: notes}
 	x := v.X.Values
 	hasLevels := false
 	for _, c := range curves {
@@ -1264,7 +1265,7 @@ func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveDa
 				if dev < 1e-9 {
 					dev = 0
 				}
-				cv.Phase = &phaseFit{Slope: slope, Dev: dev, X0: x0, X1: x1}
+				cv.Phase = &present.PhaseFit{Slope: slope, Dev: dev, X0: x0, X1: x1}
 			} else {
 				var p *shape.Pulse
 				for _, d := range defs {
@@ -1281,7 +1282,7 @@ func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveDa
 		v.Curves = append(v.Curves, cv)
 	}
 	if hasLevels {
-		v.LevelNote = ev.st.definition(halfLevelNote, halfLevelBrief)
+		v.LevelNote = ev.st.definition(present.HalfLevelNote, present.HalfLevelBrief)
 	}
 	return v
 }
@@ -1289,8 +1290,8 @@ func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveDa
 // mapResult measures one quantity of one pulse over two axes for presentation:
 // its extremes and, for its role's quantity, how many points meet the target;
 // leftOut cells were not simulated (t2 > 2·t1).
-func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) mapView {
-	v := mapView{Title: title, X: axes[0].view(), Y: axes[1].view(), Curve: c.view(), N0: n0, N1: n1, Note: note, AxisNotes: axisNotes, LeftOut: leftOut}
+func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) present.Map {
+	v := present.Map{Title: title, X: axes[0].view(), Y: axes[1].view(), Curve: c.view(), N0: n0, N1: n1, Note: note, AxisNotes: axisNotes, LeftOut: leftOut}
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
 	lo, hi, loAt, hiAt := math.Inf(1), math.Inf(-1), 0, 0
 	met := 0
@@ -1309,7 +1310,7 @@ func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 	}
 	v.Lo, v.Hi, v.LoAt, v.HiAt = lo, hi, loAt, hiAt
 	if ok {
-		v.Target = &mapTarget{Level: level, Text: targetText(c.role, level), Met: met}
+		v.Target = &present.Target{Level: level, Text: targetText(c.role, level), Met: met}
 	}
 	return v
 }
