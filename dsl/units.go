@@ -217,24 +217,24 @@ func autoUnit(q Quantity) string {
 	return ladder[len(ladder)-1]
 }
 
-// format shows q in unit (or an automatic one when unit is "").
-func (q Quantity) format(unit string) string {
+// shown is q as presentation shows it: its value in unit (or an automatic one
+// when unit is "").
+func (q Quantity) shown(unit string) present.Value {
 	if unit == "" {
 		unit = autoUnit(q)
 	}
 	if unit == "" {
 		if q.D == dimNumber {
-			return present.Number(q.V)
+			return present.Value{V: q.V}
 		}
-		return present.Number(q.V) + " " + q.D.unitString()
+		return present.Value{V: q.V, Unit: q.D.unitString()}
 	}
 	u, _ := lookupUnit(unit)
-	s := present.Number(q.V / u.Factor)
-	if unit == "%" || unit == "°" {
-		return s + unit
-	}
-	return s + " " + present.UnitLabel(unit)
+	return present.Value{V: q.V / u.Factor, Unit: unit}
 }
+
+// format shows q in unit (or an automatic one when unit is "").
+func (q Quantity) format(unit string) string { return q.shown(unit).String() }
 
 // String shows q in an automatic unit.
 func (q Quantity) String() string { return q.format("") }
