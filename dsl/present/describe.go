@@ -100,26 +100,7 @@ func PropertiesTable(p PulseProperties) [][]string {
 		{"samples", dwell},
 		{"peak B1", p.Peak.String()},
 	}
-	if p.Imported {
-		// The file's samples carry no design flip; γ|∫B1 dt| is only the
-		// area where the file says the pulse plays (the rotation is the
-		// simulated one below).
-		if p.Centre != nil {
-			from := "centre (the file's frequency offset)"
-			if p.FreqSweep {
-				from = "centre (middle of the file's frequency sweep)"
-			}
-			rows = append(rows, []string{from, p.centreText()})
-		}
-		rows = append(rows, []string{p.Area + " (γ|∫B1 dt|)", p.Flip.String()})
-	} else {
-		if p.Centre != nil {
-			rows = append(rows, []string{"centre (carrier offset of the band)", p.centreText()})
-		}
-		if !math.IsNaN(p.Flip.V) {
-			rows = append(rows, []string{"flip (nominal)", p.Flip.String()})
-		}
-	}
+	rows = append(rows, p.centreFlipRows()...)
 	rows = append(rows, []string{"rotation at centre (measured)", opt(p.Rotation, "")})
 	if p.Role != "" {
 		rows = append(rows, []string{"role", p.Role})
@@ -169,6 +150,33 @@ func PropertiesTable(p PulseProperties) [][]string {
 	}
 	if p.Source != "" {
 		rows = append(rows, []string{"imported from", p.Source})
+	}
+	return rows
+}
+
+// centreFlipRows give the centre and the flip: the design flip, or for an
+// imported pulse the area where the file says it plays.
+func (p PulseProperties) centreFlipRows() [][]string {
+	var rows [][]string
+	if p.Imported {
+		// The file's samples carry no design flip; γ|∫B1 dt| is only the
+		// area where the file says the pulse plays (the rotation is the
+		// simulated one below).
+		if p.Centre != nil {
+			from := "centre (the file's frequency offset)"
+			if p.FreqSweep {
+				from = "centre (middle of the file's frequency sweep)"
+			}
+			rows = append(rows, []string{from, p.centreText()})
+		}
+		rows = append(rows, []string{p.Area + " (γ|∫B1 dt|)", p.Flip.String()})
+	} else {
+		if p.Centre != nil {
+			rows = append(rows, []string{"centre (carrier offset of the band)", p.centreText()})
+		}
+		if !math.IsNaN(p.Flip.V) {
+			rows = append(rows, []string{"flip (nominal)", p.Flip.String()})
+		}
 	}
 	return rows
 }

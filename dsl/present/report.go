@@ -51,82 +51,13 @@ type Report struct {
 // adiabatic threshold, slice and role columns when a pulse needs them, and
 // the notes defining the measured figures.
 func ReportTable(rep Report) display.Table {
-	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
-		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth (measured FWHM)", Unit: "Hz"},
-		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
-	adiabatic, slice, role, centre := false, false, false, false
-	for _, r := range rep.Rows {
-		centre = centre || r.CentreHz != 0
-		adiabatic = adiabatic || r.Adiabatic
-		slice = slice || r.GradientMTm != 0
-		role = role || r.Role != ""
-	}
-	// An off-centre band is part of the method: where the pulse plays.
-	if centre {
-		cols = append(cols, display.Column{Name: "centre", Unit: "Hz"})
-		if rep.Field > 0 {
-			cols = append(cols, display.Column{Name: "centre", Unit: "ppm"})
-		}
-	}
-	if adiabatic {
-		cols = append(cols, display.Column{Name: "adiabatic threshold", Unit: "µT"})
-	}
-	// A methods table of slice-selective pulses gives the gradient and the
-	// (design) slice thickness; roles say what each pulse is for.
-	if slice {
-		cols = append(cols, display.Column{Name: "gradient", Unit: "mT/m"}, display.Column{Name: "design slice thickness", Unit: "mm"},
-			display.Column{Name: "slice FWHM", Unit: "mm"})
-		if rep.Field > 0 {
-			cols = append(cols, display.Column{Name: "chemical-shift displacement", Unit: "mm/ppm"})
-		}
-	}
-	if role {
-		cols = append(cols, display.Column{Name: "role"})
-	}
+	cols, has := reportColumns(rep)
 	var rows [][]string
 	var unmet []string
 	for _, r := range rep.Rows {
-		row := r.cells()
-		if centre {
-			row = append(row, Number(RoundSig(r.CentreHz, 6)))
-			if rep.Field > 0 {
-				row = append(row, Number(RoundSig(r.CentrePPM, 6)))
-			}
-		}
-		if adiabatic {
-			th := "—"
-			if r.Adiabatic {
-				th = sig(r.ThresholdUT, 4)
-				if r.ThresholdAtCentre && !math.IsNaN(r.ThresholdUT) {
-					th += " (at the centre)"
-				}
-				if math.IsNaN(r.ThresholdUT) {
-					th = "not met†"
-					unmet = append(unmet, r.Name+": "+r.ThresholdReason)
-				}
-			}
-			row = append(row, th)
-		}
-		if slice {
-			g, th, fwhm, shift := "—", "—", "—", "—"
-			if r.GradientMTm != 0 {
-				g = Number(RoundSig(r.GradientMTm, 5))
-				if r.SliceDesignMm != 0 {
-					th = Number(RoundSig(r.SliceDesignMm, 5))
-				}
-				fwhm, shift = sig(r.SliceFWHMMm, 5), sig(r.ShiftMmPerPPM, 5)
-			}
-			row = append(row, g, th, fwhm)
-			if rep.Field > 0 {
-				row = append(row, shift)
-			}
-		}
-		if role {
-			ro := "—"
-			if r.Role != "" {
-				ro = r.Role
-			}
-			row = append(row, ro)
+		row := append(r.cells(), r.optionalCells(has, rep.Field > 0)...)
+		if r.Adiabatic && math.IsNaN(r.ThresholdUT) {
+			unmet = append(unmet, r.Name+": "+r.ThresholdReason)
 		}
 		rows = append(rows, row)
 	}
@@ -138,7 +69,7 @@ func ReportTable(rep Report) display.Table {
 		"Bandwidth (measured): full width of each pulse's simulated profile (exact Bloch simulation, " + context + ") where its role's quantity is half-way to its design pass-band value (Mz = 0 for inversion, |Mxy| = sin flip / 2 for excitation, echo |β|² = sin²(flip/2) / 2 for refocusing); TBW as designed, or FWHM × duration where the design has none.",
 		"* Energy ∫B1² dt is a relative, waveform-only estimate, not SAR: defer to the scanner's own SAR supervision, IEC 60601-2-33, local regulations and the site's MR safety officer.",
 	}
-	if adiabatic {
+	if has.adiabatic {
 		notes = append(notes, "Adiabatic threshold: the lowest peak B1 at which the simulated pulse meets its role's target (invert Mz ≤ −0.9, excite |Mxy| ≥ 0.9·sin flip, refocus |β|² ≥ 0.9, saturate |Mz| ≤ 0.1; bir4 also its rotation, phase included) at every offset within ±¼ of its band, or at its centre where marked (no design band), and keeps meeting it over half an octave of B1 above.")
 	}
 	if len(unmet) > 0 {
@@ -146,6 +77,96 @@ func ReportTable(rep Report) display.Table {
 	}
 	notes = append(notes, rep.Warnings...)
 	return display.Table{Title: "RF pulses (" + context + ")", Columns: cols, Rows: rows, Notes: notes}
+}
+
+// reportHas says which optional columns a report shows: a centre when a
+// pulse is off the carrier, a threshold when one is adiabatic, the slice when
+// one has a gradient, the role when one has a role.
+type reportHas struct{ centre, adiabatic, slice, role bool }
+
+// reportColumns are the report's columns: those every pulse has, then the
+// optional ones some pulse needs.
+func reportColumns(rep Report) ([]display.Column, reportHas) {
+	cols := []display.Column{{Name: "pulse"}, {Name: "shape"}, {Name: "duration", Unit: "ms"}, {Name: "samples"},
+		{Name: "peak B1", Unit: "µT"}, {Name: "peak B1", Unit: "Hz"}, {Name: "flip", Unit: "deg"}, {Name: "bandwidth (measured FWHM)", Unit: "Hz"},
+		{Name: "TBW"}, {Name: "energy*", Unit: "µT²·ms"}}
+	var has reportHas
+	for _, r := range rep.Rows {
+		has.centre = has.centre || r.CentreHz != 0
+		has.adiabatic = has.adiabatic || r.Adiabatic
+		has.slice = has.slice || r.GradientMTm != 0
+		has.role = has.role || r.Role != ""
+	}
+	// An off-centre band is part of the method: where the pulse plays.
+	if has.centre {
+		cols = append(cols, display.Column{Name: "centre", Unit: "Hz"})
+		if rep.Field > 0 {
+			cols = append(cols, display.Column{Name: "centre", Unit: "ppm"})
+		}
+	}
+	if has.adiabatic {
+		cols = append(cols, display.Column{Name: "adiabatic threshold", Unit: "µT"})
+	}
+	// A methods table of slice-selective pulses gives the gradient and the
+	// (design) slice thickness; roles say what each pulse is for.
+	if has.slice {
+		cols = append(cols, display.Column{Name: "gradient", Unit: "mT/m"}, display.Column{Name: "design slice thickness", Unit: "mm"},
+			display.Column{Name: "slice FWHM", Unit: "mm"})
+		if rep.Field > 0 {
+			cols = append(cols, display.Column{Name: "chemical-shift displacement", Unit: "mm/ppm"})
+		}
+	}
+	if has.role {
+		cols = append(cols, display.Column{Name: "role"})
+	}
+	return cols, has
+}
+
+// optionalCells are the row's cells in the optional columns (withField: the
+// field is set, so ppm figures are shown).
+func (r ReportRow) optionalCells(has reportHas, withField bool) []string {
+	var row []string
+	if has.centre {
+		row = append(row, Number(RoundSig(r.CentreHz, 6)))
+		if withField {
+			row = append(row, Number(RoundSig(r.CentrePPM, 6)))
+		}
+	}
+	if has.adiabatic {
+		th := "—"
+		if r.Adiabatic {
+			th = sig(r.ThresholdUT, 4)
+			if r.ThresholdAtCentre && !math.IsNaN(r.ThresholdUT) {
+				th += " (at the centre)"
+			}
+			if math.IsNaN(r.ThresholdUT) {
+				th = "not met†"
+			}
+		}
+		row = append(row, th)
+	}
+	if has.slice {
+		g, th, fwhm, shift := "—", "—", "—", "—"
+		if r.GradientMTm != 0 {
+			g = Number(RoundSig(r.GradientMTm, 5))
+			if r.SliceDesignMm != 0 {
+				th = Number(RoundSig(r.SliceDesignMm, 5))
+			}
+			fwhm, shift = sig(r.SliceFWHMMm, 5), sig(r.ShiftMmPerPPM, 5)
+		}
+		row = append(row, g, th, fwhm)
+		if withField {
+			row = append(row, shift)
+		}
+	}
+	if has.role {
+		ro := "—"
+		if r.Role != "" {
+			ro = r.Role
+		}
+		row = append(row, ro)
+	}
+	return row
 }
 
 // cells are the columns every pulse has.

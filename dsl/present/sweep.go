@@ -101,26 +101,7 @@ func ProfileFigure(v Profile) Figure {
 func SummaryTable(v Profile) display.Table {
 	a, x, curves := v.X, v.X.Values, v.Curves
 	if len(x) <= 50 {
-		t := display.Table{Title: v.Title, Columns: []display.Column{{Name: a.Kind, Unit: a.Unit}}}
-		for _, c := range curves {
-			name := c.Quantity
-			if c.Label != "" {
-				name = c.Label
-			}
-			if len(uniquePulses(curves)) > 1 {
-				name = c.Pulse + " " + name
-			}
-			t.Columns = append(t.Columns, display.Column{Name: name, Unit: c.Unit})
-		}
-		for i := range x {
-			row := []string{Number(x[i])}
-			for _, c := range curves {
-				row = append(row, Cell(c.Values[i]))
-			}
-			t.Rows = append(t.Rows, row)
-		}
-		t.Notes = energyNote(curves, EnergyCaution)
-		return t
+		return pointsTable(v)
 	}
 	t := display.Table{
 		Title: v.Title + " (features; the data is in the JSON output and `export`)",
@@ -182,6 +163,31 @@ func SummaryTable(v Profile) display.Table {
 	}
 	t.Notes = append(head, notes...)
 	t.Notes = append(t.Notes, energyNote(curves, EnergyCaution)...)
+	return t
+}
+
+// pointsTable lists a short sweep's points row by row, a column per curve.
+func pointsTable(v Profile) display.Table {
+	a, x, curves := v.X, v.X.Values, v.Curves
+	t := display.Table{Title: v.Title, Columns: []display.Column{{Name: a.Kind, Unit: a.Unit}}}
+	for _, c := range curves {
+		name := c.Quantity
+		if c.Label != "" {
+			name = c.Label
+		}
+		if len(uniquePulses(curves)) > 1 {
+			name = c.Pulse + " " + name
+		}
+		t.Columns = append(t.Columns, display.Column{Name: name, Unit: c.Unit})
+	}
+	for i := range x {
+		row := []string{Number(x[i])}
+		for _, c := range curves {
+			row = append(row, Cell(c.Values[i]))
+		}
+		t.Rows = append(t.Rows, row)
+	}
+	t.Notes = energyNote(curves, EnergyCaution)
 	return t
 }
 
