@@ -16,7 +16,8 @@ import (
 // imports only the standard library and gonum (its sub-packages may import physics
 // packages); display knows nothing of the language or the protocol; the kernel knows
 // nothing of the language; install stands alone; the notebook format
-// (kernel/nbformat) needs only the standard library. main wires them.
+// (kernel/nbformat) needs only the standard library; presentation (dsl/present)
+// needs only display. main wires them.
 func TestDependencyDirection(t *testing.T) {
 	allowed := map[string][]string{
 		"physics": {"Nutate/physics", "gonum.org/v1/gonum"},
@@ -24,8 +25,12 @@ func TestDependencyDirection(t *testing.T) {
 		// document defaults (fixed dates, sorted catalogs) for reproducible PDFs.
 		"display": {"gonum.org/v1/plot", "gonum.org/v1/gonum", "golang.org/x/image", "codeberg.org/go-pdf/fpdf"},
 		"dsl":     {"Nutate/physics", "Nutate/display", "Nutate/dsl", "gonum.org/v1/gonum"},
-		"kernel":  {"Nutate/kernel", "github.com/go-zeromq/zmq4", "github.com/google/uuid"},
-		"install": {"Nutate/install"},
+		// Presentation: results → tables and figure bundles, from plain values;
+		// the language (dsl) imports it, never the other way, and it knows no
+		// physics.
+		"dsl/present": {"Nutate/display"},
+		"kernel":      {"Nutate/kernel", "github.com/go-zeromq/zmq4", "github.com/google/uuid"},
+		"install":     {"Nutate/install"},
 		// The notebook format: read, check, write and compare nbformat 4, for
 		// `nutate run` in main; it knows no language, kernel or display.
 		"kernel/nbformat": nil,
@@ -67,31 +72,36 @@ func TestDependencyDirection(t *testing.T) {
 	}
 }
 
-// TestPresentTakesPlainValues holds the sweep's presentation (dsl/present.go)
-// to the direction results → tables and figures: it takes plain result values
-// and imports only the standard library and display; it names none of the
-// study layer's types (the evaluator, the session state, pulses, axes, runs,
-// settings), nor physics.
+// TestPresentTakesPlainValues holds the presentation package (dsl/present) to
+// the direction results → tables and figures: it takes plain result values and
+// imports only the standard library and display (TestDependencyDirection); no
+// file of it names the study layer's types (the evaluator, the session state,
+// pulses, axes, runs, settings), nor physics.
 func TestPresentTakesPlainValues(t *testing.T) {
-	const file = "dsl/present.go"
-	f, err := parser.ParseFile(token.NewFileSet(), file, nil, 0)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, imp := range f.Imports {
-		p := strings.Trim(imp.Path.Value, `"`)
-		if hasAnyPrefix(p, []string{"Nutate"}) && p != "Nutate/display" {
-			t.Errorf("%s imports %s: presentation may import only the standard library and Nutate/display", file, p)
-		}
+	files, err := filepath.Glob("dsl/present/*.go")
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no files in dsl/present (%v)", err)
 	}
 	study := map[string]bool{"evaluator": true, "state": true, "Session": true, "pulseDef": true, "sweepAxis": true,
-		"curveData": true, "sweepRun": true, "settings": true, "physics": true, "shape": true}
-	ast.Inspect(f, func(n ast.Node) bool {
-		if id, ok := n.(*ast.Ident); ok && study[id.Name] {
-			t.Errorf("%s names %s: presentation takes plain result values, not the study layer's", file, id.Name)
+		"curveData": true, "sweepRun": true, "settings": true, "physics": true, "shape": true, "dsl": true}
+	for _, file := range files {
+		f, err := parser.ParseFile(token.NewFileSet(), file, nil, 0)
+		if err != nil {
+			t.Fatal(err)
 		}
-		return true
-	})
+		for _, imp := range f.Imports {
+			p := strings.Trim(imp.Path.Value, `"`)
+			if hasAnyPrefix(p, []string{"Nutate"}) && p != "Nutate/display" {
+				t.Errorf("%s imports %s: presentation may import only the standard library and Nutate/display", file, p)
+			}
+		}
+		ast.Inspect(f, func(n ast.Node) bool {
+			if id, ok := n.(*ast.Ident); ok && study[id.Name] {
+				t.Errorf("%s names %s: presentation takes plain result values, not the study layer's", file, id.Name)
+			}
+			return true
+		})
+	}
 }
 
 func hasAnyPrefix(p string, prefixes []string) bool {

@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 
+	"Nutate/dsl/present"
 	"Nutate/physics"
 	"Nutate/physics/shape"
 )
@@ -145,13 +146,13 @@ func thresholdReason(p *shape.Pulse, pr shape.Properties) string {
 		var got string
 		switch p.Role {
 		case shape.RoleInvert, shape.RoleSaturate:
-			got = "Mz = " + formatNumber(roundSig(n.Mz, 3))
+			got = "Mz = " + present.Number(present.RoundSig(n.Mz, 3))
 		case shape.RoleExcite:
-			got = "|Mxy| = " + formatNumber(roundSig(math.Hypot(n.Mx, n.My), 3))
+			got = "|Mxy| = " + present.Number(present.RoundSig(math.Hypot(n.Mx, n.My), 3))
 		case shape.RoleRefocus:
-			got = "|β|² = " + formatNumber(roundSig(n.Beta2, 3))
+			got = "|β|² = " + present.Number(present.RoundSig(n.Beta2, 3))
 		default:
-			got = fmt.Sprintf("M = (%s, %s, %s)", formatNumber(roundSig(n.Mx, 3)), formatNumber(roundSig(n.My, 3)), formatNumber(roundSig(n.Mz, 3)))
+			got = fmt.Sprintf("M = (%s, %s, %s)", present.Number(present.RoundSig(n.Mx, 3)), present.Number(present.RoundSig(n.My, 3)), present.Number(present.RoundSig(n.Mz, 3)))
 		}
 		s += fmt.Sprintf("; closest at %s, where the offset %s from the carrier reaches %s", fmtField(n.B1, gb), Quantity{n.Offset, dimFrequency}.String(), got)
 	}
@@ -240,18 +241,18 @@ func sweepSamplingWarning(p *shape.Pulse) string {
 	x := math.Pi * cycles
 	switch {
 	case cycles >= 0.5:
-		why = append(why, fmt.Sprintf("the sweep reaches %s cycles per sample (%s samples per cycle of its largest frequency), where the sampled sweep aliases and plays elsewhere", formatNumber(roundSig(cycles, 3)), formatNumber(roundSig(1/cycles, 3))))
+		why = append(why, fmt.Sprintf("the sweep reaches %s cycles per sample (%s samples per cycle of its largest frequency), where the sampled sweep aliases and plays elsewhere", present.Number(present.RoundSig(cycles, 3)), present.Number(present.RoundSig(1/cycles, 3))))
 	case x > 0 && 1-math.Sin(x)/x >= 0.01:
-		why = append(why, fmt.Sprintf("the sweep's largest frequency has %s samples per cycle, which weakens the field there by about %s %%", formatNumber(roundSig(1/cycles, 3)), formatNumber(roundSig(100*(1-math.Sin(x)/x), 2))))
+		why = append(why, fmt.Sprintf("the sweep's largest frequency has %s samples per cycle, which weakens the field there by about %s %%", present.Number(present.RoundSig(1/cycles, 3)), present.Number(present.RoundSig(100*(1-math.Sin(x)/x), 2))))
 	}
 	if nut > 1.0/8 {
-		why = append(why, fmt.Sprintf("the field nutates by up to %s deg per sample, too coarse to follow the turning effective field", formatNumber(roundSig(nut*360, 3))))
+		why = append(why, fmt.Sprintf("the field nutates by up to %s deg per sample, too coarse to follow the turning effective field", present.Number(present.RoundSig(nut*360, 3))))
 	}
 	if len(why) == 0 {
 		return ""
 	}
 	need := math.Ceil(float64(p.Wave.Len()) * math.Max(cycles/0.05, nut*8)) // 20 samples per cycle, 45° per sample
-	return fmt.Sprintf("%s samples are too few for this frequency sweep: %s; the profile is distorted (about %s samples or more keep it faithful)", formatNumber(float64(p.Wave.Len())), strings.Join(why, "; "), formatNumber(need))
+	return fmt.Sprintf("%s samples are too few for this frequency sweep: %s; the profile is distorted (about %s samples or more keep it faithful)", present.Number(float64(p.Wave.Len())), strings.Join(why, "; "), present.Number(need))
 }
 
 func cmplxAbs(z complex128) float64 { return math.Hypot(real(z), imag(z)) }

@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics"
 	"Nutate/physics/shape"
 )
@@ -107,7 +108,7 @@ func formatMemory(n int64) string {
 		x /= 1024
 		u++
 	}
-	return formatNumber(roundSig(x, 3)) + " " + units[u]
+	return present.Number(present.RoundSig(x, 3)) + " " + units[u]
 }
 
 // memoryUse counts the bytes a state holds, each shared array once.

@@ -2,11 +2,11 @@ package dsl
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"strings"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics/shape"
 )
 
@@ -83,18 +83,11 @@ func gammaBarOf(p *shape.Pulse) float64 { return math.Abs(p.Gamma) / (2 * math.P
 // a gradient G is the offset γ̄·B0·δ or γ̄·G·x (see convert).
 func signedGammaBar(p *shape.Pulse) float64 { return p.Gamma / (2 * math.Pi) }
 
-func fmtField(b, gammaBar float64) string {
-	return fmt.Sprintf("%s (%s)", Quantity{b, dimField}.format("uT"), Quantity{b * gammaBar, dimFrequency}.format("Hz"))
-}
+func fmtField(b, gammaBar float64) string { return fieldValue(b, gammaBar).String() }
 
-// energyUnit shows ∫B1² dt in µT²·ms.
-func fmtEnergy(e float64) string { return formatNumber(e*1e12*1e3) + " µT²·ms" }
-
-func fmtOpt(v float64, f func(float64) string) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
-		return "—"
-	}
-	return f(v)
+// fieldValue is a B1 in µT with its nutation frequency γ̄B1 in Hz.
+func fieldValue(b, gammaBar float64) present.FieldValue {
+	return present.FieldValue{B1: Quantity{b, dimField}.shown("uT"), Hz: Quantity{b * gammaBar, dimFrequency}.shown("Hz")}
 }
 
 // describe runs `describe NAME, ... [with tr = ...]`: a waveform plot and a table
@@ -125,13 +118,13 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 			return err
 		}
 		t := propertiesTable(d, pr, set.tr, ev.st.field)
-		t.Notes = []string{ev.st.definition(rippleNote, rippleBrief), energyCaution}
+		t.Notes = []string{ev.st.definition(present.RippleNote, present.RippleBrief), present.EnergyCaution}
 		if w, err := ev.thresholdWarning(d, pr); err != nil {
 			return err
 		} else if w != "" {
 			t.Notes = append([]string{"warning: " + w}, t.Notes...)
 		}
-		f, err := ev.buildBundle(func() figureOut { return waveformBundle(waveformOf(d), t) })
+		f, err := ev.buildBundle(func() present.Figure { return present.WaveformBundle(waveformOf(d), t) })
 		if err != nil {
 			return err
 		}
@@ -145,9 +138,9 @@ func (ev *evaluator) describe(s *DescribeStmt) error {
 // the evaluator returns ctx.Err() at once and the abandoned build, which touches
 // no session state, finishes in the background and is dropped. A panic in f is
 // raised again on the evaluator's goroutine, where the session recovers it.
-func (ev *evaluator) buildBundle(f func() figureOut) (figureOut, error) {
+func (ev *evaluator) buildBundle(f func() present.Figure) (present.Figure, error) {
 	type result struct {
-		b     figureOut
+		b     present.Figure
 		panic any
 	}
 	ch := make(chan result, 1)
@@ -166,7 +159,7 @@ func (ev *evaluator) buildBundle(f func() figureOut) (figureOut, error) {
 		}
 		return r.b, nil
 	case <-ev.ctx.Done():
-		return figureOut{}, ev.ctx.Err()
+		return present.Figure{}, ev.ctx.Err()
 	}
 }
 
@@ -181,17 +174,6 @@ func (ev *evaluator) thresholdWarning(d *pulseDef, pr shape.Properties) (string,
 		}
 	}
 	return thresholdWarning(d.Pulse, pr, met), nil
-}
-
-// centreText is a pulse's centre in Hz, and in ppm too once the field is set
-// (Δf = γ̄·B0·δ with the sign of γ, README conventions).
-func centreText(p *shape.Pulse, field float64) string {
-	s := Quantity{p.Center, dimFrequency}.String()
-	if f := field; f > 0 {
-		ppm := p.Center / (signedGammaBar(p) * f) * 1e6
-		s += " (" + formatNumber(roundSig(ppm, 6)) + " ppm)"
-	}
-	return s
 }
 
 // waveformOf gives the display's view of a pulse's samples.
@@ -220,90 +202,80 @@ func waveformOf(d *pulseDef) display.Waveform {
 
 // propertiesTable is the table `describe` shows under the waveform.
 func propertiesTable(d *pulseDef, pr shape.Properties, tr, field float64) display.Table {
-	p := d.Pulse
-	gb := gammaBarOf(p)
-	rows := [][]string{
-		{"shape", d.Kind},
-		{"nucleus", d.Nucleus.Name},
-		{"duration", Quantity{p.Duration(), dimTime}.String()},
-		{"samples", samplesText(p)},
-		{"peak B1", fmtField(p.Peak(), gb)},
-	}
-	if imported(p) {
-		// The file's samples carry no design flip; γ|∫B1 dt| is only the
-		// area where the file says the pulse plays (the rotation is the
-		// simulated one below).
-		if p.Center != 0 {
-			from := "centre (the file's frequency offset)"
-			if p.Freq != nil {
-				from = "centre (middle of the file's frequency sweep)"
-			}
-			rows = append(rows, []string{from, centreText(p, field)})
-		}
-		rows = append(rows, []string{importedArea(p) + " (γ|∫B1 dt|)", Quantity{p.Flip, dimAngle}.format("deg")})
-	} else {
-		if p.Center != 0 {
-			rows = append(rows, []string{"centre (carrier offset of the band)", centreText(p, field)})
-		}
-		if !math.IsNaN(p.Flip) {
-			rows = append(rows, []string{"flip (nominal)", Quantity{p.Flip, dimAngle}.format("deg")})
-		}
-	}
-	rows = append(rows, []string{"rotation at centre (measured)", fmtOpt(pr.Rotation, func(v float64) string { return Quantity{v, dimAngle}.format("deg") })})
-	if p.Role != shape.RoleNone {
-		rows = append(rows, []string{"role", p.Role.String()})
-	}
-	if p.Bandwidth == 0 && p.Sweep > 0 {
-		// A sweep that is not a design band (BIR-4's, a file's).
-		rows = append(rows, []string{"frequency sweep", Quantity{p.Sweep, dimFrequency}.String()})
-	}
-	if p.Bandwidth != 0 {
-		rows = append(rows, []string{"bandwidth (design)", Quantity{p.Bandwidth, dimFrequency}.String()})
-	}
-	rows = append(rows,
-		[]string{"bandwidth (measured FWHM, " + halfLevelText(p, pr) + ")", fwhmText(p, pr)},
-	)
-	if p.TBW != 0 {
-		rows = append(rows, []string{"TBW (design)", formatNumber(p.TBW)})
-	}
-	if !math.IsNaN(pr.Bandwidth) {
-		rows = append(rows, []string{"TBW (measured, FWHM × duration)", formatNumber(roundSig(pr.Bandwidth*p.Duration(), 6))})
-	}
-	rows = append(rows,
-		[]string{"transition (measured, 90 %–10 %)", fmtOpt(pr.Transition, func(v float64) string { return Quantity{v, dimFrequency}.String() })},
-		[]string{"ripple in " + roleQuantity(p.Role) + " (measured, pass / stop)", fmtOpt(pr.PassRipple, pct) + " / " + fmtOpt(pr.StopRipple, pct) + " of M0"},
-	)
-	if p.Adiabatic {
-		rows = append(rows, []string{thresholdLabel(p), thresholdText(p, pr)})
-		if !math.IsNaN(pr.Threshold) {
-			rows = append(rows, []string{"upper B1 limit (measured)", upperLimitText(p, pr)})
-		}
-	}
-	rows = append(rows, []string{"energy ∫B1² dt (relative)", fmtEnergy(p.Energy())})
-	if tr > 0 {
-		rows = append(rows, []string{"B1rms at TR " + Quantity{tr, dimTime}.String() + " (relative)", fmtOpt(pr.B1rms, func(v float64) string { return Quantity{v, dimField}.format("uT") })})
-	}
-	if p.Gradient != 0 {
-		rows = append(rows, []string{"gradient", Quantity{p.Gradient, dimGradient}.format("mT/m")})
-		if p.Bandwidth != 0 {
-			rows = append(rows, []string{"slice thickness (design)", Quantity{shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength}.format("mm")})
-		}
-		rows = append(rows, []string{"slice thickness (measured, FWHM)", fmtOpt(pr.Thickness, func(v float64) string { return Quantity{v, dimLength}.format("mm") })})
-		if field > 0 {
-			rows = append(rows, []string{"chemical-shift displacement", fmtOpt(pr.ShiftPerPPM, func(v float64) string { return Quantity{v, dimLength}.format("mm") + " per ppm" })})
-		}
-	}
-	if d.Source != "" {
-		rows = append(rows, []string{"imported from", d.Source})
-	}
 	return display.Table{
 		Title:   "pulse " + d.Name,
 		Columns: []display.Column{{Name: "property"}, {Name: "value"}},
-		Rows:    rows,
+		Rows:    present.PropertiesTable(pulseProperties(d, pr, tr, field)),
 	}
 }
 
-func pct(v float64) string { return formatNumber(100*v) + " %" }
+// pulseProperties gives what describe measured on d, with its design figures,
+// as the plain values present.PropertiesTable shows.
+func pulseProperties(d *pulseDef, pr shape.Properties, tr, field float64) present.PulseProperties {
+	p := d.Pulse
+	gb := gammaBarOf(p)
+	q := func(v float64, dim Dim, unit string) present.Value { return Quantity{v, dim}.shown(unit) }
+	ptr := func(v present.Value) *present.Value { return &v }
+	v := present.PulseProperties{
+		Name: d.Name, Shape: d.Kind, Nucleus: d.Nucleus.Name,
+		Duration: q(p.Duration(), dimTime, ""),
+		Samples:  p.Wave.Len(),
+		Peak:     fieldValue(p.Peak(), gb),
+		Imported: imported(p), FreqSweep: p.Freq != nil, Area: importedArea(p),
+		CentrePPM:    math.NaN(),
+		Flip:         q(p.Flip, dimAngle, "deg"),
+		Rotation:     q(pr.Rotation, dimAngle, "deg"),
+		RoleQuantity: roleQuantity(p.Role),
+		FWHM:         q(pr.Bandwidth, dimFrequency, ""),
+		PassValue:    pr.PassValue, OnBand: pr.OnBand, PassDesign: pr.PassDesign,
+		TBW:         p.TBW,
+		TBWMeasured: pr.Bandwidth * p.Duration(),
+		Transition:  q(pr.Transition, dimFrequency, ""),
+		PassRipple:  pr.PassRipple, StopRipple: pr.StopRipple,
+		Energy:    p.Energy(),
+		B1rms:     q(pr.B1rms, dimField, "uT"),
+		SliceFWHM: q(pr.Thickness, dimLength, "mm"),
+		Source:    d.Source,
+	}
+	if uniform(p.Wave.Dwell) {
+		v.Dwell = ptr(q(p.Wave.Dwell[0], dimTime, ""))
+	}
+	if p.Center != 0 {
+		v.Centre = ptr(q(p.Center, dimFrequency, ""))
+		if field > 0 {
+			v.CentrePPM = p.Center / (signedGammaBar(p) * field) * 1e6
+		}
+	}
+	if p.Role != shape.RoleNone {
+		v.Role = p.Role.String()
+	}
+	if p.Bandwidth == 0 && p.Sweep > 0 {
+		// A sweep that is not a design band (BIR-4's, a file's).
+		v.Sweep = ptr(q(p.Sweep, dimFrequency, ""))
+	}
+	if p.Bandwidth != 0 {
+		v.Bandwidth = ptr(q(p.Bandwidth, dimFrequency, ""))
+	}
+	if p.Adiabatic {
+		v.Threshold = &present.Threshold{Label: thresholdLabel(p), Text: thresholdText(p, pr)}
+		if !math.IsNaN(pr.Threshold) {
+			v.Threshold.Upper = upperLimitText(p, pr)
+		}
+	}
+	if tr > 0 {
+		v.TR = ptr(q(tr, dimTime, ""))
+	}
+	if p.Gradient != 0 {
+		v.Gradient = ptr(q(p.Gradient, dimGradient, "mT/m"))
+		if p.Bandwidth != 0 {
+			v.SliceDesign = ptr(q(shape.SliceThickness(p.Bandwidth, p.Gamma, p.Gradient), dimLength, "mm"))
+		}
+		if field > 0 {
+			v.ShiftPerPPM = ptr(q(pr.ShiftPerPPM, dimLength, "mm"))
+		}
+	}
+	return v
+}
 
 // roleQuantity names the quantity a role's profile is measured in.
 func roleQuantity(r shape.Role) string {
@@ -314,35 +286,6 @@ func roleQuantity(r shape.Role) string {
 		return "echo |β|²"
 	}
 	return "|Mxy|"
-}
-
-// halfLevelText says where the FWHM is taken: "Mz = 0".
-func halfLevelText(p *shape.Pulse, pr shape.Properties) string {
-	if math.IsNaN(pr.PassValue) {
-		return "at half the centre value"
-	}
-	h := pr.PassValue / 2
-	switch p.Role {
-	case shape.RoleInvert:
-		return "Mz = " + formatNumber(roundSig(1-2*h, 4))
-	case shape.RoleSaturate:
-		return "Mz = " + formatNumber(roundSig(1-h, 4))
-	}
-	if !pr.PassDesign {
-		return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4)) + ", half the centre value"
-	}
-	return roleQuantity(p.Role) + " = " + formatNumber(roundSig(h, 4))
-}
-
-// fwhmText is the measured FWHM, or why there is none.
-func fwhmText(p *shape.Pulse, pr shape.Properties) string {
-	if !math.IsNaN(pr.Bandwidth) {
-		return Quantity{pr.Bandwidth, dimFrequency}.String()
-	}
-	if pr.PassDesign && pr.OnBand < pr.PassValue/2 {
-		return "— (the centre does not reach the half level)"
-	}
-	return "—"
 }
 
 // importedArea names where an imported pulse's area γ|∫B1 dt| is taken: at the
@@ -360,12 +303,3 @@ func importedArea(p *shape.Pulse) string {
 
 // imported reports whether p was read from a file (shape.FromSamples).
 func imported(p *shape.Pulse) bool { return p.Shape == "import" }
-
-// samplesText gives the sample count and the dwell; with a dwell that varies (a
-// train, an imported table) each sample is a segment of its own length.
-func samplesText(p *shape.Pulse) string {
-	if !uniform(p.Wave.Dwell) {
-		return fmt.Sprintf("%d segments (variable dwell)", p.Wave.Len())
-	}
-	return fmt.Sprintf("%d (dwell %s)", p.Wave.Len(), Quantity{p.Wave.Dwell[0], dimTime})
-}

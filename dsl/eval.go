@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics"
 )
 
@@ -93,7 +94,7 @@ func (ev *evaluator) exec(s Stmt) error {
 			return errAt(s.NameP, "unknown nucleus %s, want one of %s%s", quoteText(s.Name), physics.NucleusNames(), suggest(s.Name, strings.Fields(physics.NucleusNames())))
 		}
 		ev.st.nucleus = n
-		ev.emit(textBundle(fmt.Sprintf("nucleus %s: γ/2π = %s MHz/T (%s)", n.Name, formatNumber(n.GammaBar/1e6), n.Reference)))
+		ev.emit(textBundle(fmt.Sprintf("nucleus %s: γ/2π = %s MHz/T (%s)", n.Name, present.Number(n.GammaBar/1e6), n.Reference)))
 	case *FieldStmt:
 		v, err := ev.evalExpr(s.X)
 		if err != nil {

@@ -4,16 +4,9 @@ import (
 	"math"
 	"strings"
 
+	"Nutate/dsl/present"
 	"Nutate/physics/shape"
 )
-
-// features summarize a long curve for the table under a plot.
-type features struct {
-	min, minAt, max, maxAt float64
-	width                  float64 // distance between the half-level crossings around the main extreme
-	crossings              string  // every half-level crossing, up to 6
-	passRipple, stopRipple float64
-}
 
 // curveLevels gives the physical levels a magnetization curve's features are
 // measured between (help quantities): base, the value far outside the band (for
@@ -81,8 +74,8 @@ func curveLevels(q, axis string, start [3]float64, p *shape.Pulse) (base, target
 // quantity's own units. Crossings are interpolated linearly between points. With
 // base NaN only the extremes are given; when the curve does not pass the half
 // level and come back on both sides inside the window the width is NaN.
-func curveFeatures(x, y []float64, base, target float64) features {
-	f := features{min: math.NaN(), max: math.NaN(), width: math.NaN(), passRipple: math.NaN(), stopRipple: math.NaN(), crossings: "—"}
+func curveFeatures(x, y []float64, base, target float64) present.Features {
+	f := present.Features{Min: math.NaN(), Max: math.NaN(), Width: math.NaN(), PassRipple: math.NaN(), StopRipple: math.NaN(), Crossings: "—"}
 	n := len(y)
 	if n == 0 {
 		return f
@@ -96,8 +89,8 @@ func curveFeatures(x, y []float64, base, target float64) features {
 			imax = i
 		}
 	}
-	f.min, f.minAt, f.max, f.maxAt = y[imin], x[imin], y[imax], x[imax]
-	if math.IsNaN(base) || n < 3 || f.max-f.min < 1e-9 {
+	f.Min, f.MinAt, f.Max, f.MaxAt = y[imin], x[imin], y[imax], x[imax]
+	if math.IsNaN(base) || n < 3 || f.Max-f.Min < 1e-9 {
 		return f
 	}
 	ext := imax
@@ -128,14 +121,14 @@ func curveFeatures(x, y []float64, base, target float64) features {
 	for i := 0; i+1 < n; i++ {
 		if (y[i]-half)*(y[i+1]-half) < 0 || (y[i] == half && i > 0) {
 			if len(all) < 6 {
-				all = append(all, formatNumber(roundSig(cross(i, half), 5)))
+				all = append(all, present.Number(present.RoundSig(cross(i, half), 5)))
 			} else if len(all) == 6 {
 				all = append(all, "…")
 			}
 		}
 	}
 	if len(all) > 0 {
-		f.crossings = strings.Join(all, ", ")
+		f.Crossings = strings.Join(all, ", ")
 	}
 	// edges walks outward from ext while the curve is on the pass side of
 	// level lv, and gives the crossings on both sides (ok false at the window's
@@ -161,7 +154,7 @@ func curveFeatures(x, y []float64, base, target float64) features {
 	if !ok {
 		return f
 	}
-	f.width = math.Abs(xh - xl)
+	f.Width = math.Abs(xh - xl)
 	l90, h90, ok90 := edges(at(0.9))
 	l10, h10, ok10 := edges(at(0.1))
 	if !ok90 || !ok10 {
@@ -172,27 +165,27 @@ func curveFeatures(x, y []float64, base, target float64) features {
 	pass, stop := math.NaN(), math.NaN()
 	for i, v := range y {
 		d := math.Abs(x[i] - c)
-		if d <= f.width/2-tr {
+		if d <= f.Width/2-tr {
 			pass = maxNaN(pass, math.Abs(v-level))
 		}
-		if d >= f.width/2+tr {
+		if d >= f.Width/2+tr {
 			stop = maxNaN(stop, math.Abs(v-base))
 		}
 	}
 	// The regions' ends, interpolated: a region may begin on a steep slope.
-	for _, e := range []float64{c - f.width/2 - tr, c + f.width/2 + tr} {
+	for _, e := range []float64{c - f.Width/2 - tr, c + f.Width/2 + tr} {
 		if v, ok := interpAt(x, y, e); ok {
 			stop = maxNaN(stop, math.Abs(v-base))
 		}
 	}
-	if f.width/2-tr >= 0 {
-		for _, e := range []float64{c - f.width/2 + tr, c + f.width/2 - tr} {
+	if f.Width/2-tr >= 0 {
+		for _, e := range []float64{c - f.Width/2 + tr, c + f.Width/2 - tr} {
 			if v, ok := interpAt(x, y, e); ok {
 				pass = maxNaN(pass, math.Abs(v-level))
 			}
 		}
 	}
-	f.passRipple, f.stopRipple = pass, stop
+	f.PassRipple, f.StopRipple = pass, stop
 	return f
 }
 

@@ -30,20 +30,20 @@ func TestCurveFeatures(t *testing.T) {
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			f := curveFeatures(x, c.y, c.base, c.target)
-			if math.Abs(f.width-fwhm) > 1e-4 {
-				t.Errorf("width %.6f, want %.6f", f.width, fwhm)
+			if math.Abs(f.Width-fwhm) > 1e-4 {
+				t.Errorf("width %.6f, want %.6f", f.Width, fwhm)
 			}
-			if math.Abs(f.min-c.min) > 1e-12 || math.Abs(f.max-c.max) > 1e-12 {
-				t.Errorf("min %g max %g, want %g %g", f.min, f.max, c.min, c.max)
+			if math.Abs(f.Min-c.min) > 1e-12 || math.Abs(f.Max-c.max) > 1e-12 {
+				t.Errorf("min %g max %g, want %g %g", f.Min, f.Max, c.min, c.max)
 			}
-			if f.crossings != "-1.1774, 1.1774" {
-				t.Errorf("crossings %q, want -1.1774, 1.1774", f.crossings)
+			if f.Crossings != "-1.1774, 1.1774" {
+				t.Errorf("crossings %q, want -1.1774, 1.1774", f.Crossings)
 			}
 			// A Gaussian's 90 %–10 % transition, √(2 ln 10) − √(2 ln(1/0.9)) =
 			// 1.687, is wider than its half width 1.177: the pass region (the
 			// band's edges moved inward by one transition) is empty.
-			if !math.IsNaN(f.passRipple) {
-				t.Errorf("pass ripple %g, want none (no pass region)", f.passRipple)
+			if !math.IsNaN(f.PassRipple) {
+				t.Errorf("pass ripple %g, want none (no pass region)", f.PassRipple)
 			}
 		})
 	}
@@ -65,11 +65,11 @@ func TestCurveFeatures(t *testing.T) {
 			}
 		}
 		f := curveFeatures(x, y, 0, 1)
-		if math.Abs(f.width-4.5) > 1e-9 {
-			t.Errorf("width %g, want 4.5", f.width)
+		if math.Abs(f.Width-4.5) > 1e-9 {
+			t.Errorf("width %g, want 4.5", f.Width)
 		}
-		if math.Abs(f.passRipple-0.01) > 1e-6 || math.Abs(f.stopRipple-0.005) > 1e-6 {
-			t.Errorf("ripples %g / %g, want 0.01 / 0.005", f.passRipple, f.stopRipple)
+		if math.Abs(f.PassRipple-0.01) > 1e-6 || math.Abs(f.StopRipple-0.005) > 1e-6 {
+			t.Errorf("ripples %g / %g, want 0.01 / 0.005", f.PassRipple, f.StopRipple)
 		}
 	})
 	t.Run("overshoot", func(t *testing.T) {
@@ -82,8 +82,8 @@ func TestCurveFeatures(t *testing.T) {
 			y[i] = 1 - 1.3*math.Exp(-v*v/2)
 		}
 		f := curveFeatures(x, y, 1, 0)
-		if want := 2 * math.Sqrt(2*math.Log(2.6)); math.Abs(f.width-want) > 1e-4 {
-			t.Errorf("width %.6f, want %.6f", f.width, want)
+		if want := 2 * math.Sqrt(2*math.Log(2.6)); math.Abs(f.Width-want) > 1e-4 {
+			t.Errorf("width %.6f, want %.6f", f.Width, want)
 		}
 	})
 	t.Run("never reaches half", func(t *testing.T) {
@@ -94,28 +94,28 @@ func TestCurveFeatures(t *testing.T) {
 			y[i] = -0.915 - 0.085*math.Exp(-v*v/2)
 		}
 		f := curveFeatures(x, y, 1, math.NaN())
-		if !math.IsNaN(f.width) || f.crossings != "—" {
-			t.Errorf("width %g, crossings %q; want none", f.width, f.crossings)
+		if !math.IsNaN(f.Width) || f.Crossings != "—" {
+			t.Errorf("width %g, crossings %q; want none", f.Width, f.Crossings)
 		}
 	})
 	t.Run("one edge in the window", func(t *testing.T) {
 		// Half a band: the curve passes the half level once; the width is not
 		// known inside the window.
 		f := curveFeatures(x[500:], peak[500:], 0, math.NaN())
-		if !math.IsNaN(f.width) || f.crossings != "1.1774" {
-			t.Errorf("width %g, crossings %q; want none and 1.1774", f.width, f.crossings)
+		if !math.IsNaN(f.Width) || f.Crossings != "1.1774" {
+			t.Errorf("width %g, crossings %q; want none and 1.1774", f.Width, f.Crossings)
 		}
 	})
 	t.Run("no baseline", func(t *testing.T) {
 		f := curveFeatures(x, peak, math.NaN(), math.NaN())
-		if !math.IsNaN(f.width) || f.crossings != "—" || f.max != 1 {
-			t.Errorf("width %g, crossings %q, max %g; want none, none, 1", f.width, f.crossings, f.max)
+		if !math.IsNaN(f.Width) || f.Crossings != "—" || f.Max != 1 {
+			t.Errorf("width %g, crossings %q, max %g; want none, none, 1", f.Width, f.Crossings, f.Max)
 		}
 	})
 	// A flat curve has no width.
 	f := curveFeatures(x, make([]float64, len(x)), 0, math.NaN())
-	if !math.IsNaN(f.width) {
-		t.Errorf("flat curve width %g, want none", f.width)
+	if !math.IsNaN(f.Width) {
+		t.Errorf("flat curve width %g, want none", f.Width)
 	}
 }
 

@@ -8,6 +8,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"Nutate/dsl/present"
 )
 
 // FuzzExec runs arbitrary cells through scanner, parser and evaluator: no panic
@@ -81,7 +83,7 @@ func FuzzExec(f *testing.F) {
 func stateText(s *Session) string {
 	var b strings.Builder
 	b.WriteString(s.st.nucleus.Name)
-	b.WriteString(formatNumber(s.st.field))
+	b.WriteString(present.Number(s.st.field))
 	for _, n := range s.st.nameList() {
 		bd := s.st.names[n]
 		if bd.pulse != nil {

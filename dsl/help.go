@@ -5,6 +5,7 @@ import (
 	"sort"
 	"strings"
 
+	"Nutate/dsl/present"
 	"Nutate/physics"
 )
 
@@ -196,7 +197,7 @@ func Help(topic string) (string, error) {
 		var b strings.Builder
 		b.WriteString("Nuclei (γ/2π)\n")
 		for _, n := range physics.Nuclei() {
-			fmt.Fprintf(&b, "  %-6s %12s MHz/T  %s\n", n.Name, formatNumber(n.GammaBar/1e6), n.Reference)
+			fmt.Fprintf(&b, "  %-6s %12s MHz/T  %s\n", n.Name, present.Number(n.GammaBar/1e6), n.Reference)
 		}
 		return strings.TrimRight(b.String(), "\n"), nil
 	case "conventions":
@@ -293,7 +294,7 @@ func wordHelp(w string) (string, bool) {
 				u = "plain number"
 			}
 		}
-		parts = append(parts, fmt.Sprintf("%s (%s for `show`, in %s)\n  %s\n  method: %s", q.Name, kind, unitLabel(u), q.Help, q.Method))
+		parts = append(parts, fmt.Sprintf("%s (%s for `show`, in %s)\n  %s\n  method: %s", q.Name, kind, present.UnitLabel(u), q.Help, q.Method))
 	}
 	for _, s := range settingTable {
 		if s.Name == w {
@@ -306,10 +307,10 @@ func wordHelp(w string) (string, bool) {
 		}
 	}
 	if u, ok := lookupUnit(w); ok {
-		parts = append(parts, fmt.Sprintf("%s (unit of %s)\n  %s = %s %s", u.Name, u.Dim.Name(), u.Name, formatNumber(u.Factor), baseUnit(u.Dim)))
+		parts = append(parts, fmt.Sprintf("%s (unit of %s)\n  %s = %s %s", u.Name, u.Dim.Name(), u.Name, present.Number(u.Factor), baseUnit(u.Dim)))
 	}
 	if n, ok := physics.Lookup(w); ok {
-		parts = append(parts, fmt.Sprintf("%s (nucleus)\n  γ/2π = %s MHz/T (%s)", n.Name, formatNumber(n.GammaBar/1e6), n.Reference))
+		parts = append(parts, fmt.Sprintf("%s (nucleus)\n  γ/2π = %s MHz/T (%s)", n.Name, present.Number(n.GammaBar/1e6), n.Reference))
 	}
 	switch w {
 	case "over", "to", "points", "step", "show", "with":

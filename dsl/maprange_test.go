@@ -6,25 +6,6 @@ import (
 	"testing"
 )
 
-func TestColourRange(t *testing.T) {
-	// Magnetization in M0 units lies within the unit sphere (|M| ≤ M0 without
-	// gain: Bloch equations), |β|² ≤ 1 (|α|² + |β|² = 1), phase in (−180°, 180°].
-	for _, c := range []struct {
-		q      string
-		lo, hi float64
-	}{
-		{"mx", -1, 1}, {"my", -1, 1}, {"mz", -1, 1},
-		{"mxy", 0, 1}, {"echo", 0, 1}, {"phase", -180, 180},
-		{"energy", 0, 0},
-	} {
-		t.Run(c.q, func(t *testing.T) {
-			if lo, hi := colourRange(c.q); lo != c.lo || hi != c.hi {
-				t.Errorf("range %g…%g, want %g…%g", lo, hi, c.lo, c.hi)
-			}
-		})
-	}
-}
-
 func TestLogScale(t *testing.T) {
 	s := NewSession(t.TempDir())
 	if err := s.Exec(context.Background(), "pulse p = rect(duration = 1 ms, flip = 90 deg)", Sink{}); err != nil {

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 )
 
 // describe and report of a long pulse report progress through the session's
@@ -105,10 +106,10 @@ func TestBuildBundleInterrupt(t *testing.T) {
 		<-started
 		cancel()
 	}()
-	_, err := ev.buildBundle(func() figureOut {
+	_, err := ev.buildBundle(func() present.Figure {
 		close(started)
 		<-release // a build that would never end before the interrupt
-		return figureOut{}
+		return present.Figure{}
 	})
 	if !errors.Is(err, context.Canceled) {
 		t.Fatalf("error %v, want context.Canceled", err)
@@ -120,6 +121,6 @@ func TestBuildBundleInterrupt(t *testing.T) {
 			t.Errorf("recovered %v, want the build's panic", r)
 		}
 	}()
-	ev.buildBundle(func() figureOut { panic("bundle fault") })
+	ev.buildBundle(func() present.Figure { panic("bundle fault") })
 	t.Errorf("buildBundle returned after its build panicked")
 }

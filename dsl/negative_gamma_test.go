@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 )
 
 func execText(t *testing.T, s *Session, src string) string {
@@ -55,7 +56,7 @@ func TestNegativeGammaShiftSign(t *testing.T) {
 	if num(byPPM) == "" || num(byPPM) != num(byHz) {
 		t.Errorf("mx at +10 ppm (%q) differs from mx at its offset in Hz (%q)", num(byPPM), num(byHz))
 	}
-	if mx <= 0 || !strings.Contains(byPPM, strings.TrimRight(strings.TrimRight(formatNumber(math.Round(mx*1e4)/1e4), "0"), ".")) {
+	if mx <= 0 || !strings.Contains(byPPM, strings.TrimRight(strings.TrimRight(present.Number(math.Round(mx*1e4)/1e4), "0"), ".")) {
 		t.Errorf("mx at +10 ppm for 15N: got\n%s\nwant Rabi %.4f", byPPM, mx)
 	}
 }

@@ -3,6 +3,8 @@ package dsl
 import (
 	"strings"
 	"testing"
+
+	"Nutate/dsl/present"
 )
 
 // `help quantities` holds every definition note in full (wrapped), since later
@@ -32,8 +34,8 @@ func TestHelpSafety(t *testing.T) {
 			t.Errorf("help safety lacks %q", w)
 		}
 	}
-	if !strings.Contains(energyCaution, "`help safety`") || !strings.Contains(energyCaution, "waveform-only") {
-		t.Errorf("the short caution %q should say waveform-only and point to help safety", energyCaution)
+	if !strings.Contains(present.EnergyCaution, "`help safety`") || !strings.Contains(present.EnergyCaution, "waveform-only") {
+		t.Errorf("the short caution %q should say waveform-only and point to help safety", present.EnergyCaution)
 	}
 }
 
@@ -53,7 +55,7 @@ func TestDefinitionsOncePerSession(t *testing.T) {
 		name, text string
 		full       bool
 	}{{"first", first, true}, {"again", again, false}, {"after reset", afterReset, false}, {"new session", fresh, true}} {
-		for _, n := range []struct{ full, brief string }{{rippleNote, rippleBrief}, {halfLevelNote, halfLevelBrief}} {
+		for _, n := range []struct{ full, brief string }{{present.RippleNote, present.RippleBrief}, {present.HalfLevelNote, present.HalfLevelBrief}} {
 			if got := strings.Count(c.text, n.full); got != map[bool]int{true: 1, false: 0}[c.full] {
 				t.Errorf("%s: full note %.30q %d times, want it %v", c.name, n.full, got, c.full)
 			}
@@ -61,7 +63,7 @@ func TestDefinitionsOncePerSession(t *testing.T) {
 				t.Errorf("%s: pointer %q %d times", c.name, n.brief, got)
 			}
 		}
-		if got := strings.Count(c.text, energyCaution); got != 1 {
+		if got := strings.Count(c.text, present.EnergyCaution); got != 1 {
 			t.Errorf("%s: energy caution %d times, want 1 (one describe table shows energy)", c.name, got)
 		}
 	}

@@ -2,10 +2,9 @@ package dsl
 
 import (
 	"encoding/json"
-	"fmt"
-	"strings"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 )
 
 // The functions here are the thin adapter between the language's outputs and
@@ -15,124 +14,21 @@ import (
 
 func tableBundle(t display.Table) display.Bundle { return t.Bundle() }
 
-// figureOut is a figure's outputs together with the figure, which the session
-// keeps for `export figure`.
-type figureOut struct {
-	fig     display.Figure
-	bundles []display.Bundle
-}
-
 // emitFigure shows a figure's outputs and makes it the session's last figure.
-func (ev *evaluator) emitFigure(f figureOut) {
-	ev.st.figure = f.fig
-	for _, b := range f.bundles {
+func (ev *evaluator) emitFigure(f present.Figure) {
+	ev.st.figure = f.Fig
+	for _, b := range f.Bundles {
 		ev.emit(b)
 	}
 }
 
-func profileBundle(p display.Profile) figureOut {
-	return figureOut{fig: p, bundles: p.Bundles()}
-}
-
-// maxJSONCells bounds the cells of a map kept in its data: a notebook keeps
-// every output, and `export sweep` writes all of them.
-const maxJSONCells = 2500
-
-// mapBundle draws every cell; past maxJSONCells the data keeps every k-th row
-// and column (the first of each k, k the same on both axes), says so in a
-// "decimated" field, and the caption says so too.
-func mapBundle(m display.Map) figureOut {
-	out := figureOut{fig: m, bundles: m.Bundles()}
-	ny := len(m.Z)
-	nx := len(m.X.Values)
-	if ny > 0 {
-		nx = min(nx, len(m.Z[0]))
-	}
-	ny = min(ny, len(m.Y.Values))
-	if nx*ny <= maxJSONCells {
-		return out
-	}
-	k := 1
-	for (nx+k-1)/k*((ny+k-1)/k) > maxJSONCells {
-		k++
-	}
-	d := m
-	d.X.Values = every(m.X.Values[:nx], k)
-	d.Y.Values = every(m.Y.Values[:ny], k)
-	d.Z = nil
-	for i := 0; i < ny; i += k {
-		d.Z = append(d.Z, every(m.Z[i][:nx], k))
-	}
-	note := fmt.Sprintf("the data holds %d × %d of the %d × %d points (every %s row and column); `export sweep` writes them all",
-		len(d.X.Values), len(d.Y.Values), nx, ny, ordinal(k))
-	head, _ := json.Marshal(map[string]any{"points": []int{nx, ny}, "shown": []int{len(d.X.Values), len(d.Y.Values)}, "one_in": k, "note": note})
-	decimate(out.bundles[0], d.JSON(), head, note)
-	return out
-}
-
-// every keeps v[0], v[k], v[2k], ...
-func every(v []float64, k int) []float64 {
-	if v == nil {
-		return nil
-	}
-	out := make([]float64, 0, len(v)/k+1)
-	for i := 0; i < len(v); i += k {
-		out = append(out, v[i])
-	}
-	return out
-}
-
-func ordinal(k int) string {
-	switch k {
-	case 2:
-		return "second"
-	case 3:
-		return "third"
-	}
-	return fmt.Sprintf("%dth", k)
-}
-
-// decimate replaces a figure's data with raw, a decimated copy, preceded by a
-// "decimated" field holding head, and puts note in its caption.
-func decimate(b display.Bundle, raw json.RawMessage, head []byte, note string) {
-	if len(raw) < 2 || raw[0] != '{' {
-		return
-	}
-	b[display.ResultMIME] = json.RawMessage(`{"decimated":` + string(head) + "," + string(raw[1:]))
-	if txt, ok := b["text/plain"].(string); ok {
-		b["text/plain"] = strings.Replace(txt, "; data in "+display.ResultMIME+")", "; "+note+")", 1)
-	}
-}
-
-// maxJSONSamples bounds the waveform series in describe's data: a notebook
-// keeps every output, and the full table is what `export` is for.
-const maxJSONSamples = 2048
-
-// waveformBundle draws every sample; past maxJSONSamples the data keeps one
-// sample in k (the first of each k), says so in a "decimated" field, and the
-// caption says so too.
-func waveformBundle(w display.Waveform, props display.Table) figureOut {
-	out := figureOut{fig: w, bundles: w.Bundles(props)}
-	n := len(w.Time)
-	if n <= maxJSONSamples {
-		return out
-	}
-	k := (n + maxJSONSamples - 1) / maxJSONSamples
-	d := display.Waveform{Title: w.Title}
-	d.Time, d.Amplitude, d.Phase, d.Frequency, d.Gradient = every(w.Time, k), every(w.Amplitude, k), every(w.Phase, k), every(w.Frequency, k), every(w.Gradient, k)
-	note := fmt.Sprintf("the data holds %d of the %d samples (one in %d); `export` writes them all", len(d.Time), n, k)
-	head, _ := json.Marshal(map[string]any{"samples": n, "shown": len(d.Time), "one_in": k, "note": note})
-	decimate(out.bundles[0], d.JSON(props), head, note)
-	return out
-}
-
 // withSettingsJSON adds the sweep's `with` settings, as written, to its data:
 // {"settings": {"offset": "12 ppm", ...}, ...}. The title carries them too.
-func withSettingsJSON(f figureOut, set *settings) figureOut {
-	if len(set.written) == 0 || len(f.bundles) == 0 {
+func withSettingsJSON(f present.Figure, set *settings) present.Figure {
+	if len(set.written) == 0 || len(f.Bundles) == 0 {
 		return f
 	}
-	b := f.bundles[0]
+	b := f.Bundles[0]
 	raw, ok := b[display.ResultMIME].(json.RawMessage)
 	if !ok || len(raw) < 2 || raw[0] != '{' {
 		return f

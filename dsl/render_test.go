@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 )
 
 // TestDescribeJSONDecimated checks that describe's data carries at
@@ -22,7 +23,7 @@ func TestDescribeJSONDecimated(t *testing.T) {
 	} {
 		s := NewSession(t.TempDir())
 		var bundles []display.Bundle
-		src := "pulse p = sinc(duration = 2 ms, flip = 90 deg, samples = " + formatNumber(float64(c.samples)) + ")\ndescribe p"
+		src := "pulse p = sinc(duration = 2 ms, flip = 90 deg, samples = " + present.Number(float64(c.samples)) + ")\ndescribe p"
 		if err := s.Exec(context.Background(), src, Sink{Display: func(b display.Bundle) { bundles = append(bundles, b) }}); err != nil {
 			t.Fatal(err)
 		}
@@ -65,7 +66,7 @@ func TestMapJSONDecimated(t *testing.T) {
 	for _, c := range []struct {
 		nx, ny, oneIn, sx, sy int
 	}{
-		{50, 50, 0, 50, 50},   // 2500 = maxJSONCells: every point
+		{50, 50, 0, 50, 50},   // 2500 = present.MaxJSONCells: every point
 		{101, 51, 2, 51, 26},  // 5151 points; one in 2: 51 × 26 = 1326 ≤ 2500
 		{201, 101, 3, 67, 34}, // one in 2 leaves 101 × 51 = 5151; one in 3: 67 × 34 = 2278
 	} {

@@ -16,10 +16,11 @@
 // eval.go (statements), shapes.go, slrshape.go and train.go (the shape table: one
 // explicit row per shape), quantities.go and settings.go (the `show` and `with`
 // tables), sweep.go, features.go and sweepfile.go (sweeps: check, plan, run,
-// measure; CSV), present.go (a sweep's tables and figures from plain result
-// values), notes.go (definitions once per session, the safety caution),
-// describe.go, report.go, files.go (waveform CSV), render.go (the adapter to
-// package display), help.go and complete.go (help texts, completion, inspection).
+// measure; CSV), notes.go (definitions once per session), describe.go,
+// report.go, files.go (waveform CSV), render.go (a figure's outputs to the
+// session), help.go and complete.go (help texts, completion, inspection). The
+// package dsl/present turns plain result values into tables and figure
+// bundles, with the number formatting and the wording of notes and cautions.
 //
 // Limits: a cell of at most 1 MiB, expressions nested at most 100 deep, sweeps
 // and describe and report within the work budget (budget.go; by default the

@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 
+	"Nutate/dsl/present"
 	"Nutate/physics"
 	"Nutate/physics/shape"
 	"Nutate/physics/slr"
@@ -747,12 +748,12 @@ func rampWarning(ctx context.Context, p *shape.Pulse) (string, error) {
 			return "", nil
 		}
 	}
-	msg := fmt.Sprintf("\nwarning: the centre %s turns the phase by %s per sample (dwell %s), held over each sample: ", Quantity{p.Center, dimFrequency}.String(), formatNumber(roundSig(math.Abs(p.Center)*dwell*360, 3))+" deg", Quantity{dwell, dimTime}.String())
+	msg := fmt.Sprintf("\nwarning: the centre %s turns the phase by %s per sample (dwell %s), held over each sample: ", Quantity{p.Center, dimFrequency}.String(), present.Number(present.RoundSig(math.Abs(p.Center)*dwell*360, 3))+" deg", Quantity{dwell, dimTime}.String())
 	switch {
 	case math.Abs(p.Center)*dwell >= 0.5:
 		msg += "the band aliases and plays elsewhere than the centre"
 	case p.Shape == "slr":
-		msg += fmt.Sprintf("the field is scaled to keep the rotation at the centre, but falls by about %s %% more towards the band's edge", formatNumber(roundSig(100*edgeLoss, 2)))
+		msg += fmt.Sprintf("the field is scaled to keep the rotation at the centre, but falls by about %s %% more towards the band's edge", present.Number(present.RoundSig(100*edgeLoss, 2)))
 	case !math.IsNaN(p.Flip) && !p.Adiabatic && !imported(p):
 		w := p.Wave
 		w.Gradient = nil
@@ -761,13 +762,13 @@ func rampWarning(ctx context.Context, p *shape.Pulse) (string, error) {
 			return "", err
 		}
 		rot := 2 * math.Asin(math.Min(1, cmplx.Abs(r.Beta[0])))
-		msg += fmt.Sprintf("the simulated rotation at the centre is %s deg for a nominal %s deg", formatNumber(roundSig(rot*180/math.Pi, 4)), formatNumber(roundSig(p.Flip*180/math.Pi, 4)))
+		msg += fmt.Sprintf("the simulated rotation at the centre is %s deg for a nominal %s deg", present.Number(present.RoundSig(rot*180/math.Pi, 4)), present.Number(present.RoundSig(p.Flip*180/math.Pi, 4)))
 	default:
-		msg += fmt.Sprintf("the field at the centre is weakened by about %s %%", formatNumber(roundSig(100*(1-math.Sin(x)/x), 2)))
+		msg += fmt.Sprintf("the field at the centre is weakened by about %s %%", present.Number(present.RoundSig(100*(1-math.Sin(x)/x), 2)))
 	}
 	if !imported(p) && p.Shape != "train" {
 		need := math.Ceil(40 * math.Abs(p.Center) * p.Duration() * (1 - 1e-12)) // as shapes choose by default
-		msg += fmt.Sprintf("; %s samples or more (the default) keep it within about 0.1 %%", formatNumber(need))
+		msg += fmt.Sprintf("; %s samples or more (the default) keep it within about 0.1 %%", present.Number(need))
 	}
 	return msg, nil
 }

@@ -8,6 +8,7 @@ import (
 	"sync"
 
 	"Nutate/display"
+	"Nutate/dsl/present"
 	"Nutate/physics"
 	"Nutate/physics/shape"
 )
@@ -86,74 +87,17 @@ func (a *sweepAxis) label() string { return a.kind }
 // evalAxis evaluates `KIND FROM to TO (points N | step S)` against the pulses.
 func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 	a := &sweepAxis{kind: ax.Kind.Name, pos: ax.Kind.P}
-	from, err := ev.evalExpr(ax.From)
+	from, to, err := ev.axisEnds(ax)
 	if err != nil {
 		return nil, err
-	}
-	to, err := ev.evalExpr(ax.To)
-	if err != nil {
-		return nil, err
-	}
-	if from.Q.D == dimNumber && from.Unit == "" && to.Q.D != dimNumber && bareNumber(ax.From) {
-		// `offset -1 to 1 kHz`: a plain number first takes the unit of the
-		// second endpoint, as written.
-		if u, ok := lookupUnit(to.Unit); ok && u.Dim == to.Q.D {
-			from = Value{Q: Quantity{from.Q.V * u.Factor, u.Dim}, Unit: u.Name}
-		}
 	}
 	if contains(spinAxisNames(), a.kind) {
 		a.spin = true
-		var ok bool
-		switch a.kind {
-		case "offset":
-			ok = from.Q.D == dimFrequency || from.Q.D == dimPPM
-			if ok && from.Q.D == dimPPM && ev.st.field == 0 {
-				return nil, errAt(ax.From.Position(), "an offset in ppm needs the main field: set it first with `field 3 T`")
-			}
-		case "b1":
-			ok = from.Q.D == dimNumber || from.Q.D == dimField || from.Q.D == dimFrequency
-		case "position":
-			ok = from.Q.D == dimLength
-		case "t1", "t2":
-			ok = from.Q.D == dimTime
-			if ok && to.Q.D == dimTime {
-				// Both ends are checked: the physics layer reads 0 as "no
-				// relaxation", and times far below a sample make its decay
-				// factors underflow.
-				if err := checkRelaxTime(a.kind+" axis", from, ax.From.Position()); err != nil {
-					return nil, err
-				}
-				if err := checkRelaxTime(a.kind+" axis", to, ax.To.Position()); err != nil {
-					return nil, err
-				}
-			}
-		}
-		if !ok {
-			want := map[string]string{"offset": "a frequency (Hz or ppm)", "b1": "a factor, a percent or a peak B1 (T units or Hz)", "position": "a length", "t1": "a time", "t2": "a time"}[a.kind]
-			return nil, errAt(ax.From.Position(), "%s axis expects %s, got %s", a.kind, want, describeValue(from))
-		}
-	} else {
-		found := false
-		for _, d := range defs {
-			if d.Spec == nil {
-				return nil, errAt(ax.Kind.P, "%s is an imported pulse; only spin axes (%s) apply to it", quoteText(d.Name), strings.Join(spinAxisNames(), ", "))
-			}
-			as, ok := d.Spec.arg(a.kind)
-			if !ok {
-				cands := append(spinAxisNames(), d.Spec.argNames()...)
-				return nil, errAt(ax.Kind.P, "unknown axis %s for %s pulse %s%s (axes: %s, or an argument of the shape)", quoteText(a.kind), d.Kind, d.Name, suggest(a.kind, cands), strings.Join(spinAxisNames(), ", "))
-			}
-			if as.Kind == argWord {
-				return nil, errAt(ax.Kind.P, "%s takes a word (%s) and cannot be swept", a.kind, strings.Join(as.Words, ", "))
-			}
-			a.arg, found = as, true
-		}
-		if !found {
-			return nil, errAt(ax.Kind.P, "unknown axis %s", quoteText(a.kind))
-		}
-		if err := ev.checkArgValue(a.arg, from, ax.From.Position()); err != nil {
+		if err := checkSpinAxis(ev.st.field, a.kind, ax, from, to); err != nil {
 			return nil, err
 		}
+	} else if err := ev.shapeAxisArg(a, ax, defs, from); err != nil {
+		return nil, err
 	}
 	if to.Q.D != from.Q.D {
 		return nil, errAt(ax.To.Position(), "%s axis runs from %s to %s: want the same kind of quantity at both ends", a.kind, describeValue(from), describeValue(to))
@@ -167,45 +111,8 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 	if math.IsInf(span, 0) {
 		return nil, errAt(ax.To.Position(), "%s axis from %s to %s spans more than the largest number; want a narrower axis", a.kind, from, to)
 	}
-	if ax.Points != nil {
-		pv, err := ev.evalExpr(ax.Points)
-		if err != nil {
-			return nil, err
-		}
-		if pv.Q.D != dimNumber || pv.Q.V != math.Trunc(pv.Q.V) || pv.Q.V < 1 {
-			return nil, errAt(ax.Points.Position(), "points expects a whole number of at least 1, got %s", describeValue(pv))
-		}
-		if pv.Q.V > maxAxisPoints {
-			return nil, errAt(ax.Points.Position(), "points %s exceeds the limit of %d per axis", pv, maxAxisPoints)
-		}
-		a.n = int(pv.Q.V)
-		if a.n > 1 {
-			a.step = span / float64(a.n-1)
-		} else if span != 0 {
-			return nil, errAt(ax.Points.Position(), "one point cannot span %s to %s; want points of at least 2", from, to)
-		}
-	} else {
-		sv, err := ev.evalExpr(ax.Step)
-		if err != nil {
-			return nil, err
-		}
-		if sv.Q.D != from.Q.D {
-			return nil, errAt(ax.Step.Position(), "step expects %s like the axis ends, got %s", from.Q.D.Noun(), describeValue(sv))
-		}
-		if sv.Q.V == 0 {
-			return nil, errAt(ax.Step.Position(), "step %s does not lead from %s to %s", sv, from, to)
-		}
-		// The step is taken in the direction from FROM to TO, whatever its
-		// sign: `20 ppm to 0 ppm step 5 ppm` descends.
-		if span != 0 && math.Signbit(sv.Q.V) != math.Signbit(span) {
-			sv.Q.V = -sv.Q.V
-		}
-		k := math.Floor(span/sv.Q.V + 1e-9)
-		if k+1 > maxAxisPoints {
-			return nil, errAt(ax.Step.Position(), "step %s gives %g points, over the limit of %d per axis", sv, k+1, maxAxisPoints)
-		}
-		a.n = int(k) + 1
-		a.step = sv.Q.V
+	if err := ev.axisPoints(a, ax, from, to, span); err != nil {
+		return nil, err
 	}
 	a.from = from
 	a.unit = from.Unit
@@ -218,13 +125,137 @@ func (ev *evaluator) evalAxis(ax Axis, defs []*pulseDef) (*sweepAxis, error) {
 	if a.arg.Kind == argCount {
 		for i := 0; i < a.n; i++ {
 			if v := a.value(i).Q.V; math.Abs(v-math.Round(v)) > 1e-9 {
-				return nil, errAt(ax.Kind.P, "%s takes whole numbers, but the axis reaches %s; choose points or step so every value is whole", a.kind, formatNumber(v))
+				return nil, errAt(ax.Kind.P, "%s takes whole numbers, but the axis reaches %s; choose points or step so every value is whole", a.kind, present.Number(v))
 			}
 		}
 	}
 	a.reverse = from.Q.D == dimPPM
 	a.decideSpacing(ax.Points != nil, to.Q.V)
 	return a, nil
+}
+
+// axisEnds evaluates an axis's two ends; a bare number first takes the unit of
+// the second end (`offset -1 to 1 kHz`).
+func (ev *evaluator) axisEnds(ax Axis) (from, to Value, err error) {
+	if from, err = ev.evalExpr(ax.From); err != nil {
+		return from, to, err
+	}
+	if to, err = ev.evalExpr(ax.To); err != nil {
+		return from, to, err
+	}
+	if from.Q.D == dimNumber && from.Unit == "" && to.Q.D != dimNumber && bareNumber(ax.From) {
+		// `offset -1 to 1 kHz`: a plain number first takes the unit of the
+		// second endpoint, as written.
+		if u, ok := lookupUnit(to.Unit); ok && u.Dim == to.Q.D {
+			from = Value{Q: Quantity{from.Q.V * u.Factor, u.Dim}, Unit: u.Name}
+		}
+	}
+	return from, to, nil
+}
+
+// checkSpinAxis checks the ends of a spin axis (offset, b1, position, t1, t2)
+// against its kind; an offset in ppm needs the main field.
+func checkSpinAxis(field float64, kind string, ax Axis, from, to Value) error {
+	var ok bool
+	switch kind {
+	case "offset":
+		ok = from.Q.D == dimFrequency || from.Q.D == dimPPM
+		if ok && from.Q.D == dimPPM && field == 0 {
+			return errAt(ax.From.Position(), "an offset in ppm needs the main field: set it first with `field 3 T`")
+		}
+	case "b1":
+		ok = from.Q.D == dimNumber || from.Q.D == dimField || from.Q.D == dimFrequency
+	case "position":
+		ok = from.Q.D == dimLength
+	case "t1", "t2":
+		ok = from.Q.D == dimTime
+		if ok && to.Q.D == dimTime {
+			// Both ends are checked: the physics layer reads 0 as "no
+			// relaxation", and times far below a sample make its decay
+			// factors underflow.
+			if err := checkRelaxTime(kind+" axis", from, ax.From.Position()); err != nil {
+				return err
+			}
+			if err := checkRelaxTime(kind+" axis", to, ax.To.Position()); err != nil {
+				return err
+			}
+		}
+	}
+	if !ok {
+		want := map[string]string{"offset": "a frequency (Hz or ppm)", "b1": "a factor, a percent or a peak B1 (T units or Hz)", "position": "a length", "t1": "a time", "t2": "a time"}[kind]
+		return errAt(ax.From.Position(), "%s axis expects %s, got %s", kind, want, describeValue(from))
+	}
+	return nil
+}
+
+// shapeAxisArg finds the shape argument a non-spin axis sweeps in every pulse
+// (a.arg) and checks the axis's first end against it.
+func (ev *evaluator) shapeAxisArg(a *sweepAxis, ax Axis, defs []*pulseDef, from Value) error {
+	found := false
+	for _, d := range defs {
+		if d.Spec == nil {
+			return errAt(ax.Kind.P, "%s is an imported pulse; only spin axes (%s) apply to it", quoteText(d.Name), strings.Join(spinAxisNames(), ", "))
+		}
+		as, ok := d.Spec.arg(a.kind)
+		if !ok {
+			cands := append(spinAxisNames(), d.Spec.argNames()...)
+			return errAt(ax.Kind.P, "unknown axis %s for %s pulse %s%s (axes: %s, or an argument of the shape)", quoteText(a.kind), d.Kind, d.Name, suggest(a.kind, cands), strings.Join(spinAxisNames(), ", "))
+		}
+		if as.Kind == argWord {
+			return errAt(ax.Kind.P, "%s takes a word (%s) and cannot be swept", a.kind, strings.Join(as.Words, ", "))
+		}
+		a.arg, found = as, true
+	}
+	if !found {
+		return errAt(ax.Kind.P, "unknown axis %s", quoteText(a.kind))
+	}
+	return ev.checkArgValue(a.arg, from, ax.From.Position())
+}
+
+// axisPoints sets the axis's number of points and step from `points N` or
+// `step S`, within the limit per axis.
+func (ev *evaluator) axisPoints(a *sweepAxis, ax Axis, from, to Value, span float64) error {
+	if ax.Points != nil {
+		pv, err := ev.evalExpr(ax.Points)
+		if err != nil {
+			return err
+		}
+		if pv.Q.D != dimNumber || pv.Q.V != math.Trunc(pv.Q.V) || pv.Q.V < 1 {
+			return errAt(ax.Points.Position(), "points expects a whole number of at least 1, got %s", describeValue(pv))
+		}
+		if pv.Q.V > maxAxisPoints {
+			return errAt(ax.Points.Position(), "points %s exceeds the limit of %d per axis", pv, maxAxisPoints)
+		}
+		a.n = int(pv.Q.V)
+		if a.n > 1 {
+			a.step = span / float64(a.n-1)
+		} else if span != 0 {
+			return errAt(ax.Points.Position(), "one point cannot span %s to %s; want points of at least 2", from, to)
+		}
+	} else {
+		sv, err := ev.evalExpr(ax.Step)
+		if err != nil {
+			return err
+		}
+		if sv.Q.D != from.Q.D {
+			return errAt(ax.Step.Position(), "step expects %s like the axis ends, got %s", from.Q.D.Noun(), describeValue(sv))
+		}
+		if sv.Q.V == 0 {
+			return errAt(ax.Step.Position(), "step %s does not lead from %s to %s", sv, from, to)
+		}
+		// The step is taken in the direction from FROM to TO, whatever its
+		// sign: `20 ppm to 0 ppm step 5 ppm` descends.
+		if span != 0 && math.Signbit(sv.Q.V) != math.Signbit(span) {
+			sv.Q.V = -sv.Q.V
+		}
+		k := math.Floor(span/sv.Q.V + 1e-9)
+		if k+1 > maxAxisPoints {
+			return errAt(ax.Step.Position(), "step %s gives %g points, over the limit of %d per axis", sv, k+1, maxAxisPoints)
+		}
+		a.n = int(k) + 1
+		a.step = sv.Q.V
+	}
+	return nil
 }
 
 // decideSpacing is where a relaxation-time axis's scale and spacing are
@@ -360,12 +391,12 @@ func (ev *evaluator) presentSweep(s *SweepStmt, defs []*pulseDef, axes []*sweepA
 	}
 	if len(axes) == 2 {
 		for _, c := range curves {
-			ev.emitFigure(withSettingsJSON(mapOutput(mapResult(title, axes, c, n0, n1, mapNote, notes, leftCells)), set))
+			ev.emitFigure(withSettingsJSON(present.MapFigure(mapResult(title, axes, c, n0, n1, mapNote, notes, leftCells)), set))
 		}
 		ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 		return
 	}
-	ev.emitFigure(withSettingsJSON(profileOutput(ev.profileResult(title, axes[0], curves, defs, set.start, notes)), set))
+	ev.emitFigure(withSettingsJSON(present.ProfileFigure(ev.profileResult(title, axes[0], curves, defs, set.start, notes)), set))
 	ev.st.last = newSweepTable(title, axes, curves, n0, n1)
 }
 
@@ -579,32 +610,8 @@ type sweepRun struct {
 // planSweep builds every pulse the sweep needs (one per point of the shape axes)
 // and counts the isochromat-steps.
 func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantitySpec, set *settings) ([]*sweepRun, float64, error) {
-	var shapeIdx, spinIdx []int
-	for i, a := range axes {
-		if a.spin {
-			spinIdx = append(spinIdx, i)
-		} else {
-			shapeIdx = append(shapeIdx, i)
-		}
-	}
-	spins := 1
-	for _, i := range spinIdx {
-		spins *= axes[i].n
-	}
-	needMag, needMeasure := false, false
-	for _, q := range qs {
-		if !q.Property {
-			needMag = true
-		}
-		switch q.Name {
-		case "bandwidth", "tbw", "transition", "ripple", "threshold", "b1rms", "flip":
-			needMeasure = true
-		}
-	}
-	builds := 1
-	for _, i := range shapeIdx {
-		builds *= axes[i].n
-	}
+	shapeIdx, spins, builds := axisGrid(axes)
+	needMag, needMeasure := planNeeds(qs)
 	if builds*len(defs) > maxSweepBuilds {
 		return nil, 0, errAt(axes[shapeIdx[0]].pos, "sweep rebuilds the pulse %d times, over the limit of %d", builds*len(defs), maxSweepBuilds)
 	}
@@ -619,36 +626,18 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 			}
 			r := &sweepRun{def: d, pi: pi, p: d.Pulse, fixed: map[int]int{}, spins: spins}
 			if len(shapeIdx) > 0 {
-				changes := map[string]argVal{}
-				rem := b
-				for k := len(shapeIdx) - 1; k >= 0; k-- {
-					ai := shapeIdx[k]
-					idx := rem % axes[ai].n
-					rem /= axes[ai].n
-					r.fixed[ai] = idx
-					changes[axes[ai].kind] = argVal{Pos: axes[ai].pos, Val: axes[ai].value(idx)}
-				}
-				r.args = mergeArgs(d.Spec, d.Args, changes)
-				r.callPos = axes[shapeIdx[0]].pos
-				p, err := ev.rebuild(d, r.args, r.callPos)
-				if err != nil {
+				if err := ev.buildRun(r, axes, shapeIdx, b); err != nil {
 					if cerr := ev.checkCtx(); cerr != nil {
 						return nil, 0, cerr
 					}
-					msg := err.Error()
-					if e, ok := err.(*posError); ok {
-						msg = e.msg
-					}
 					if firstErr == nil {
-						firstErr = errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+						firstErr = err
 					}
 					// An impossible point is left out; the rest is drawn.
-					r.fail, r.p = msg, nil
 					runs = append(runs, r)
 					continue
 				}
 				built++
-				r.p = p
 			}
 			if axisNamed(axes, "position") && r.p.Wave.Gradient == nil {
 				return nil, 0, errAt(axisPos(axes, "position"), "a position axis needs a slice gradient, but %s has none (give gradient or thickness)", d.Name)
@@ -676,6 +665,65 @@ func (ev *evaluator) planSweep(defs []*pulseDef, axes []*sweepAxis, qs []quantit
 		return nil, 0, firstErr // no point can be built: nothing to draw
 	}
 	return runs, total, nil
+}
+
+// axisGrid splits a sweep's axes into shape axes (each point a rebuilt pulse)
+// and spin axes (isochromats of one run): the shape axes' indices, the spins of
+// a run and the number of builds per pulse.
+func axisGrid(axes []*sweepAxis) (shapeIdx []int, spins, builds int) {
+	spins, builds = 1, 1
+	for i, a := range axes {
+		if a.spin {
+			spins *= a.n
+		} else {
+			shapeIdx = append(shapeIdx, i)
+			builds *= a.n
+		}
+	}
+	return shapeIdx, spins, builds
+}
+
+// planNeeds reports whether the quantities need the magnetization simulated
+// and the pulse measured (describe's figures), for the work budget.
+func planNeeds(qs []quantitySpec) (needMag, needMeasure bool) {
+	for _, q := range qs {
+		if !q.Property {
+			needMag = true
+		}
+		switch q.Name {
+		case "bandwidth", "tbw", "transition", "ripple", "threshold", "b1rms", "flip":
+			needMeasure = true
+		}
+	}
+	return needMag, needMeasure
+}
+
+// buildRun rebuilds r's pulse at build b of the shape axes (the last shape
+// axis fastest). A point that cannot be built is marked failed (r.fail, no
+// pulse) and its error names the point.
+func (ev *evaluator) buildRun(r *sweepRun, axes []*sweepAxis, shapeIdx []int, b int) error {
+	changes := map[string]argVal{}
+	rem := b
+	for k := len(shapeIdx) - 1; k >= 0; k-- {
+		ai := shapeIdx[k]
+		idx := rem % axes[ai].n
+		rem /= axes[ai].n
+		r.fixed[ai] = idx
+		changes[axes[ai].kind] = argVal{Pos: axes[ai].pos, Val: axes[ai].value(idx)}
+	}
+	r.args = mergeArgs(r.def.Spec, r.def.Args, changes)
+	r.callPos = axes[shapeIdx[0]].pos
+	p, err := ev.rebuild(r.def, r.args, r.callPos)
+	if err != nil {
+		msg := err.Error()
+		if e, ok := err.(*posError); ok {
+			msg = e.msg
+		}
+		r.fail, r.p = msg, nil
+		return errAt(axes[shapeIdx[0]].pos, "at %s: %s", pointText(axes, r.fixed), msg)
+	}
+	r.p = p
+	return nil
 }
 
 // sweepMemory estimates the bytes a sweep holds while it runs: the rebuilt
@@ -1124,26 +1172,9 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 	for _, ai := range spinAx {
 		a := axes[ai]
 		stride /= a.n
-		vals := make([]float64, a.n)
-		for i := range vals {
-			v := a.value(i)
-			switch a.kind {
-			case "offset":
-				if v.Q.D == dimPPM {
-					// Δf = γ̄·B0·δ with the sign of γ (see convert).
-					vals[i] = v.Q.V * 1e-6 * signedGammaBar(r.p) * ev.st.field
-				} else {
-					vals[i] = v.Q.V
-				}
-			case "b1":
-				f, ok := b1Factor(v, r.p.Peak(), gb)
-				if !ok {
-					return nil, errAt(a.pos, "b1 axis in absolute units, but %s has zero amplitude", r.def.Name)
-				}
-				vals[i] = f
-			default:
-				vals[i] = v.Q.V
-			}
+		vals, err := ev.spinAxisValues(a, r, gb)
+		if err != nil {
+			return nil, err
 		}
 		arr := make([]float64, n)
 		for k := range arr {
@@ -1171,6 +1202,34 @@ func (ev *evaluator) isochromats(r *sweepRun, axes []*sweepAxis, spinAx []int, s
 		}
 	}
 	return iso, nil
+}
+
+// spinAxisValues gives a spin axis's points as the engine takes them: offsets
+// in Hz (ppm through the field, with the sign of γ), b1 as a factor of the
+// pulse's peak, the rest in SI units.
+func (ev *evaluator) spinAxisValues(a *sweepAxis, r *sweepRun, gb float64) ([]float64, error) {
+	vals := make([]float64, a.n)
+	for i := range vals {
+		v := a.value(i)
+		switch a.kind {
+		case "offset":
+			if v.Q.D == dimPPM {
+				// Δf = γ̄·B0·δ with the sign of γ (see convert).
+				vals[i] = v.Q.V * 1e-6 * signedGammaBar(r.p) * ev.st.field
+			} else {
+				vals[i] = v.Q.V
+			}
+		case "b1":
+			f, ok := b1Factor(v, r.p.Peak(), gb)
+			if !ok {
+				return nil, errAt(a.pos, "b1 axis in absolute units, but %s has zero amplitude", r.def.Name)
+			}
+			vals[i] = f
+		default:
+			vals[i] = v.Q.V
+		}
+	}
+	return vals, nil
 }
 
 // t2FromT1 tells whether a sweep relaxes with t1 but was given no t2 (as a
@@ -1232,14 +1291,14 @@ func finitePoints(x, y, also []float64) ([]float64, []float64, []float64) {
 }
 
 // curveView is the curve as presentation shows it.
-func (c *curveData) view() curveView {
-	return curveView{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: unitLabel(c.quantity.Unit), Values: c.values,
+func (c *curveData) view() present.Curve {
+	return present.Curve{Pulse: c.pulse, Quantity: c.quantity.Name, Label: c.label, Unit: present.UnitLabel(c.quantity.Unit), Values: c.values,
 		Energy: c.quantity.Name == "energy" || c.quantity.Name == "b1rms"}
 }
 
 // view is the axis as presentation shows it.
-func (a *sweepAxis) view() axisView {
-	return axisView{Kind: a.label(), Unit: unitLabel(a.unit), Values: a.display(), Reverse: a.reverse, Log: a.logScale,
+func (a *sweepAxis) view() present.Axis {
+	return present.Axis{Kind: a.label(), Unit: present.UnitLabel(a.unit), Values: a.display(), Reverse: a.reverse, Log: a.logScale,
 		At: func(i int) string { return a.value(i).String() }}
 }
 
@@ -1247,8 +1306,8 @@ func (a *sweepAxis) view() axisView {
 // design band edges, and on a sweep of over 50 points (summarized by features)
 // each curve's features, against the half levels set by start (the initial
 // magnetization) and the pulse's design.
-func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, start [3]float64, notes []string) profileView {
-	v := profileView{Title: title, X: a.view(), Marks: bandMarks(a, defs, ev.st), Notes: notes}
+func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveData, defs []*pulseDef, start [3]float64, notes []string) present.Profile {
+	v := present.Profile{Title: title, X: a.view(), Marks: bandMarks(a, defs, ev.st), Notes: notes}
 	x := v.X.Values
 	hasLevels := false
 	for _, c := range curves {
@@ -1264,7 +1323,7 @@ func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveDa
 				if dev < 1e-9 {
 					dev = 0
 				}
-				cv.Phase = &phaseFit{Slope: slope, Dev: dev, X0: x0, X1: x1}
+				cv.Phase = &present.PhaseFit{Slope: slope, Dev: dev, X0: x0, X1: x1}
 			} else {
 				var p *shape.Pulse
 				for _, d := range defs {
@@ -1281,7 +1340,7 @@ func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveDa
 		v.Curves = append(v.Curves, cv)
 	}
 	if hasLevels {
-		v.LevelNote = ev.st.definition(halfLevelNote, halfLevelBrief)
+		v.LevelNote = ev.st.definition(present.HalfLevelNote, present.HalfLevelBrief)
 	}
 	return v
 }
@@ -1289,8 +1348,8 @@ func (ev *evaluator) profileResult(title string, a *sweepAxis, curves []*curveDa
 // mapResult measures one quantity of one pulse over two axes for presentation:
 // its extremes and, for its role's quantity, how many points meet the target;
 // leftOut cells were not simulated (t2 > 2·t1).
-func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) mapView {
-	v := mapView{Title: title, X: axes[0].view(), Y: axes[1].view(), Curve: c.view(), N0: n0, N1: n1, Note: note, AxisNotes: axisNotes, LeftOut: leftOut}
+func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note string, axisNotes []string, leftOut int) present.Map {
+	v := present.Map{Title: title, X: axes[0].view(), Y: axes[1].view(), Curve: c.view(), N0: n0, N1: n1, Note: note, AxisNotes: axisNotes, LeftOut: leftOut}
 	level, cmp, ok := roleTarget(c.role, c.quantity.Name)
 	lo, hi, loAt, hiAt := math.Inf(1), math.Inf(-1), 0, 0
 	met := 0
@@ -1309,7 +1368,7 @@ func mapResult(title string, axes []*sweepAxis, c *curveData, n0, n1 int, note s
 	}
 	v.Lo, v.Hi, v.LoAt, v.HiAt = lo, hi, loAt, hiAt
 	if ok {
-		v.Target = &mapTarget{Level: level, Text: targetText(c.role, level), Met: met}
+		v.Target = &present.Target{Level: level, Text: targetText(c.role, level), Met: met}
 	}
 	return v
 }

@@ -5,6 +5,8 @@ import (
 	"io"
 	"strconv"
 	"strings"
+
+	"Nutate/dsl/present"
 )
 
 // sweepTable is a sweep's data in long form: one row per point, the axis values
@@ -18,10 +20,10 @@ type sweepTable struct {
 func newSweepTable(title string, axes []*sweepAxis, curves []*curveData, n0, n1 int) *sweepTable {
 	t := &sweepTable{title: title}
 	for _, a := range axes {
-		t.columns = append(t.columns, colName(a.kind, unitLabel(a.unit)))
+		t.columns = append(t.columns, colName(a.kind, present.UnitLabel(a.unit)))
 	}
 	for _, c := range curves {
-		t.columns = append(t.columns, colName(c.pulse+" "+c.quantity.Name, unitLabel(c.quantity.Unit)))
+		t.columns = append(t.columns, colName(c.pulse+" "+c.quantity.Name, present.UnitLabel(c.quantity.Unit)))
 	}
 	x0 := axes[0].display()
 	var x1 []float64

@@ -3,8 +3,9 @@ package dsl
 import (
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
+
+	"Nutate/dsl/present"
 )
 
 // Dim is a physical dimension as integer exponents of the base quantities the
@@ -216,46 +217,24 @@ func autoUnit(q Quantity) string {
 	return ladder[len(ladder)-1]
 }
 
-// formatNumber writes v with 6 significant digits, no exponent for ordinary
-// magnitudes.
-func formatNumber(v float64) string {
-	if v == 0 {
-		return "0"
-	}
-	if math.IsNaN(v) {
-		return "—"
-	}
-	a := math.Abs(v)
-	if a >= 1e-4 && a < 1e7 {
-		s := fmt.Sprintf("%.6g", v)
-		if strings.ContainsAny(s, "e") {
-			// 10⁶ to 10⁷: %g turns to an exponent; write the six significant
-			// digits out instead (2885240, not 2885235.214247).
-			s = strconv.FormatFloat(roundSig(v, 6), 'f', -1, 64)
-		}
-		return s
-	}
-	return fmt.Sprintf("%.6g", v)
-}
-
-// format shows q in unit (or an automatic one when unit is "").
-func (q Quantity) format(unit string) string {
+// shown is q as presentation shows it: its value in unit (or an automatic one
+// when unit is "").
+func (q Quantity) shown(unit string) present.Value {
 	if unit == "" {
 		unit = autoUnit(q)
 	}
 	if unit == "" {
 		if q.D == dimNumber {
-			return formatNumber(q.V)
+			return present.Value{V: q.V}
 		}
-		return formatNumber(q.V) + " " + q.D.unitString()
+		return present.Value{V: q.V, Unit: q.D.unitString()}
 	}
 	u, _ := lookupUnit(unit)
-	s := formatNumber(q.V / u.Factor)
-	if unit == "%" || unit == "°" {
-		return s + unit
-	}
-	return s + " " + unitLabel(unit)
+	return present.Value{V: q.V / u.Factor, Unit: unit}
 }
+
+// format shows q in unit (or an automatic one when unit is "").
+func (q Quantity) format(unit string) string { return q.shown(unit).String() }
 
 // String shows q in an automatic unit.
 func (q Quantity) String() string { return q.format("") }
@@ -291,13 +270,4 @@ func convert(q Quantity, to Dim, gammaBar, b0 float64, nucleus string) (Quantity
 		return Quantity{q.V / (1e-6 * gammaBar * b0), to}, nil
 	}
 	return q, fmt.Errorf("cannot convert %s to %s", q.D.Noun(), to.Noun())
-}
-
-// roundSig rounds v to sig significant digits.
-func roundSig(v float64, sig int) float64 {
-	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-		return v
-	}
-	e := math.Pow(10, float64(sig-1)-math.Floor(math.Log10(math.Abs(v))))
-	return math.Round(v*e) / e
 }
