@@ -2,6 +2,7 @@ package slr
 
 import (
 	"fmt"
+	"math"
 	"testing"
 
 	"Nutate/physics/shape"
@@ -56,6 +57,26 @@ func BenchmarkForwardInverse(b *testing.B) {
 			for b.Loop() {
 				a, bb := Forward(rf)
 				Inverse(a, bb)
+			}
+		})
+	}
+}
+
+// BenchmarkSamples designs a linear-phase 90° excitation of TBW 8 at 256, 1024
+// and 4096 samples.
+func BenchmarkSamples(b *testing.B) {
+	g := proton(b)
+	for _, n := range []int{256, 1024, 4096} {
+		b.Run(fmt.Sprint(n), func(b *testing.B) {
+			spec := NewSpec(shape.RoleExcite)
+			spec.TBW = 8
+			c := shape.NewCommon()
+			c.Duration, c.Samples, c.Flip = 4e-3, n, math.Pi/2
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := Pulse(spec, c, g); err != nil {
+					b.Fatal(err)
+				}
 			}
 		})
 	}
