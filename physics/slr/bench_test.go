@@ -62,22 +62,27 @@ func BenchmarkForwardInverse(b *testing.B) {
 	}
 }
 
-// BenchmarkSamples designs a linear-phase 90° excitation of TBW 8 at 256, 1024
-// and 4096 samples.
+// BenchmarkSamples designs a linear-phase inversion of TBW 8 (4 ms) and a
+// 90° excitation of TBW 8 at 256, 1024 and 4096 samples.
 func BenchmarkSamples(b *testing.B) {
 	g := proton(b)
-	for _, n := range []int{256, 1024, 4096} {
-		b.Run(fmt.Sprint(n), func(b *testing.B) {
-			spec := NewSpec(shape.RoleExcite)
-			spec.TBW = 8
-			c := shape.NewCommon()
-			c.Duration, c.Samples, c.Flip = 4e-3, n, math.Pi/2
-			b.ReportAllocs()
-			for b.Loop() {
-				if _, err := Pulse(spec, c, g); err != nil {
-					b.Fatal(err)
+	for _, role := range []shape.Role{shape.RoleInvert, shape.RoleExcite} {
+		for _, n := range []int{256, 1024, 4096} {
+			b.Run(fmt.Sprintf("%v/%d", role, n), func(b *testing.B) {
+				spec := NewSpec(role)
+				spec.TBW = 8
+				c := shape.NewCommon()
+				c.Duration, c.Samples = 4e-3, n
+				if role == shape.RoleExcite {
+					c.Flip = math.Pi / 2
 				}
-			}
-		})
+				b.ReportAllocs()
+				for b.Loop() {
+					if _, err := Pulse(spec, c, g); err != nil {
+						b.Fatal(err)
+					}
+				}
+			})
+		}
 	}
 }

@@ -4,7 +4,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -148,19 +150,22 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 		done  bool
 		worst float64 // largest weighted error on the grid of the last fit
 	)
+	var fg *fastGrid
+	if useFastGrid && r >= fastGridMin {
+		fg = newFastGrid(r, f, bandEnd)
+	}
+	errs := func() {
+		if fg == nil || !fg.errors(&ip, e, ext, x, d, w) {
+			ip.errors(e, ext, x, d, w)
+		}
+	}
 	const maxIter = 60
 	for iter := 0; iter < maxIter; iter++ {
 		ip.fit(ext, x, d, w)
+		errs()
 		maxE := 0.0
-		k := 0
-		for i := range f {
-			if k < len(ext) && ext[k] == i {
-				e[i] = w[i] * (d[i] - ip.ys[k])
-				k++
-			} else {
-				e[i] = w[i] * (d[i] - ip.evalOff(x[i]))
-			}
-			maxE = math.Max(maxE, math.Abs(e[i]))
+		for _, v := range e {
+			maxE = math.Max(maxE, math.Abs(v))
 		}
 		// Accept extrema down to |δ| less rounding: δ can itself be near rounding
 		// level on the first iterations of long filters.
@@ -186,14 +191,19 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 	if !(worst-math.Abs(ip.delta) <= 1e-9*worst) {
 		// The set changed on the last step: measure the final fit.
 		ip.fit(ext, x, d, w)
+		errs()
 		worst = 0
-		for i := range f {
-			worst = math.Max(worst, math.Abs(w[i]*(d[i]-ip.eval(x[i]))))
+		for _, v := range e {
+			worst = math.Max(worst, math.Abs(v))
 		}
 	}
 	extF = make([]float64, len(ext))
 	for k, i := range ext {
 		extF[k] = f[i]
+	}
+	if fg != nil {
+		fg.series(&ip)
+		return fg.taps(taps), extF, worst, nil
 	}
 	return impulse(taps, ip.eval), extF, worst, nil
 }
@@ -249,6 +259,47 @@ func (p *interpolant) fit(ext []int, x, d, w []float64) {
 		sign = -sign
 	}
 }
+
+// errors sets the weighted error e[i] = w[i]·(d[i] − p(x[i])) on the grid,
+// whose nodes are the grid points ext (increasing). The O(nodes × grid) sum is
+// the exchange's cost: on large grids it is split over GOMAXPROCS goroutines,
+// each point computed as in one (the same result).
+func (p *interpolant) errors(e []float64, ext []int, x, d, w []float64) {
+	span := func(lo, hi int) {
+		k := sort.SearchInts(ext, lo)
+		for i := lo; i < hi; i++ {
+			if k < len(ext) && ext[k] == i {
+				e[i] = w[i] * (d[i] - p.ys[k])
+				k++
+			} else {
+				e[i] = w[i] * (d[i] - p.evalOff(x[i]))
+			}
+		}
+	}
+	ng := len(e)
+	parts := min(runtime.GOMAXPROCS(0), ng*len(ext)/parallelWork)
+	if parts < 2 {
+		span(0, ng)
+		return
+	}
+	var wg sync.WaitGroup
+	for j := range parts {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			span(j*ng/parts, (j+1)*ng/parts)
+		}()
+	}
+	wg.Wait()
+}
+
+// useFastGrid selects the FFT evaluation of the interpolant (fastGrid) for
+// large designs; tests compare it with the direct sum.
+var useFastGrid = true
+
+// parallelWork is the number of interpolant terms below which errors does not
+// start goroutines (a few hundred microseconds of work).
+const parallelWork = 1 << 17
 
 // evalOff is eval at an x that is none of the nodes.
 func (p *interpolant) evalOff(x float64) float64 {
