@@ -77,10 +77,14 @@ func BenchmarkSamples(b *testing.B) {
 					c.Flip = math.Pi / 2
 				}
 				b.ReportAllocs()
+				cpu0 := processCPU()
 				for b.Loop() {
 					if _, err := Pulse(spec, c, g); err != nil {
 						b.Fatal(err)
 					}
+				}
+				if d := processCPU() - cpu0; d > 0 {
+					b.ReportMetric(float64(d.Nanoseconds())/float64(b.N), "cpu-ns/op")
 				}
 			})
 		}

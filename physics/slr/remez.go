@@ -150,19 +150,10 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 		done  bool
 		worst float64 // largest weighted error on the grid of the last fit
 	)
-	var fg *fastGrid
-	if useFastGrid && r >= fastGridMin {
-		fg = newFastGrid(r, f, bandEnd)
-	}
-	errs := func() {
-		if fg == nil || !fg.errors(&ip, e, ext, x, d, w) {
-			ip.errors(e, ext, x, d, w)
-		}
-	}
 	const maxIter = 60
 	for iter := 0; iter < maxIter; iter++ {
 		ip.fit(ext, x, d, w)
-		errs()
+		ip.errors(e, ext, x, d, w)
 		maxE := 0.0
 		for _, v := range e {
 			maxE = math.Max(maxE, math.Abs(v))
@@ -191,7 +182,7 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 	if !(worst-math.Abs(ip.delta) <= 1e-9*worst) {
 		// The set changed on the last step: measure the final fit.
 		ip.fit(ext, x, d, w)
-		errs()
+		ip.errors(e, ext, x, d, w)
 		worst = 0
 		for _, v := range e {
 			worst = math.Max(worst, math.Abs(v))
@@ -200,10 +191,6 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 	extF = make([]float64, len(ext))
 	for k, i := range ext {
 		extF[k] = f[i]
-	}
-	if fg != nil {
-		fg.series(&ip)
-		return fg.taps(taps), extF, worst, nil
 	}
 	return impulse(taps, ip.eval), extF, worst, nil
 }
@@ -225,22 +212,26 @@ func (p *interpolant) fit(ext []int, x, d, w []float64) {
 	}
 	// Barycentric weights 1/∏(x_k − x_j), scaled by powers of two to stay finite.
 	exps := make([]int, n)
-	maxExp := math.MinInt
-	for k := range n {
-		m, ex := 1.0, 0
-		for j := range n {
-			if j == k {
-				continue
+	parallel(n, n*n, func(lo, hi int) {
+		for k := lo; k < hi; k++ {
+			m, ex := 1.0, 0
+			for j := range n {
+				if j == k {
+					continue
+				}
+				m *= p.xs[k] - p.xs[j]
+				if j&15 == 15 {
+					fr, e2 := math.Frexp(m)
+					m, ex = fr, ex+e2
+				}
 			}
-			m *= p.xs[k] - p.xs[j]
-			if j&15 == 15 {
-				fr, e2 := math.Frexp(m)
-				m, ex = fr, ex+e2
-			}
+			fr, e2 := math.Frexp(m)
+			p.bw[k], exps[k] = 1/fr, -(ex + e2)
 		}
-		fr, e2 := math.Frexp(m)
-		p.bw[k], exps[k] = 1/fr, -(ex + e2)
-		maxExp = max(maxExp, exps[k])
+	})
+	maxExp := math.MinInt
+	for _, v := range exps {
+		maxExp = max(maxExp, v)
 	}
 	for k := range n {
 		p.bw[k] = math.Ldexp(p.bw[k], exps[k]-maxExp)
@@ -276,10 +267,16 @@ func (p *interpolant) errors(e []float64, ext []int, x, d, w []float64) {
 			}
 		}
 	}
-	ng := len(e)
-	parts := min(runtime.GOMAXPROCS(0), ng*len(ext)/parallelWork)
+	parallel(len(e), len(e)*len(ext), span)
+}
+
+// parallel calls span over 0 to n split in up to GOMAXPROCS contiguous parts,
+// one goroutine each, when the work (in inner-loop terms) is worth it; each
+// index is computed as it would be in one call, so the result is the same.
+func parallel(n, work int, span func(lo, hi int)) {
+	parts := min(runtime.GOMAXPROCS(0), work/parallelWork, n)
 	if parts < 2 {
-		span(0, ng)
+		span(0, n)
 		return
 	}
 	var wg sync.WaitGroup
@@ -287,15 +284,11 @@ func (p *interpolant) errors(e []float64, ext []int, x, d, w []float64) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			span(j*ng/parts, (j+1)*ng/parts)
+			span(j*n/parts, (j+1)*n/parts)
 		}()
 	}
 	wg.Wait()
 }
-
-// useFastGrid selects the FFT evaluation of the interpolant (fastGrid) for
-// large designs; tests compare it with the direct sum.
-var useFastGrid = true
 
 // parallelWork is the number of interpolant terms below which errors does not
 // start goroutines (a few hundred microseconds of work).
@@ -420,33 +413,38 @@ func extrema(e []float64, bandEnd []int, thr float64, want int) ([]int, bool) {
 func impulse(taps int, p func(x float64) float64) []float64 {
 	L := taps
 	amp := make([]float64, L)
-	for m := range amp {
-		om := 2 * math.Pi * float64(m) / float64(L)
-		amp[m] = p(math.Cos(om))
-		if L%2 == 0 {
-			amp[m] *= math.Cos(om / 2)
+	parallel(L, L*L/2, func(lo, hi int) {
+		for m := lo; m < hi; m++ {
+			om := 2 * math.Pi * float64(m) / float64(L)
+			amp[m] = p(math.Cos(om))
+			if L%2 == 0 {
+				amp[m] *= math.Cos(om / 2)
+			}
 		}
-	}
+	})
 	// cos(π·j/L) for j mod 2L: ω_m·(n − (L−1)/2) = π·m·(2n − L + 1)/L.
 	tab := make([]float64, 2*L)
 	for j := range tab {
 		tab[j] = math.Cos(math.Pi * float64(j) / float64(L))
 	}
 	h := make([]float64, L)
-	for n := 0; n < (L+1)/2; n++ {
-		k := 2*n - L + 1
-		k = ((k % (2 * L)) + 2*L) % (2 * L)
-		s, j := 0.0, 0
-		for m := 0; m < L; m++ {
-			s += amp[m] * tab[j]
-			j += k
-			if j >= 2*L {
-				j -= 2 * L
+	half := (L + 1) / 2
+	parallel(half, half*L, func(lo, hi int) {
+		for n := lo; n < hi; n++ {
+			k := 2*n - L + 1
+			k = ((k % (2 * L)) + 2*L) % (2 * L)
+			s, j := 0.0, 0
+			for m := 0; m < L; m++ {
+				s += amp[m] * tab[j]
+				j += k
+				if j >= 2*L {
+					j -= 2 * L
+				}
 			}
+			h[n] = s / float64(L)
+			h[L-1-n] = h[n]
 		}
-		h[n] = s / float64(L)
-		h[L-1-n] = h[n]
-	}
+	})
 	return h
 }
 
