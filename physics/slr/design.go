@@ -195,7 +195,7 @@ type shaping struct {
 	// fit sets the transition width by the levelled error the exchange
 	// reaches rather than by the D∞ estimate alone (see centred): for 90°
 	// excitation, whose passband ripple 2δ1² is second order in the filter's,
-	// the estimate's error (the levelled error up to 1.8× δ1 at TBW 4 to 12,
+	// the estimate's error (the levelled error up to 1.9× δ1 at TBW 4 to 12,
 	// 256 samples) comes out squared in the profile.
 	fit bool
 }
@@ -245,7 +245,7 @@ func zeroPhase(h []float64, f float64) float64 {
 //
 // With sh.fit (an amendment to the published design, for 90° excitation) the
 // width is fitted too: D∞ is an estimate, and the exchange with the
-// published edges levels the error at up to 1.8× δ1; each step moves the
+// published edges levels the error at up to 1.9× δ1; each step moves the
 // width by the difference of D∞ between the asked ripples and those reached
 // (δ, δ·δ2/δ1), a Newton step on the estimate's own slope, until the levelled
 // error is within fitLo to fitHi of δ1.

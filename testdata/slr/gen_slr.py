@@ -17,8 +17,8 @@ The published design (Pauly, Le Roux, Nishimura & Macovski, IEEE Trans. Med. Ima
 - amendment for 90 deg excitation (as in the Go design): the transition width is
   fitted so that the levelled passband error the exchange reaches is 0.85 to 1 times
   d1, by steps on the D_inf estimate's own slope (see fitted_remez): with the
-  published D_inf alone it reaches up to 1.8 x d1 at 256 samples, which the 90 deg
-  relation (profile ripple 2*d1^2) squares into up to 3 x the asked ripple;
+  published D_inf alone it reaches up to 1.9 x d1 at 256 samples, which the 90 deg
+  relation (profile ripple 2*d1^2) squares into up to 3.7 x the asked ripple;
 - beta = sin(theta/2) * filter (kept below 1 in magnitude), alpha the minimum-phase
   sequence with |alpha|^2 = 1 - |beta|^2 (cepstrum), the RF by the inverse SLR
   recursion (peeling one hard pulse per sample);
