@@ -121,7 +121,9 @@ func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 // lowpass designs the published equiripple lowpass (Pauly et al. 1991): taps
 // coefficients, passband 0 to fp with ripple d1, stopband fs to 0.5 with ripple
 // d2 (weights 1 and d1/d2), by Remez exchange; least squares over the same bands
-// when the exchange does not converge. It reports the method used.
+// when the exchange does not converge. It returns the filter, the extremal
+// frequencies (to warm-start the next design), the levelled error in passband
+// units (NaN for least squares) and the method used.
 //
 // One point departs from the plain design: the amplitude at zero offset is
 // pinned to 1 (weight dcWeight), so that the on-resonance rotation is the
@@ -130,10 +132,10 @@ func edges(n, taps int, tbw, dinf float64) (fp, fs float64) {
 // largest amplitude) it is pinned to the top of the passband ripple of the
 // plain design, 1 + δ, so that zero offset is the passband's largest amplitude
 // and keeps |β| = 1 after scaling.
-func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, init []float64, density int) ([]float64, []float64, string, error) {
+func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, init []float64, density int) ([]float64, []float64, float64, string, error) {
 	top := sh.top
 	if err := ctx.Err(); err != nil {
-		return nil, nil, "", err
+		return nil, nil, 0, "", err
 	}
 	bands := []Band{{0, fp, 1, 1}, {fs, 0.5, 0, d1 / d2}}
 	dc := 1.0
@@ -149,7 +151,7 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, 
 	tg := func(i int, f float64) (float64, float64) {
 		return sh.target(bands, dc, dcWeight)(i, f)
 	}
-	h, e, _, err := remez(taps, bands, ext, density, tg)
+	h, e, delta, err := remez(taps, bands, ext, density, tg)
 	// The largest amplitude between grid points may still exceed the pinned
 	// one by a little: pin to it again (a shortfall ε of |β(0)| costs √(8ε)
 	// rad of flip).
@@ -163,7 +165,7 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, 
 			break
 		}
 		dc = 2*mx - dc // the excess grows as dc does: step beyond it
-		h, e, _, err = remez(taps, bands, e, density, tg)
+		h, e, delta, err = remez(taps, bands, e, density, tg)
 	}
 	if errors.Is(err, ErrNoConvergence) {
 		h, err = LeastSquares(taps, bands)
@@ -173,9 +175,9 @@ func lowpass(ctx context.Context, taps int, fp, fs, d1, d2 float64, sh shaping, 
 				h[i] *= g
 			}
 		}
-		return h, nil, "least squares", err
+		return h, nil, math.NaN(), "least squares", err
 	}
-	return h, e, "remez", err
+	return h, e, delta, "remez", err
 }
 
 // shaping says how a β filter departs from the plain equiripple lowpass.
@@ -190,6 +192,12 @@ type shaping struct {
 	// decay away from the edge and lowers the spikes, at some cost in ripple
 	// near the edge. 0: the published flat stopband.
 	slope float64
+	// fit sets the transition width by the levelled error the exchange
+	// reaches rather than by the D∞ estimate alone (see centred): for 90°
+	// excitation, whose passband ripple 2δ1² is second order in the filter's,
+	// the estimate's error (the levelled error up to 1.9× δ1 at TBW 4 to 12,
+	// 256 samples) comes out squared in the profile.
+	fit bool
 }
 
 // target returns the gain and weight at frequency f of band i, with zero
@@ -234,6 +242,13 @@ func zeroPhase(h []float64, f float64) float64 {
 // and moves within it with the ripples and with tbw (by a few per cent at
 // TBW 4 to 12); the transition, its width kept, is then moved by secant steps
 // until that point is at tbw/(2n) within centreTol. It returns the edges used.
+//
+// With sh.fit (an amendment to the published design, for 90° excitation) the
+// width is fitted too: D∞ is an estimate, and the exchange with the
+// published edges levels the error at up to 1.9× δ1; each step moves the
+// width by the difference of D∞ between the asked ripples and those reached
+// (δ, δ·δ2/δ1), a Newton step on the estimate's own slope, until the levelled
+// error is within fitLo to fitHi of δ1.
 func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, sh shaping) (h []float64, fp, fs float64, method string, err error) {
 	want := tbw / (2 * float64(n))
 	p0, s0 := edges(n, taps, tbw, DInf(d1, d2))
@@ -243,12 +258,19 @@ func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, sh sh
 	// one design on the full grid from the coarse extremal set.
 	var ext []float64
 	found := false
-	for range 6 {
+	goodC, goodHalf := want, half
+	steps := 6
+	if sh.fit {
+		steps = 10
+	}
+	for range steps {
 		fp, fs = c-half, c+half
 		if !(fp > 0 && fs < 0.5) {
 			break
 		}
-		h, ext, _, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, coarseDensity)
+		var delta float64
+		var e []float64
+		h, e, delta, _, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, coarseDensity)
 		if err != nil {
 			break
 		}
@@ -256,20 +278,36 @@ func centred(ctx context.Context, n, taps int, tbw, d1, d2, level float64, sh sh
 		if math.IsNaN(f) {
 			break
 		}
-		found = true
-		if math.Abs(f-want) <= centreTol*want {
+		found, ext = true, e
+		goodC, goodHalf = c, half
+		centreOK := math.Abs(f-want) <= centreTol*want
+		widthOK := !sh.fit || math.IsNaN(delta) || (delta >= fitLo*d1 && delta <= fitHi*d1)
+		if centreOK && widthOK {
 			break
 		}
 		c += want - f // the crossing moves with the transition
+		if !widthOK {
+			r := d2 / d1
+			half += (DInf(fitAim*d1, fitAim*d1*r) - DInf(delta, delta*r)) / (2 * float64(taps))
+		}
+	}
+	if sh.fit {
+		c, half = goodC, goodHalf // the last width designed, not a step beyond
 	}
 	if !found || !(c-half > 0 && c+half < 0.5) {
 		// No crossing found: the published edges as they are.
-		c, ext = want, nil
+		c, half, ext = want, (s0-p0)/2, nil
 	}
 	fp, fs = c-half, c+half
-	h, _, method, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, gridDensity)
+	h, _, _, method, err = lowpass(ctx, taps, fp, fs, d1, d2, sh, ext, gridDensity)
 	return h, fp, fs, method, err
 }
+
+// The levelled error sh.fit accepts, as a fraction of δ1, and aims at (the
+// full grid levels a little above the coarse one).
+const (
+	fitLo, fitAim, fitHi = 0.85, 0.93, 1.0
+)
 
 // coarseDensity is the design grid density of centred's secant steps.
 const coarseDensity = 4

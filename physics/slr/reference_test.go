@@ -144,7 +144,14 @@ func TestAgainstScipyReference(t *testing.T) {
 			}
 			// The published transition width; its centre moved by at most a
 			// few per cent so that the role's profile is half-way at TBW/(2T).
-			within(t, "transition width (Hz)", info.StopEdge-info.PassEdge, rc.StopEdgeHz-rc.PassEdgeHz, 1e-9*rc.StopEdgeHz)
+			// For 90° excitation both designs fit the width to the levelled
+			// error (the amendment, see shaping.fit and gen_slr.py), each to
+			// within 0.85 to 1 × δ1 on its own grid: 3 % (measured 1.5 %).
+			tol := 1e-9 * rc.StopEdgeHz
+			if prof.role == shape.RoleExcite && rc.FlipDeg == 90 {
+				tol = 0.03 * (rc.StopEdgeHz - rc.PassEdgeHz)
+			}
+			within(t, "transition width (Hz)", info.StopEdge-info.PassEdge, rc.StopEdgeHz-rc.PassEdgeHz, tol)
 			shift := (info.PassEdge+info.StopEdge)/(rc.PassEdgeHz+rc.StopEdgeHz) - 1
 			t.Logf("transition centre moved by %+.2f %% from the published one", 100*shift)
 			if math.Abs(shift) > 0.05 {

@@ -4,7 +4,9 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -151,16 +153,10 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 	const maxIter = 60
 	for iter := 0; iter < maxIter; iter++ {
 		ip.fit(ext, x, d, w)
+		ip.errors(e, ext, x, d, w)
 		maxE := 0.0
-		k := 0
-		for i := range f {
-			if k < len(ext) && ext[k] == i {
-				e[i] = w[i] * (d[i] - ip.ys[k])
-				k++
-			} else {
-				e[i] = w[i] * (d[i] - ip.evalOff(x[i]))
-			}
-			maxE = math.Max(maxE, math.Abs(e[i]))
+		for _, v := range e {
+			maxE = math.Max(maxE, math.Abs(v))
 		}
 		// Accept extrema down to |δ| less rounding: δ can itself be near rounding
 		// level on the first iterations of long filters.
@@ -186,9 +182,10 @@ func remez(taps int, bands []Band, init []float64, density int, tg target) (h, e
 	if !(worst-math.Abs(ip.delta) <= 1e-9*worst) {
 		// The set changed on the last step: measure the final fit.
 		ip.fit(ext, x, d, w)
+		ip.errors(e, ext, x, d, w)
 		worst = 0
-		for i := range f {
-			worst = math.Max(worst, math.Abs(w[i]*(d[i]-ip.eval(x[i]))))
+		for _, v := range e {
+			worst = math.Max(worst, math.Abs(v))
 		}
 	}
 	extF = make([]float64, len(ext))
@@ -215,22 +212,26 @@ func (p *interpolant) fit(ext []int, x, d, w []float64) {
 	}
 	// Barycentric weights 1/∏(x_k − x_j), scaled by powers of two to stay finite.
 	exps := make([]int, n)
-	maxExp := math.MinInt
-	for k := range n {
-		m, ex := 1.0, 0
-		for j := range n {
-			if j == k {
-				continue
+	parallel(n, n*n, func(lo, hi int) {
+		for k := lo; k < hi; k++ {
+			m, ex := 1.0, 0
+			for j := range n {
+				if j == k {
+					continue
+				}
+				m *= p.xs[k] - p.xs[j]
+				if j&15 == 15 {
+					fr, e2 := math.Frexp(m)
+					m, ex = fr, ex+e2
+				}
 			}
-			m *= p.xs[k] - p.xs[j]
-			if j&15 == 15 {
-				fr, e2 := math.Frexp(m)
-				m, ex = fr, ex+e2
-			}
+			fr, e2 := math.Frexp(m)
+			p.bw[k], exps[k] = 1/fr, -(ex + e2)
 		}
-		fr, e2 := math.Frexp(m)
-		p.bw[k], exps[k] = 1/fr, -(ex + e2)
-		maxExp = max(maxExp, exps[k])
+	})
+	maxExp := math.MinInt
+	for _, v := range exps {
+		maxExp = max(maxExp, v)
 	}
 	for k := range n {
 		p.bw[k] = math.Ldexp(p.bw[k], exps[k]-maxExp)
@@ -249,6 +250,49 @@ func (p *interpolant) fit(ext []int, x, d, w []float64) {
 		sign = -sign
 	}
 }
+
+// errors sets the weighted error e[i] = w[i]·(d[i] − p(x[i])) on the grid,
+// whose nodes are the grid points ext (increasing). The O(nodes × grid) sum is
+// the exchange's cost: on large grids it is split over GOMAXPROCS goroutines,
+// each point computed as in one (the same result).
+func (p *interpolant) errors(e []float64, ext []int, x, d, w []float64) {
+	span := func(lo, hi int) {
+		k := sort.SearchInts(ext, lo)
+		for i := lo; i < hi; i++ {
+			if k < len(ext) && ext[k] == i {
+				e[i] = w[i] * (d[i] - p.ys[k])
+				k++
+			} else {
+				e[i] = w[i] * (d[i] - p.evalOff(x[i]))
+			}
+		}
+	}
+	parallel(len(e), len(e)*len(ext), span)
+}
+
+// parallel calls span over 0 to n split in up to GOMAXPROCS contiguous parts,
+// one goroutine each, when the work (in inner-loop terms) is worth it; each
+// index is computed as it would be in one call, so the result is the same.
+func parallel(n, work int, span func(lo, hi int)) {
+	parts := min(runtime.GOMAXPROCS(0), work/parallelWork, n)
+	if parts < 2 {
+		span(0, n)
+		return
+	}
+	var wg sync.WaitGroup
+	for j := range parts {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			span(j*n/parts, (j+1)*n/parts)
+		}()
+	}
+	wg.Wait()
+}
+
+// parallelWork is the number of interpolant terms below which errors does not
+// start goroutines (a few hundred microseconds of work).
+const parallelWork = 1 << 17
 
 // evalOff is eval at an x that is none of the nodes.
 func (p *interpolant) evalOff(x float64) float64 {
@@ -369,33 +413,38 @@ func extrema(e []float64, bandEnd []int, thr float64, want int) ([]int, bool) {
 func impulse(taps int, p func(x float64) float64) []float64 {
 	L := taps
 	amp := make([]float64, L)
-	for m := range amp {
-		om := 2 * math.Pi * float64(m) / float64(L)
-		amp[m] = p(math.Cos(om))
-		if L%2 == 0 {
-			amp[m] *= math.Cos(om / 2)
+	parallel(L, L*L/2, func(lo, hi int) {
+		for m := lo; m < hi; m++ {
+			om := 2 * math.Pi * float64(m) / float64(L)
+			amp[m] = p(math.Cos(om))
+			if L%2 == 0 {
+				amp[m] *= math.Cos(om / 2)
+			}
 		}
-	}
+	})
 	// cos(π·j/L) for j mod 2L: ω_m·(n − (L−1)/2) = π·m·(2n − L + 1)/L.
 	tab := make([]float64, 2*L)
 	for j := range tab {
 		tab[j] = math.Cos(math.Pi * float64(j) / float64(L))
 	}
 	h := make([]float64, L)
-	for n := 0; n < (L+1)/2; n++ {
-		k := 2*n - L + 1
-		k = ((k % (2 * L)) + 2*L) % (2 * L)
-		s, j := 0.0, 0
-		for m := 0; m < L; m++ {
-			s += amp[m] * tab[j]
-			j += k
-			if j >= 2*L {
-				j -= 2 * L
+	half := (L + 1) / 2
+	parallel(half, half*L, func(lo, hi int) {
+		for n := lo; n < hi; n++ {
+			k := 2*n - L + 1
+			k = ((k % (2 * L)) + 2*L) % (2 * L)
+			s, j := 0.0, 0
+			for m := 0; m < L; m++ {
+				s += amp[m] * tab[j]
+				j += k
+				if j >= 2*L {
+					j -= 2 * L
+				}
 			}
+			h[n] = s / float64(L)
+			h[L-1-n] = h[n]
 		}
-		h[n] = s / float64(L)
-		h[L-1-n] = h[n]
-	}
+	})
 	return h
 }
 
