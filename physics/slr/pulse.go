@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/cmplx"
 
 	"Nutate/physics/shape"
 )
@@ -236,6 +237,13 @@ func design(ctx context.Context, spec Spec, c shape.Common, gamma float64, sugge
 	}
 	a, b, scaled := polynomials(h, flip, margin, cep)
 	rf := Inverse(a, b)
+	// A design that failed numerically (an exchange that did not settle and
+	// an ill-conditioned fallback) can come out as a near-zero pulse: refuse
+	// it rather than hand on a pulse that does not turn as asked.
+	if got := onResonanceFlip(rf); !(math.Abs(got-flip) <= maxFlipShortfall) {
+		return fail("the design failed for tbw %g on %d samples (%s): it turns %.4g° on resonance, want %.4g°; try another tbw or fewer samples",
+			tbw, n, method, got*180/math.Pi, flip*180/math.Pi)
+	}
 	p := &shape.Pulse{
 		Shape:     "slr",
 		Gamma:     gamma,
@@ -343,4 +351,28 @@ func sampling(c shape.Common, tbw float64) (int, float64, error) {
 // own profile.
 func slice(p *shape.Pulse, c shape.Common) error {
 	return shape.SetSlice(p, c)
+}
+
+// maxFlipShortfall bounds how far a design's on-resonance rotation may fall
+// from its flip (1°; minimum-phase 180° designs keep |β| a little below 1 and
+// turn about 179.7°).
+const maxFlipShortfall = math.Pi / 180
+
+// onResonanceFlip is the rotation angle of the hard-pulse sequence rf
+// (γ·B1·Δt per sample) on resonance: the Cayley–Klein parameters of each
+// sample, α = cos(θ/2), β = −i·e^{iφ}·sin(θ/2), composed in time order, give
+// the flip 2·asin|β| (Pauly et al. 1991).
+func onResonanceFlip(rf []complex128) float64 {
+	a, b := complex(1, 0), complex(0, 0)
+	for _, r := range rf {
+		th := cmplx.Abs(r)
+		if th == 0 {
+			continue
+		}
+		s, c := math.Sincos(th / 2)
+		aj := complex(c, 0)
+		bj := complex(0, -s) * (r / complex(th, 0))
+		a, b = aj*a-cmplx.Conj(bj)*b, bj*a+cmplx.Conj(aj)*b
+	}
+	return 2 * math.Asin(math.Min(1, cmplx.Abs(b)))
 }

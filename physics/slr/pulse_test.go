@@ -437,3 +437,46 @@ func TestOffCentreRotationMinimumPhase(t *testing.T) {
 		}
 	}
 }
+
+// A design that collapses numerically (linear-phase refocusing, tbw 8 on 2048
+// samples: the exchange settles on a near-zero filter) is refused with the
+// rotation it reached, not handed on as a pulse that does not turn.
+func TestCollapsedDesignRefused(t *testing.T) {
+	g := proton(t)
+	c := shape.NewCommon()
+	c.Duration, c.Samples = 8e-3, 2048
+	spec := NewSpec(shape.RoleRefocus)
+	spec.TBW = 8
+	p, err := Pulse(spec, c, g)
+	if err == nil {
+		rf := make([]complex128, len(p.Wave.B1))
+		for i, b := range p.Wave.B1 {
+			rf[i] = b * complex(g*p.Wave.Dwell[i], 0)
+		}
+		if got := onResonanceFlip(rf); math.Abs(got-math.Pi) > maxFlipShortfall {
+			t.Fatalf("got a pulse turning %.4g°, want 180° or an error", got*180/math.Pi)
+		}
+		return // the design no longer collapses: nothing to refuse
+	}
+	if !strings.Contains(err.Error(), "the design failed") {
+		t.Fatalf("got %v, want the design failure named", err)
+	}
+}
+
+// TestOnResonanceFlipHardPulses: onResonanceFlip agrees with the closed form of a hard pulse split into
+// samples and with a train of two 90° halves of opposite phase (no net turn).
+func TestOnResonanceFlipHardPulses(t *testing.T) {
+	rf := make([]complex128, 64)
+	for i := range rf {
+		rf[i] = complex(math.Pi/2/64, 0)
+	}
+	if got := onResonanceFlip(rf); math.Abs(got-math.Pi/2) > 1e-12 {
+		t.Errorf("90° in 64 samples: got %.15g°", got*180/math.Pi)
+	}
+	for i := 32; i < 64; i++ {
+		rf[i] = -rf[i]
+	}
+	if got := onResonanceFlip(rf); got > 1e-12 {
+		t.Errorf("+90° then −90°: got %.15g°", got*180/math.Pi)
+	}
+}
