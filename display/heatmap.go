@@ -1,6 +1,7 @@
 package display
 
 import (
+	"encoding/json"
 	"fmt"
 	"image"
 	"image/color"
@@ -36,8 +37,13 @@ const maxPixels = 640
 // positive values) is drawn logarithmically: cells span geometric midpoints,
 // ticks fall at 1, 2, 5 × powers of ten as on a profile, and the contour is
 // interpolated in the logarithm of the axis values.
-func (m Map) Bundles() []Bundle {
-	return figureBundles(m, m.SVG(), m.Title, m.caption(), m.table(), m.JSON())
+func (m Map) Bundles() []Bundle { return m.BundlesWith(m.JSON()) }
+
+// BundlesWith is Bundles with data in place of m.JSON() under ResultMIME (the
+// data of a decimated copy of a large map), so that the JSON of every cell is
+// never built only to be dropped.
+func (m Map) BundlesWith(data json.RawMessage) []Bundle {
+	return figureBundles(m, m.SVG(), m.Title, m.caption(), m.table(), data)
 }
 
 // Bundle is the figure of Bundles alone.

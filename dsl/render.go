@@ -42,7 +42,6 @@ const maxJSONCells = 2500
 // and column (the first of each k, k the same on both axes), says so in a
 // "decimated" field, and the caption says so too.
 func mapBundle(m display.Map) figureOut {
-	out := figureOut{fig: m, bundles: m.Bundles()}
 	ny := len(m.Z)
 	nx := len(m.X.Values)
 	if ny > 0 {
@@ -50,7 +49,7 @@ func mapBundle(m display.Map) figureOut {
 	}
 	ny = min(ny, len(m.Y.Values))
 	if nx*ny <= maxJSONCells {
-		return out
+		return figureOut{fig: m, bundles: m.Bundles()}
 	}
 	k := 1
 	for (nx+k-1)/k*((ny+k-1)/k) > maxJSONCells {
@@ -66,7 +65,8 @@ func mapBundle(m display.Map) figureOut {
 	note := fmt.Sprintf("the data holds %d × %d of the %d × %d points (every %s row and column); `export sweep` writes them all",
 		len(d.X.Values), len(d.Y.Values), nx, ny, ordinal(k))
 	head, _ := json.Marshal(map[string]any{"points": []int{nx, ny}, "shown": []int{len(d.X.Values), len(d.Y.Values)}, "one_in": k, "note": note})
-	decimate(out.bundles[0], d.JSON(), head, note)
+	out := figureOut{fig: m, bundles: m.BundlesWith(d.JSON())}
+	decimate(out.bundles[0], out.bundles[0][display.ResultMIME].(json.RawMessage), head, note)
 	return out
 }
 
