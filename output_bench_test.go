@@ -1,3 +1,5 @@
+//go:build unix
+
 package main
 
 import (
@@ -5,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"syscall"
 	"testing"
 	"time"
 
@@ -35,7 +38,7 @@ func BenchmarkMapOutput(b *testing.B) {
 		b.Fatal(err)
 	}
 	const sweep = "sweep p over offset -2 kHz to 2 kHz points 1000, b1 0.5 to 1.5 points 1000"
-	var shown, exported time.Duration
+	var shown, exported, cpu, shownCPU time.Duration
 	var shownBytes, exportBytes, wire uint64
 	for b.Loop() {
 		var start time.Time
@@ -44,6 +47,8 @@ func BenchmarkMapOutput(b *testing.B) {
 			Progress: func(_ string, done, total int) {
 				if done >= total {
 					runtime.ReadMemStats(&before)
+					cpu -= cpuTime()
+					shownCPU -= cpuTime()
 					start = time.Now()
 				}
 			},
@@ -68,12 +73,14 @@ func BenchmarkMapOutput(b *testing.B) {
 			b.Fatal("the sweep reported no progress")
 		}
 		shown += time.Since(start)
+		shownCPU += cpuTime()
 		runtime.ReadMemStats(&mid)
 		start = time.Now()
 		if err := s.Exec(ctx, `export sweep to "map.csv"`, dsl.Sink{}); err != nil {
 			b.Fatal(err)
 		}
 		exported += time.Since(start)
+		cpu += cpuTime()
 		runtime.ReadMemStats(&after)
 		shownBytes += mid.TotalAlloc - before.TotalAlloc
 		exportBytes += after.TotalAlloc - mid.TotalAlloc
@@ -84,9 +91,21 @@ func BenchmarkMapOutput(b *testing.B) {
 	n := float64(b.N)
 	b.ReportMetric(float64((shown+exported).Milliseconds())/n, "output-ms")
 	b.ReportMetric(float64(shownBytes+exportBytes)/1e6/n, "output-MB")
+	b.ReportMetric(float64(cpu.Milliseconds())/n, "output-cpu-ms")
 	b.ReportMetric(float64(shown.Milliseconds())/n, "shown-ms")
+	b.ReportMetric(float64(shownCPU.Milliseconds())/n, "shown-cpu-ms")
 	b.ReportMetric(float64(shownBytes)/1e6/n, "shown-MB")
 	b.ReportMetric(float64(exported.Milliseconds())/n, "export-ms")
 	b.ReportMetric(float64(exportBytes)/1e6/n, "export-MB")
 	b.ReportMetric(float64(wire)/1e6/n, "wire-MB")
+}
+
+// cpuTime is the process's user and system CPU time so far (every thread, the
+// garbage collector's included).
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }

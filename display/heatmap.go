@@ -391,12 +391,17 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 			var n int
 			for j := yr[0]; j < yr[1]; j++ {
 				for i := xr[0]; i < xr[1]; i++ {
-					if v := r.z[j][i]; finite(v) {
-						sum += v
-						s, c := math.Sincos(2 * math.Pi * (v - r.zlo) / (r.zhi - r.zlo))
-						sc, ss = sc+c, ss+s
-						n++
+					v := r.z[j][i]
+					if !finite(v) {
+						continue
 					}
+					n++
+					if !r.cyclic {
+						sum += v
+						continue
+					}
+					s, c := math.Sincos(2 * math.Pi * (v - r.zlo) / (r.zhi - r.zlo))
+					sc, ss = sc+c, ss+s
 				}
 			}
 			idx := uint8(rampSize)

@@ -70,6 +70,28 @@ func mapBundle(m display.Map) figureOut {
 	return out
 }
 
+// mapRows lays out the values of a two-axis sweep (point ix·n1+iy) as a map's
+// rows, Z[iy][ix] with the first axis horizontal: one array for all rows,
+// filled tile by tile so that both the reads and the writes stay in cache.
+func mapRows(v []float64, n0, n1 int) [][]float64 {
+	flat := make([]float64, n0*n1)
+	z := make([][]float64, n1)
+	for iy := range z {
+		z[iy] = flat[iy*n0 : (iy+1)*n0 : (iy+1)*n0]
+	}
+	const tile = 32
+	for ix0 := 0; ix0 < n0; ix0 += tile {
+		for iy0 := 0; iy0 < n1; iy0 += tile {
+			for ix := ix0; ix < min(ix0+tile, n0); ix++ {
+				for iy := iy0; iy < min(iy0+tile, n1); iy++ {
+					flat[iy*n0+ix] = v[ix*n1+iy]
+				}
+			}
+		}
+	}
+	return z
+}
+
 // every keeps v[0], v[k], v[2k], ...
 func every(v []float64, k int) []float64 {
 	if v == nil {
