@@ -38,7 +38,7 @@ func BenchmarkMapOutput(b *testing.B) {
 		b.Fatal(err)
 	}
 	const sweep = "sweep p over offset -2 kHz to 2 kHz points 1000, b1 0.5 to 1.5 points 1000"
-	var shown, exported, cpu, shownCPU time.Duration
+	var shown, exported, cpu, shownCPU, wireTime time.Duration
 	var shownBytes, exportBytes, wire uint64
 	for b.Loop() {
 		var start time.Time
@@ -53,6 +53,8 @@ func BenchmarkMapOutput(b *testing.B) {
 				}
 			},
 			Display: func(bd display.Bundle) {
+				t0 := time.Now()
+				defer func() { wireTime += time.Since(t0) }()
 				typ, content, err := kernel.Output{Data: bd}.Encode()
 				if err != nil {
 					b.Fatal(err)
@@ -98,6 +100,7 @@ func BenchmarkMapOutput(b *testing.B) {
 	b.ReportMetric(float64(exported.Milliseconds())/n, "export-ms")
 	b.ReportMetric(float64(exportBytes)/1e6/n, "export-MB")
 	b.ReportMetric(float64(wire)/1e6/n, "wire-MB")
+	b.ReportMetric(float64(wireTime.Microseconds())/1e3/n, "wire-ms")
 }
 
 // cpuTime is the process's user and system CPU time so far (every thread, the

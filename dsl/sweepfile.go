@@ -3,8 +3,10 @@ package dsl
 import (
 	"fmt"
 	"io"
+	"runtime"
 	"strconv"
 	"strings"
+	"sync"
 )
 
 // sweepTable is a sweep's data in long form: one row per point, the axis values
@@ -55,34 +57,96 @@ const sweepMarker = "# nutate sweep export"
 
 // writeCSV writes the table with its comment line and header row. Numbers are
 // written in the shortest form that reads back as the same float64; the axis
-// values, repeated over the rows, are formatted once.
+// values, repeated over the rows, are formatted once. Blocks of rows are
+// formatted on every core and written in order, with a few blocks in flight.
 func (t *sweepTable) writeCSV(w io.Writer) error {
 	if _, err := fmt.Fprintf(w, "%s: %s, %d points\n%s\n", sweepMarker, t.title, t.points(), strings.Join(t.columns, ",")); err != nil {
 		return err
 	}
 	x0, x1 := formatAll(t.x0), formatAll(t.x1)
-	const flush = 64 << 10
-	buf := make([]byte, 0, flush+4096)
-	for i := range t.points() {
-		buf = append(buf, x0[i/t.n1]...)
-		if x1 != nil {
-			buf = append(buf, ',')
-			buf = append(buf, x1[i%t.n1]...)
+	rows := func(b []byte, lo, hi int) []byte {
+		for i := lo; i < hi; i++ {
+			b = append(b, x0[i/t.n1]...)
+			if x1 != nil {
+				b = append(b, ',')
+				b = append(b, x1[i%t.n1]...)
+			}
+			for _, c := range t.curves {
+				b = append(b, ',')
+				b = strconv.AppendFloat(b, c[i], 'g', -1, 64)
+			}
+			b = append(b, '\n')
 		}
-		for _, c := range t.curves {
-			buf = append(buf, ',')
-			buf = strconv.AppendFloat(buf, c[i], 'g', -1, 64)
-		}
-		buf = append(buf, '\n')
-		if len(buf) >= flush {
-			if _, err := w.Write(buf); err != nil {
+		return b
+	}
+	const block = 4096 // rows
+	n := t.points()
+	blocks := (n + block - 1) / block
+	workers := min(runtime.GOMAXPROCS(0), blocks)
+	if workers <= 1 {
+		var b []byte
+		for lo := 0; lo < n; lo += block {
+			b = rows(b[:0], lo, min(lo+block, n))
+			if _, err := w.Write(b); err != nil {
 				return err
 			}
-			buf = buf[:0]
 		}
+		return nil
 	}
-	_, err := w.Write(buf)
-	return err
+	type job struct {
+		k   int
+		buf []byte
+	}
+	done := make([]chan []byte, blocks) // block k's text, sent once
+	for k := range done {
+		done[k] = make(chan []byte, 1)
+	}
+	free := make(chan []byte, 2*workers)               // the buffers: at most this many blocks in flight
+	width := len(x0[len(x0)-1]) + 2 + 24*len(t.curves) // a row, about
+	if x1 != nil {
+		width += len(x1[len(x1)-1])
+	}
+	for range cap(free) {
+		free <- make([]byte, 0, block*width)
+	}
+	jobs, stop := make(chan job), make(chan struct{})
+	go func() {
+		defer close(jobs)
+		for k := range blocks {
+			var b []byte
+			select {
+			case b = <-free:
+			case <-stop:
+				return
+			}
+			select {
+			case jobs <- job{k, b}:
+			case <-stop:
+				return
+			}
+		}
+	}()
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for j := range jobs {
+				lo := j.k * block
+				done[j.k] <- rows(j.buf[:0], lo, min(lo+block, n))
+			}
+		}()
+	}
+	defer wg.Wait()
+	defer close(stop)
+	for k := range blocks {
+		b := <-done[k]
+		if _, err := w.Write(b); err != nil {
+			return err
+		}
+		free <- b
+	}
+	return nil
 }
 
 // formatAll is each value of v in the shortest form that reads back the same
