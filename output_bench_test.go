@@ -87,6 +87,13 @@ func BenchmarkMapOutput(b *testing.B) {
 		shownBytes += mid.TotalAlloc - before.TotalAlloc
 		exportBytes += after.TotalAlloc - mid.TotalAlloc
 	}
+	// What the session keeps of the map (the sweep's table for export sweep,
+	// the figure for export figure) once the garbage is collected.
+	var held runtime.MemStats
+	runtime.GC()
+	runtime.ReadMemStats(&held)
+	runtime.KeepAlive(s)
+	b.ReportMetric(float64(held.HeapInuse)/1e6, "held-MB")
 	if fi, err := os.Stat(filepath.Join(dir, "map.csv")); err == nil {
 		b.ReportMetric(float64(fi.Size())/1e6, "csv-MB")
 	}
