@@ -89,7 +89,9 @@ func TestSweepCSVWriteError(t *testing.T) {
 }
 
 // BenchmarkSweepCSV measures `export sweep`'s formatting of a 1000 × 1000 map
-// (two axes, one curve; 57 MB of text) to a discarding writer.
+// (two axes, one curve; 57 MB of text) to a discarding writer. On the shared
+// 2-core development machine: 70-125 ms and 3.4 MB allocated per export
+// (before the rows were built flat and formatted in blocks, 1e6 row slices).
 func BenchmarkSweepCSV(b *testing.B) {
 	tb := csvTable(1000, 1000)
 	tb.curves = tb.curves[:1]
