@@ -221,9 +221,10 @@ func (d *dispatcher) execute(r request) (waiting []request) {
 		d.pub(r.msg, "execute_input", map[string]any{"code": c.Code, "execution_count": count})
 	}
 	emit := func(o Output) { d.emit(r.msg, o) }
-	t0, heap0 := time.Now(), allocatedBytes()
+	t0 := time.Now()
+	// After the reply, before the idle status (memory.go).
+	defer releaseAfter(allocatedBytes())
 	err := d.run(ctx, c.Code, emit)
-	releaseAfter(heap0)
 	if debugLog {
 		d.log.Printf("execute %s: %v", r.msg.Header.MsgID, time.Since(t0))
 	}
