@@ -149,6 +149,8 @@ type Map struct {
 	// with a colour wheel, so that both ends of the range share a colour, and
 	// cells sharing a pixel are averaged on the circle.
 	Cyclic bool
+
+	memo *mapMemo // set within one Bundles call (heatmap.go)
 }
 
 // Waveform is a pulse's samples against time for `describe`: amplitude (µT),

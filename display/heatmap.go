@@ -1,6 +1,7 @@
 package display
 
 import (
+	"encoding/json"
 	"fmt"
 	"image"
 	"image/color"
@@ -36,8 +37,25 @@ const maxPixels = 640
 // positive values) is drawn logarithmically: cells span geometric midpoints,
 // ticks fall at 1, 2, 5 × powers of ten as on a profile, and the contour is
 // interpolated in the logarithm of the axis values.
-func (m Map) Bundles() []Bundle {
-	return figureBundles(m, m.SVG(), m.Title, m.caption(), m.table(), m.JSON())
+func (m Map) Bundles() []Bundle { return m.BundlesWith(m.JSON()) }
+
+// BundlesWith is Bundles with data in place of m.JSON() under ResultMIME (the
+// data of a decimated copy of a large map), so that the JSON of every cell is
+// never built only to be dropped.
+func (m Map) BundlesWith(data json.RawMessage) []Bundle {
+	m.memo = &mapMemo{} // this copy's: the SVG and the PNG share the work on the cells
+	return figureBundles(m, m.SVG(), m.Title, m.caption(), m.table(), data)
+}
+
+// mapMemo keeps what drawing a map computes from every cell, so that the SVG
+// and the PNG rendition of one Bundles call compute it once: the contour, and
+// the raster image with the pixel grid it was made for (reused only for the
+// same grid, so both renditions stay what they would be alone).
+type mapMemo struct {
+	lines    contourLines
+	hasLines bool
+	img      *image.Paletted
+	imgKey   [4]int // pixels across and down, the reversals of x and y
 }
 
 // Bundle is the figure of Bundles alone.
@@ -145,7 +163,14 @@ func (m Map) draw(nc canvasMaker) vg.CanvasWriterTo {
 	var legend []legendItem
 	var lines contourLines
 	if m.HasContour && nx > 0 && finite(m.Contour) {
-		lines = mapContour(xl, yl, m.Z[:ny], m.Contour)
+		if m.memo != nil && m.memo.hasLines {
+			lines = m.memo.lines
+		} else {
+			lines = mapContour(xl, yl, m.Z[:ny], m.Contour)
+			if m.memo != nil {
+				m.memo.lines, m.memo.hasLines = lines, true
+			}
+		}
 	}
 	if m.HasContour {
 		name := fmt.Sprintf("%s = %s", orDefault(m.Quantity, "z"), minus(strings.TrimSpace(Num(m.Contour, 4)+" "+m.Unit)))
@@ -180,7 +205,7 @@ func (m Map) draw(nc canvasMaker) vg.CanvasWriterTo {
 	xl.setAxis(&p.X, m.X.Reverse)
 	yl.setAxis(&p.Y, m.Y.Reverse)
 	if nx > 0 {
-		r := &raster{x: xl, y: yl, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi, cyclic: m.Cyclic}
+		r := &raster{x: xl, y: yl, z: m.Z[:ny], nx: nx, zlo: zlo, zhi: zhi, cyclic: m.Cyclic, memo: m.memo}
 		p.Add(r)
 		if len(lines) > 0 {
 			p.Add(lines)
@@ -344,6 +369,7 @@ type raster struct {
 	nx       int
 	zlo, zhi float64
 	cyclic   bool
+	memo     *mapMemo // nil: nothing kept
 }
 
 func (r *raster) DataRange() (xmin, xmax, ymin, ymax float64) {
@@ -363,6 +389,12 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 	toInput(xs, r.x.layout)
 	toInput(ys, r.y.layout)
 	// Pixels run left to right and top to bottom; cells run along the axes.
+	key := [4]int{hx, hy, b2i(x0 > x1), b2i(y0 < y1)}
+	rect := vg.Rectangle{Min: vg.Point{X: min(x0, x1), Y: min(y0, y1)}, Max: vg.Point{X: max(x0, x1), Y: max(y0, y1)}}
+	if r.memo != nil && r.memo.img != nil && r.memo.imgKey == key {
+		c.DrawImage(rect, r.memo.img)
+		return
+	}
 	if x0 > x1 {
 		reverseRanges(xs)
 	}
@@ -385,12 +417,17 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 			var n int
 			for j := yr[0]; j < yr[1]; j++ {
 				for i := xr[0]; i < xr[1]; i++ {
-					if v := r.z[j][i]; finite(v) {
-						sum += v
-						s, c := math.Sincos(2 * math.Pi * (v - r.zlo) / (r.zhi - r.zlo))
-						sc, ss = sc+c, ss+s
-						n++
+					v := r.z[j][i]
+					if !finite(v) {
+						continue
 					}
+					n++
+					if !r.cyclic {
+						sum += v
+						continue
+					}
+					s, c := math.Sincos(2 * math.Pi * (v - r.zlo) / (r.zhi - r.zlo))
+					sc, ss = sc+c, ss+s
 				}
 			}
 			idx := uint8(rampSize)
@@ -403,8 +440,18 @@ func (r *raster) Plot(c draw.Canvas, p *plot.Plot) {
 			img.SetColorIndex(px, py, idx)
 		}
 	}
-	rect := vg.Rectangle{Min: vg.Point{X: min(x0, x1), Y: min(y0, y1)}, Max: vg.Point{X: max(x0, x1), Y: max(y0, y1)}}
-	c.DrawImage(rect, blocks(img, hx/len(xs), hy/len(ys)))
+	out := blocks(img, hx/len(xs), hy/len(ys))
+	if r.memo != nil {
+		r.memo.img, r.memo.imgKey = out, key
+	}
+	c.DrawImage(rect, out)
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }
 
 // blocks enlarges img by whole factors (nearest neighbour), so that each cell

@@ -91,7 +91,11 @@ func (r rounding) append(b []byte, v float64) []byte {
 func jsonFloats(v []float64) []byte { return jsonRounded(v, sigRounding) }
 
 func jsonRounded(v []float64, r rounding) []byte {
-	b := make([]byte, 0, 2+len(v)*10)
+	return appendRounded(make([]byte, 0, 2+len(v)*10), v, r)
+}
+
+// appendRounded appends v as a JSON array of numbers rounded by r.
+func appendRounded(b []byte, v []float64, r rounding) []byte {
 	b = append(b, '[')
 	for i, x := range v {
 		if i > 0 {
@@ -173,18 +177,28 @@ func (p Profile) JSON() json.RawMessage {
 
 // JSON is the map's data as its bundle carries it under ResultMIME.
 func (m Map) JSON() json.RawMessage {
-	rows := make([][]byte, len(m.Z))
+	// The rows go straight into one array (no slice per row).
 	rd := roundingFor(m.Unit, m.Z...)
-	for i, r := range m.Z {
-		rows[i] = jsonRounded(r, rd)
+	cells := 0
+	for _, r := range m.Z {
+		cells += len(r)
 	}
+	z := make([]byte, 0, 2+len(m.Z)+cells*10)
+	z = append(z, '[')
+	for i, r := range m.Z {
+		if i > 0 {
+			z = append(z, ',')
+		}
+		z = appendRounded(z, r, rd)
+	}
+	z = append(z, ']')
 	contour := []byte("null")
 	if m.HasContour {
 		contour = jsonNum(m.Contour)
 	}
 	o := newObject().str("kind", "map").str("title", m.Title).str("pulse", m.Pulse).
 		str("quantity", m.Quantity).str("unit", m.Unit).raw("x", m.X.json()).raw("y", m.Y.json()).
-		raw("z", jsonArray(rows)).raw("contour", contour).raw("summary", m.Summary.json())
+		raw("z", z).raw("contour", contour).raw("summary", m.Summary.json())
 	if m.Label != "" {
 		o = o.str("label", m.Label)
 	}

@@ -165,7 +165,7 @@ func stateMemory(st *state) memoryUse {
 		m.def(b.pulse)
 	}
 	if t := st.last; t != nil {
-		m.bytes += int64(len(t.rows)) * (24 + 8*int64(len(t.columns)))
+		m.bytes += t.memory()
 	}
 	return m
 }

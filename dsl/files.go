@@ -101,7 +101,7 @@ func (ev *evaluator) export(s *ExportStmt) error {
 		if err != nil {
 			return err
 		}
-		ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %s, columns %s", t.title, shown, plural(len(t.rows), "row"), strings.Join(t.columns, ", "))))
+		ev.emit(textBundle(fmt.Sprintf("exported %s to %s: %s, columns %s", t.title, shown, plural(t.points(), "row"), strings.Join(t.columns, ", "))))
 		return nil
 	}
 	d, err := ev.pulseNamed(s.Name)

@@ -25,6 +25,10 @@
 //     kernel_info_request.
 //   - heartbeat echoes; stdin accepts connections (the kernel never asks for
 //     input).
+//   - memory: a cell that allocated 64 MiB or more (a large map) hands the
+//     heap it no longer uses back to the system after its reply and before its
+//     idle status, so an idle kernel's resident size comes back near where
+//     it was (memory.go).
 //   - Run also shuts down when the parent named by JPY_PARENT_PID dies (a
 //     process id on Unix, an inherited process handle on Windows, as
 //     jupyter_client sets it). On Unix SIGINT interrupts and SIGTERM shuts

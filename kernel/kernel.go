@@ -222,6 +222,8 @@ func (d *dispatcher) execute(r request) (waiting []request) {
 	}
 	emit := func(o Output) { d.emit(r.msg, o) }
 	t0 := time.Now()
+	// After the reply, before the idle status (memory.go).
+	defer releaseAfter(allocatedBytes())
 	err := d.run(ctx, c.Code, emit)
 	if debugLog {
 		d.log.Printf("execute %s: %v", r.msg.Header.MsgID, time.Since(t0))
@@ -311,31 +313,19 @@ func (d *dispatcher) replyError(r request, msgType, ename, evalue string, extra 
 
 // emit publishes one output of a running cell.
 func (d *dispatcher) emit(req Message, o Output) {
-	if o.Clear {
-		d.pub(req, "clear_output", map[string]any{"wait": false})
-		return
+	typ, body, err := o.Encode()
+	if err != nil {
+		// A bundle holds strings, numbers and JSON from the executor; a failure
+		// is a bug, reported rather than sent half-formed.
+		d.log.Printf("cannot encode %s: %v", typ, err)
+		body = []byte("{}")
 	}
-	if o.Stream != "" {
-		d.pub(req, "stream", map[string]any{"name": o.Stream, "text": o.Text})
-		return
-	}
-	data := o.Data
-	if data == nil {
-		data = map[string]any{}
-	}
-	meta := o.Metadata
-	if meta == nil {
-		meta = map[string]any{}
-	}
-	content := map[string]any{"data": data, "metadata": meta}
-	typ := "display_data"
-	if o.DisplayID != "" {
-		content["transient"] = map[string]any{"display_id": o.DisplayID}
-		if o.Update {
-			typ = "update_display_data"
-		}
-	}
-	d.pub(req, typ, content)
+	d.publish(Message{
+		Header:   newHeader(typ, d.session),
+		Parent:   req.rawHeader,
+		Metadata: json.RawMessage("{}"),
+		Content:  body,
+	})
 }
 
 // clampCursor keeps a client's cursor (unicode code points) inside code.

@@ -27,7 +27,6 @@ const MaxJSONCells = 2500
 // and column (the first of each k, k the same on both axes), says so in a
 // "decimated" field, and the caption says so too.
 func MapBundle(m display.Map) Figure {
-	out := Figure{Fig: m, Bundles: m.Bundles()}
 	ny := len(m.Z)
 	nx := len(m.X.Values)
 	if ny > 0 {
@@ -35,7 +34,7 @@ func MapBundle(m display.Map) Figure {
 	}
 	ny = min(ny, len(m.Y.Values))
 	if nx*ny <= MaxJSONCells {
-		return out
+		return Figure{Fig: m, Bundles: m.Bundles()}
 	}
 	k := 1
 	for (nx+k-1)/k*((ny+k-1)/k) > MaxJSONCells {
@@ -51,8 +50,31 @@ func MapBundle(m display.Map) Figure {
 	note := fmt.Sprintf("the data holds %d × %d of the %d × %d points (every %s row and column); `export sweep` writes them all",
 		len(d.X.Values), len(d.Y.Values), nx, ny, ordinal(k))
 	head, _ := json.Marshal(map[string]any{"points": []int{nx, ny}, "shown": []int{len(d.X.Values), len(d.Y.Values)}, "one_in": k, "note": note})
-	decimate(out.Bundles[0], d.JSON(), head, note)
+	out := Figure{Fig: m, Bundles: m.BundlesWith(d.JSON())}
+	decimate(out.Bundles[0], out.Bundles[0][display.ResultMIME].(json.RawMessage), head, note)
 	return out
+}
+
+// mapRows lays out the values of a two-axis sweep (point ix·n1+iy) as a map's
+// rows, Z[iy][ix] with the first axis horizontal: one array for all rows,
+// filled tile by tile so that both the reads and the writes stay in cache.
+func mapRows(v []float64, n0, n1 int) [][]float64 {
+	flat := make([]float64, n0*n1)
+	z := make([][]float64, n1)
+	for iy := range z {
+		z[iy] = flat[iy*n0 : (iy+1)*n0 : (iy+1)*n0]
+	}
+	const tile = 32
+	for ix0 := 0; ix0 < n0; ix0 += tile {
+		for iy0 := 0; iy0 < n1; iy0 += tile {
+			for ix := ix0; ix < min(ix0+tile, n0); ix++ {
+				for iy := iy0; iy < min(iy0+tile, n1); iy++ {
+					flat[iy*n0+ix] = v[ix*n1+iy]
+				}
+			}
+		}
+	}
+	return z
 }
 
 // every keeps v[0], v[k], v[2k], ...

@@ -230,14 +230,7 @@ func ColourRange(q string) (lo, hi float64) {
 // MapFigure draws one quantity of one pulse over two axes with its summary.
 func MapFigure(v Map) Figure {
 	c, n0, n1 := v.Curve, v.N0, v.N1
-	// Z[iy][ix] with the first axis horizontal.
-	z := make([][]float64, n1)
-	for iy := range z {
-		z[iy] = make([]float64, n0)
-		for ix := range z[iy] {
-			z[iy][ix] = c.Values[ix*n1+iy]
-		}
-	}
+	z := mapRows(c.Values, n0, n1)
 	axis := func(a Axis) display.Axis {
 		return display.Axis{Label: a.Kind, Unit: a.Unit, Values: a.Values, Reverse: a.Reverse, Log: a.Log}
 	}
