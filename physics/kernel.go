@@ -3,6 +3,7 @@ package physics
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 // steps holds the per-sample terms that every isochromat shares, computed once per
@@ -14,6 +15,9 @@ type steps struct {
 	// Relaxation: dt (per substep), γB1x, γB1y, γ|B1|, γG, and the substeps.
 	dt, wx, wy, w1, g []float64
 	sub               []int
+	// wide[j]: some spin's rotation at step j may exceed the range of the angle
+	// halving (it then takes math.Sincos, which only the scalar kernel does).
+	wide []bool
 }
 
 // newSteps tabulates the shared terms; it refuses a sample whose rotation angle
@@ -24,6 +28,7 @@ func newSteps(w *Waveform, gamma, maxOff, maxPos, maxScale float64) (*steps, err
 	st := &steps{n: n}
 	buf := make([]float64, 5*n)
 	st.h, st.wxh, st.wyh, st.p, st.gh = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:]
+	st.wide = make([]bool, n)
 	for j, b1 := range w.B1 {
 		h := w.Dwell[j] / 2
 		st.h[j] = h
@@ -36,6 +41,9 @@ func newSteps(w *Waveform, gamma, maxOff, maxPos, maxScale float64) (*steps, err
 		zh := maxOff*h + maxPos*math.Abs(st.gh[j])
 		if x := maxScale*maxScale*st.p[j] + zh*zh; math.IsInf(x, 0) || math.IsNaN(x) {
 			return nil, fmt.Errorf("sample %d: the rotation angle overflows (B1 %g T, dwell %g s), want finite", j, b1, w.Dwell[j])
+		} else if x > 0.99*seriesMax*math.Ldexp(1, 2*halvingMax) {
+			// 0.99: a margin over the roundings of this bound.
+			st.wide[j] = true
 		}
 	}
 	return st, nil
@@ -60,14 +68,40 @@ const (
 	sinc5     = -1.0 / 39916800
 )
 
+// Angle halving extends the series to any angle: while x > seriesMax, x is divided
+// by 4 (the angle halved, exactly: a power of two), the series is summed at the
+// small angle, and the double-angle identities
+//
+//	cos 2θ = 1 − 2θ²·(sin θ/θ)²,   sin 2θ / 2θ = (sin θ/θ)·cos θ
+//
+// are applied once per halving (two multiplications and an FMA each). The first form
+// keeps cos 2θ accurate near 1 (no cancellation of 2cos²θ − 1). Each doubling adds
+// about one rounding to the angle's relative error, so the rotation stays within
+// 1e-14 of math.Sincos for |φ| ≤ 2^halvingMax/8 = 8 rad (tested in kernel_test.go);
+// larger angles, which need very long samples or absurd fields, take math.Sincos.
+const halvingMax = 6
+
 // cosSinc returns cos φ and sin φ / φ for x = φ² ≥ 0.
 func cosSinc(x float64) (c, s float64) {
 	if x <= seriesMax {
 		return cosSincSeries(x)
 	}
-	phi := math.Sqrt(x)
-	sn, cs := math.Sincos(phi)
-	return cs, sn / phi
+	x0, k := x, 0
+	for x > seriesMax && k <= halvingMax {
+		x *= 0.25
+		k++
+	}
+	if k > halvingMax {
+		phi := math.Sqrt(x0)
+		sn, cs := math.Sincos(phi)
+		return cs, sn / phi
+	}
+	c, s = cosSincSeries(x)
+	for ; k > 0; k-- {
+		c, s = math.FMA(-2*x*s, s, 1), s*c
+		x *= 4
+	}
+	return c, s
 }
 
 // cosSincSeries is cosSinc for x ≤ seriesMax, by Horner's rule with fused
@@ -78,7 +112,22 @@ func cosSincSeries(x float64) (c, s float64) {
 	return c, s
 }
 
-// rotateBlock composes the Cayley–Klein parameters of steps [j0, j1) into the
+// rotateBlock runs steps [j0, j1) for a block of spins: with the vector kernel
+// where the CPU has one (see vector_amd64.go) and no step needs math.Sincos,
+// and with the scalar kernel rotateScalar for the rest of the spins (fewer
+// than 4) or everywhere else. Both give the same results bit for bit (tested in
+// vector_test.go).
+func rotateBlock(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi []float64) {
+	k := 0
+	if useVector && !slices.Contains(st.wide[j0:j1], true) {
+		k = rotateVector(st, j0, j1, off, pos, scale, scale2, ar, ai, br, bi)
+	}
+	if k < len(off) {
+		rotateScalar(st, j0, j1, off[k:], pos[k:], scale[k:], scale2[k:], ar[k:], ai[k:], br[k:], bi[k:])
+	}
+}
+
+// rotateScalar composes the Cayley–Klein parameters of steps [j0, j1) into the
 // state (ar + i·ai, br + i·bi) of a block of spins, spin-minor so that the loop
 // body is one independent chain per spin.
 //
@@ -90,7 +139,7 @@ func cosSincSeries(x float64) (c, s float64) {
 //	αj = cos ψ + i·ωz·h·S,   βj = −ωy·h·S + i·ωx·h·S,
 //
 // and they compose as α ← αj·α − βj*·β, β ← βj·α + αj*·β.
-func rotateBlock(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi []float64) {
+func rotateScalar(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi []float64) {
 	n := len(off)
 	pos, scale, scale2 = pos[:n], scale[:n], scale2[:n]
 	ar, ai, br, bi = ar[:n], ai[:n], br[:n], bi[:n]

@@ -1,0 +1,10 @@
+//go:build !amd64
+
+package physics
+
+// haveVector is false where no vector kernel is written: the scalar kernel runs.
+var haveVector = false
+
+func rotateVector(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi []float64) int {
+	return 0
+}
