@@ -50,22 +50,32 @@ func newSteps(w *Waveform, gamma, maxOff, maxPos, maxScale float64) (*steps, err
 }
 
 // Power series in x = φ² of cos φ and of sin φ / φ (Abramowitz & Stegun 4.3.65,
-// 4.3.66), truncated after x⁵. For x ≤ seriesMax = 1/64 (|φ| ≤ 1/8 rad) the first
-// omitted terms are below x⁶/12! ≈ 3e-20 and x⁶/13! ≈ 2e-21, far under the double
-// precision unit roundoff 1.1e-16, so the series is as exact as math.Sincos.
-// Larger angles take math.Sincos.
+// 4.3.66), truncated after x⁹. For x ≤ seriesMax = 1 (|φ| ≤ 1 rad) the first
+// omitted terms are below x¹⁰/20! ≈ 4.1e-19 and x¹⁰/21! ≈ 2.0e-20, far under the
+// double precision unit roundoff 1.1e-16, so the series is as exact as math.Sincos
+// (within 2.3e-16, TestCosSinc). The range covers the steps of coarse waveforms
+// too (256 samples of a 10 ms pulse at ±6 kHz: |φ| ≤ 0.8 rad), so that they cost
+// no more per step than fine ones; larger angles take the angle halving below.
 const (
-	seriesMax = 1.0 / 64
+	seriesMax = 1
 	cos1      = -1.0 / 2
 	cos2      = 1.0 / 24
 	cos3      = -1.0 / 720
 	cos4      = 1.0 / 40320
 	cos5      = -1.0 / 3628800
+	cos6      = 1.0 / 479001600
+	cos7      = -1.0 / 87178291200
+	cos8      = 1.0 / 20922789888000
+	cos9      = -1.0 / 6402373705728000
 	sinc1     = -1.0 / 6
 	sinc2     = 1.0 / 120
 	sinc3     = -1.0 / 5040
 	sinc4     = 1.0 / 362880
 	sinc5     = -1.0 / 39916800
+	sinc6     = 1.0 / 6227020800
+	sinc7     = -1.0 / 1307674368000
+	sinc8     = 1.0 / 355687428096000
+	sinc9     = -1.0 / 121645100408832000
 )
 
 // Angle halving extends the series to any angle: while x > seriesMax, x is divided
@@ -77,9 +87,9 @@ const (
 // are applied once per halving (two multiplications and an FMA each). The first form
 // keeps cos 2θ accurate near 1 (no cancellation of 2cos²θ − 1). Each doubling adds
 // about one rounding to the angle's relative error, so the rotation stays within
-// 1e-14 of math.Sincos for |φ| ≤ 2^halvingMax/8 = 8 rad (tested in kernel_test.go);
+// 1e-14 of math.Sincos for |φ| ≤ 2^halvingMax = 8 rad (TestCosSincAnyAngle);
 // larger angles, which need very long samples or absurd fields, take math.Sincos.
-const halvingMax = 6
+const halvingMax = 3
 
 // cosSinc returns cos φ and sin φ / φ for x = φ² ≥ 0.
 func cosSinc(x float64) (c, s float64) {
@@ -107,8 +117,24 @@ func cosSinc(x float64) (c, s float64) {
 // cosSincSeries is cosSinc for x ≤ seriesMax, by Horner's rule with fused
 // multiply-adds.
 func cosSincSeries(x float64) (c, s float64) {
-	c = math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, cos5, cos4), cos3), cos2), cos1), 1)
-	s = math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, sinc5, sinc4), sinc3), sinc2), sinc1), 1)
+	c = math.FMA(x, cos9, cos8)
+	s = math.FMA(x, sinc9, sinc8)
+	c = math.FMA(x, c, cos7)
+	s = math.FMA(x, s, sinc7)
+	c = math.FMA(x, c, cos6)
+	s = math.FMA(x, s, sinc6)
+	c = math.FMA(x, c, cos5)
+	s = math.FMA(x, s, sinc5)
+	c = math.FMA(x, c, cos4)
+	s = math.FMA(x, s, sinc4)
+	c = math.FMA(x, c, cos3)
+	s = math.FMA(x, s, sinc3)
+	c = math.FMA(x, c, cos2)
+	s = math.FMA(x, s, sinc2)
+	c = math.FMA(x, c, cos1)
+	s = math.FMA(x, s, sinc1)
+	c = math.FMA(x, c, 1)
+	s = math.FMA(x, s, 1)
 	return c, s
 }
 
