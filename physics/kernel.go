@@ -50,13 +50,17 @@ func newSteps(w *Waveform, gamma, maxOff, maxPos, maxScale float64) (*steps, err
 }
 
 // Power series in x = φ² of cos φ and of sin φ / φ (Abramowitz & Stegun 4.3.65,
-// 4.3.66), truncated after x⁹. For x ≤ seriesMax = 1 (|φ| ≤ 1 rad) the first
-// omitted terms are below x¹⁰/20! ≈ 4.1e-19 and x¹⁰/21! ≈ 2.0e-20, far under the
-// double precision unit roundoff 1.1e-16, so the series is as exact as math.Sincos
-// (within 2.3e-16, TestCosSinc). The range covers the steps of coarse waveforms
-// too (256 samples of a 10 ms pulse at ±6 kHz: |φ| ≤ 0.8 rad), so that they cost
-// no more per step than fine ones; larger angles take the angle halving below.
+// 4.3.66). Fine samples take them truncated after x⁵: for x ≤ shortMax = 1/64
+// (|φ| ≤ 1/8 rad) the first omitted terms are below x⁶/12! ≈ 3e-20 and
+// x⁶/13! ≈ 2e-21. Coarser samples take them truncated after x⁹: for
+// x ≤ seriesMax = 1 (|φ| ≤ 1 rad) the first omitted terms are below
+// x¹⁰/20! ≈ 4.1e-19 and x¹⁰/21! ≈ 2.0e-20. Both are far under the double
+// precision unit roundoff 1.1e-16, so the series are as exact as math.Sincos
+// (within 2.3e-16, TestCosSinc). The longer one covers the steps of coarse
+// waveforms (256 samples of a 10 ms pulse at ±6 kHz: |φ| ≤ 0.8 rad) without
+// Sincos, sqrt or a division; larger angles take the angle halving below.
 const (
+	shortMax  = 1.0 / 64
 	seriesMax = 1
 	cos1      = -1.0 / 2
 	cos2      = 1.0 / 24
@@ -93,6 +97,9 @@ const halvingMax = 3
 
 // cosSinc returns cos φ and sin φ / φ for x = φ² ≥ 0.
 func cosSinc(x float64) (c, s float64) {
+	if x <= shortMax {
+		return cosSincShort(x)
+	}
 	if x <= seriesMax {
 		return cosSincSeries(x)
 	}
@@ -111,6 +118,14 @@ func cosSinc(x float64) (c, s float64) {
 		c, s = math.FMA(-2*x*s, s, 1), s*c
 		x *= 4
 	}
+	return c, s
+}
+
+// cosSincShort is cosSinc for x ≤ shortMax, by Horner's rule with fused
+// multiply-adds.
+func cosSincShort(x float64) (c, s float64) {
+	c = math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, cos5, cos4), cos3), cos2), cos1), 1)
+	s = math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, math.FMA(x, sinc5, sinc4), sinc3), sinc2), sinc1), 1)
 	return c, s
 }
 
@@ -178,8 +193,8 @@ func rotateScalar(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi
 				zh := off[i] * h
 				x := math.FMA(scale2[i], p, zh*zh)
 				var c, s float64
-				if x <= seriesMax {
-					c, s = cosSincSeries(x)
+				if x <= shortMax {
+					c, s = cosSincShort(x)
 				} else {
 					c, s = cosSinc(x)
 				}
@@ -199,8 +214,8 @@ func rotateScalar(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi
 			zh := math.FMA(off[i], h, pos[i]*gh)
 			x := math.FMA(scale2[i], p, zh*zh)
 			var c, s float64
-			if x <= seriesMax {
-				c, s = cosSincSeries(x)
+			if x <= shortMax {
+				c, s = cosSincShort(x)
 			} else {
 				c, s = cosSinc(x)
 			}

@@ -32,6 +32,7 @@ CONST4(vsinc4, 0x3EC71DE3A556C734)
 CONST4(vsinc5, 0xBE5AE64567F544E4)
 CONST4(vone, 0x3FF0000000000000)
 CONST4(vsmax, 0x3FF0000000000000)
+CONST4(vshort, 0x3F90000000000000)
 CONST4(vquarter, 0x3FD0000000000000)
 CONST4(vfour, 0x4010000000000000)
 CONST4(vmtwo, 0xC000000000000000)
@@ -57,7 +58,8 @@ CONST4(vsign, 0x8000000000000000)
 //
 // Registers: Y0–Y3 the state ar, ai, br, bi of the 4 spins; Y4 zh then qi; Y5 x
 // then ks; Y6 the halving count (int64 lanes) then qr; Y7 mask then qx; Y8 c;
-// Y9 s; Y10–Y13 scratch; Y15 zero.
+// Y9 s; Y10–Y12 scratch; Y13 the lanes with x ≤ shortMax, then scratch; Y14
+// all ones; Y15 zero.
 TEXT ·rotateAVX2(SB), NOSPLIT, $0-8
 	MOVQ a+0(FP), DI
 	MOVQ A_H(DI), R8
@@ -79,6 +81,7 @@ TEXT ·rotateAVX2(SB), NOSPLIT, $0-8
 	MOVQ A_BI(DI), AX
 	VMOVUPD (AX), Y3
 	VXORPD Y15, Y15, Y15
+	VPCMPEQQ Y14, Y14, Y14
 	XORQ AX, AX
 	TESTQ CX, CX
 	JEQ done
@@ -93,6 +96,11 @@ step:
 	VBROADCASTSD (R12)(AX*8), Y10
 	VFMADD231PD (R13), Y10, Y5
 
+	// All lanes with x ≤ shortMax: the short series alone.
+	VCMPPD $0x02, vshort<>(SB), Y5, Y13
+	VPTEST Y14, Y13
+	JCS short
+
 	// Halve while x > seriesMax, counting the halvings per lane.
 	VXORPD Y6, Y6, Y6
 halve:
@@ -105,7 +113,7 @@ halve:
 	JMP halve
 
 series:
-	// c and s = sin φ / φ by Horner's rule.
+	// c and s = sin φ / φ by Horner's rule, the long series.
 	VMOVUPD vcos9<>(SB), Y8
 	VMOVUPD vsinc9<>(SB), Y9
 	VFMADD213PD vcos8<>(SB), Y5, Y8
@@ -127,6 +135,25 @@ series:
 	VFMADD213PD vone<>(SB), Y5, Y8
 	VFMADD213PD vone<>(SB), Y5, Y9
 
+	// Lanes with x ≤ shortMax (never halved) take the short series, as in
+	// the scalar kernel.
+	VPTEST Y14, Y13
+	JEQ double
+	VMOVUPD vcos5<>(SB), Y10
+	VMOVUPD vsinc5<>(SB), Y11
+	VFMADD213PD vcos4<>(SB), Y5, Y10
+	VFMADD213PD vsinc4<>(SB), Y5, Y11
+	VFMADD213PD vcos3<>(SB), Y5, Y10
+	VFMADD213PD vsinc3<>(SB), Y5, Y11
+	VFMADD213PD vcos2<>(SB), Y5, Y10
+	VFMADD213PD vsinc2<>(SB), Y5, Y11
+	VFMADD213PD vcos1<>(SB), Y5, Y10
+	VFMADD213PD vsinc1<>(SB), Y5, Y11
+	VFMADD213PD vone<>(SB), Y5, Y10
+	VFMADD213PD vone<>(SB), Y5, Y11
+	VBLENDVPD Y13, Y10, Y8, Y8
+	VBLENDVPD Y13, Y11, Y9, Y9
+
 	// Double the angle back in the lanes whose count is still positive:
 	// c, s, x = FMA(−2x·s, s, 1), s·c, 4x.
 double:
@@ -143,6 +170,21 @@ double:
 	VBLENDVPD Y7, Y12, Y5, Y5
 	VPADDQ Y7, Y6, Y6
 	JMP double
+
+	// All lanes short: the scalar kernel's cosSincShort.
+short:
+	VMOVUPD vcos5<>(SB), Y8
+	VMOVUPD vsinc5<>(SB), Y9
+	VFMADD213PD vcos4<>(SB), Y5, Y8
+	VFMADD213PD vsinc4<>(SB), Y5, Y9
+	VFMADD213PD vcos3<>(SB), Y5, Y8
+	VFMADD213PD vsinc3<>(SB), Y5, Y9
+	VFMADD213PD vcos2<>(SB), Y5, Y8
+	VFMADD213PD vsinc2<>(SB), Y5, Y9
+	VFMADD213PD vcos1<>(SB), Y5, Y8
+	VFMADD213PD vsinc1<>(SB), Y5, Y9
+	VFMADD213PD vone<>(SB), Y5, Y8
+	VFMADD213PD vone<>(SB), Y5, Y9
 
 compose:
 	// qi = zh·s; ks = scale·s; qr = −wyh·ks; qx = wxh·ks.
