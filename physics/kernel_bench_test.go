@@ -30,15 +30,15 @@ import (
 // author: scalar C with libm 5.5e7, a division-free scalar C series 1.1e8, the
 // same C series auto-vectorised for AVX-512 8.6e8 isochromat-steps/s.
 func BenchmarkKernelRotate(b *testing.B) {
-	for _, kernel := range []string{"vector", "scalar"} {
+	for _, kernel := range []string{"avx512", "avx2", "scalar"} {
 		for _, samples := range []int{2048, 256} {
 			b.Run(fmt.Sprintf("kernel=%s/samples=%d", kernel, samples), func(b *testing.B) {
-				if kernel == "vector" && !haveVector {
-					b.Skip("no vector kernel on this CPU")
+				if kernel == "avx512" && !haveAVX512 || kernel == "avx2" && !haveVector {
+					b.Skip("no such kernel on this CPU")
 				}
-				saved := useVector
-				useVector = kernel == "vector"
-				defer func() { useVector = saved }()
+				saved, saved512 := useVector, use512
+				useVector, use512 = kernel != "scalar", kernel == "avx512"
+				defer func() { useVector, use512 = saved, saved512 }()
 				w := hsWaveform(10e-3, samples, 4000, 5.3, 800)
 				st, _ := newSteps(w, 1, 2*3.14159*6000, 0, 1.5)
 				var blk block

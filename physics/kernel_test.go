@@ -47,9 +47,12 @@ func TestStepIsRodriguesRotation(t *testing.T) {
 			start := [3]float64{r.NormFloat64(), r.NormFloat64(), r.NormFloat64()}
 			l := math.Sqrt(start[0]*start[0] + start[1]*start[1] + start[2]*start[2])
 			start = [3]float64{start[0] / l, start[1] / l, start[2] / l}
-			// Spins 0..5 share the step, so a vector path processes a full group
-			// and a tail.
-			iso := Isochromats{Offset: []float64{w * n[2] / (2 * math.Pi), w * n[2] / (2 * math.Pi), w * n[2] / (2 * math.Pi), w * n[2] / (2 * math.Pi), w * n[2] / (2 * math.Pi)}}
+			// 13 spins share the step, so the vector kernels process groups of 8
+			// and 4 and the scalar one the last.
+			iso := Isochromats{Offset: make([]float64, 13)}
+			for i := range iso.Offset {
+				iso.Offset[i] = w * n[2] / (2 * math.Pi)
+			}
 			res, err := Simulate(context.Background(), wf, 1, &iso, Options{Start: start, Workers: 1})
 			if err != nil {
 				t.Fatal(err)

@@ -55,10 +55,10 @@ func TestVectorMatchesScalar(t *testing.T) {
 			l := math.Sqrt(q[0]*q[0] + q[1]*q[1] + q[2]*q[2] + q[3]*q[3])
 			ar[i], ai[i], br[i], bi[i] = q[0]/l, q[1]/l, q[2]/l, q[3]/l
 		}
-		run := func(vector bool) [4][]float64 {
-			saved := useVector
-			useVector = vector
-			defer func() { useVector = saved }()
+		run := func(vector, wide bool) [4][]float64 {
+			saved, saved512 := useVector, use512
+			useVector, use512 = vector, wide
+			defer func() { useVector, use512 = saved, saved512 }()
 			var s [4][]float64
 			for k := range s {
 				s[k] = append([]float64(nil), in[4+k]...)
@@ -68,11 +68,14 @@ func TestVectorMatchesScalar(t *testing.T) {
 			}
 			return s
 		}
-		v, s := run(haveVector), run(false)
-		for k := range v {
-			for i := range n {
-				if v[k][i] != s[k][i] {
-					t.Fatalf("trial %d (%d spins, %d steps), spin %d, component %d: vector %.17g, scalar %.17g", trial, n, nsteps, i, k, v[k][i], s[k][i])
+		s := run(false, false)
+		for _, wide := range []bool{false, true} {
+			v := run(haveVector, wide && haveAVX512)
+			for k := range v {
+				for i := range n {
+					if v[k][i] != s[k][i] {
+						t.Fatalf("trial %d (%d spins, %d steps, AVX-512 %v), spin %d, component %d: vector %.17g, scalar %.17g", trial, n, nsteps, wide && haveAVX512, i, k, v[k][i], s[k][i])
+					}
 				}
 			}
 		}
