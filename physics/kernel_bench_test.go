@@ -9,7 +9,7 @@ import (
 // BenchmarkKernelRotate is the rotation kernel alone on one block of 64 spins
 // (offsets over ±6 kHz, B1 scale 1) through the hyperbolic secant pulse of
 // BenchmarkSimulateHS, 10 ms, at 2048 samples and at 256 (each step's angle up to
-// 1.5 rad), with the vector kernel and the scalar one.
+// 1.5 rad), with each vector kernel this CPU runs and the scalar one.
 // isochromat-steps/cpu-s is per busy core (CPU time of the benchmark's thread).
 //
 // Figures on the 2-core AMD EPYC (Turin) build machine, go1.26, GOAMD64=v1, load
@@ -17,8 +17,9 @@ import (
 // CPU-second of one core:
 //
 //	                   2048 samples   256 samples
-//	vector (AVX2+FMA)  5.6e8          4.1e8
-//	scalar             1.17e8         8.1e7
+//	vector (AVX-512)   1.17e9         7.9e8
+//	vector (AVX2+FMA)  5.4e8          3.7e8
+//	scalar             1.2e8          5.1e7–8.1e7
 //	scalar, before the long series and angle halving (math.Sincos, sqrt and a
 //	division above |φ| = 1/8 rad)
 //	                   1.27e8         5.0e7
