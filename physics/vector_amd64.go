@@ -60,3 +60,59 @@ func rotateVector(st *steps, j0, j1 int, off, pos, scale, scale2, ar, ai, br, bi
 	}
 	return n
 }
+
+// relaxStep holds the terms of one step that every spin shares, for relaxAVX2;
+// the offsets are spelled out in vector_amd64.s.
+type relaxStep struct {
+	t, wxt, wyt, gt float64
+	sub, terms      int
+}
+
+// relaxArgs is the argument block of relaxAVX2: spin holds off, pos, scale, r1,
+// r2 of 4 spins, m their magnetization (in and out), x the per-step X entries
+// x, y, z, a, c (the kernel's scratch).
+type relaxArgs struct {
+	rec   *relaxStep
+	steps int
+	fact  *float64
+	spin  [5][4]float64
+	m     [3][4]float64
+	x     [5][4]float64
+}
+
+// relaxAVX2 runs the steps of a.rec for 4 spins: the same operations as
+// relaxBlock's scalar loops (seriesHorner and the repeated substeps) in the same
+// order, so that every lane rounds as the scalar kernel does.
+//
+//go:noescape
+func relaxAVX2(a *relaxArgs)
+
+// relaxVector runs steps [j0, j1) with relaxation for the leading spins in
+// groups of 4 and returns how many spins it ran; it runs none when a step needs
+// the squaring of relaxSquare, which only the scalar kernel does.
+func relaxVector(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []float64, sc *relaxScratch) int {
+	n := len(off) &^ 3
+	if n == 0 || j1 <= j0 {
+		return 0
+	}
+	sc.rec = sc.rec[:0]
+	for j := j0; j < j1; j++ {
+		if st.sub[j] > maxRepeat {
+			return 0
+		}
+		t := st.dt[j]
+		sc.rec = append(sc.rec, relaxStep{t: t, wxt: st.wx[j] * t, wyt: st.wy[j] * t, gt: st.g[j] * t, sub: st.sub[j], terms: sc.terms[j-j0]})
+	}
+	a := relaxArgs{rec: &sc.rec[0], steps: j1 - j0, fact: &invFact1[0]}
+	for i := 0; i < n; i += 4 {
+		for l := range 4 {
+			a.spin[0][l], a.spin[1][l], a.spin[2][l], a.spin[3][l], a.spin[4][l] = off[i+l], pos[i+l], scale[i+l], r1[i+l], r2[i+l]
+			a.m[0][l], a.m[1][l], a.m[2][l] = mx[i+l], my[i+l], mz[i+l]
+		}
+		relaxAVX2(&a)
+		for l := range 4 {
+			mx[i+l], my[i+l], mz[i+l] = a.m[0][l], a.m[1][l], a.m[2][l]
+		}
+	}
+	return n
+}

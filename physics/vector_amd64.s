@@ -406,3 +406,171 @@ done512:
 	VMOVUPD Z3, (AX)
 	VZEROUPPER
 	RET
+
+// Offsets in relaxArgs and relaxStep.
+#define R_REC 0
+#define R_STEPS 8
+#define R_FACT 16
+#define R_OFF 24
+#define R_POS 56
+#define R_SCALE 88
+#define R_R1 120
+#define R_R2 152
+#define R_MX 184
+#define R_MY 216
+#define R_MZ 248
+#define R_X 280
+#define R_Y 312
+#define R_Z 344
+#define R_A 376
+#define R_C 408
+#define S_T 0
+#define S_WXT 8
+#define S_WYT 16
+#define S_GT 24
+#define S_SUB 32
+#define S_TERMS 40
+#define S_SIZE 48
+
+// XMUL sets (o0, o1, o2) = X·(i0, i1, i2) for X = [[a, z, −y], [−z, a, x],
+// [y, −x, c]] as xMul in relax.go rounds it: ((a·i0 + z·i1) − y·i2,
+// (a·i1 − z·i0) + x·i2, (y·i0 − x·i1) + c·i2); t is scratch.
+#define XMUL(i0, i1, i2, o0, o1, o2, t) \
+	VMULPD R_A(DI), i0, o0 \
+	VMULPD R_Z(DI), i1, t \
+	VADDPD t, o0, o0 \
+	VMULPD R_Y(DI), i2, t \
+	VSUBPD t, o0, o0 \
+	VMULPD R_A(DI), i1, o1 \
+	VMULPD R_Z(DI), i0, t \
+	VSUBPD t, o1, o1 \
+	VMULPD R_X(DI), i2, t \
+	VADDPD t, o1, o1 \
+	VMULPD R_Y(DI), i0, o2 \
+	VMULPD R_X(DI), i1, t \
+	VSUBPD t, o2, o2 \
+	VMULPD R_C(DI), i2, t \
+	VADDPD t, o2, o2
+
+// func relaxAVX2(a *relaxArgs)
+//
+// Registers: Y0–Y2 the magnetization; per step Y3–Y7 x, y, z, a, c (kept in
+// the argument block's scratch), Y8–Y12 the series' coefficients, Y3–Y5 the
+// sums d0, d1, d2; in a substep Y6–Y8 w, Y9–Y11 X·w, Y12, Y14, Y15 X²·w, Y13
+// scratch.
+TEXT ·relaxAVX2(SB), NOSPLIT, $0-8
+	MOVQ a+0(FP), DI
+	MOVQ R_REC(DI), R8
+	MOVQ R_STEPS(DI), CX
+	MOVQ R_FACT(DI), BX
+	VMOVUPD R_MX(DI), Y0
+	VMOVUPD R_MY(DI), Y1
+	VMOVUPD R_MZ(DI), Y2
+	TESTQ CX, CX
+	JEQ rdone
+
+rstep:
+	// x = scale·wxt, y = scale·wyt, z = off·t + pos·gt, a = −r2·t, c = −r1·t.
+	VBROADCASTSD S_WXT(R8), Y14
+	VMULPD R_SCALE(DI), Y14, Y3
+	VBROADCASTSD S_WYT(R8), Y14
+	VMULPD R_SCALE(DI), Y14, Y4
+	VBROADCASTSD S_T(R8), Y15
+	VMULPD R_OFF(DI), Y15, Y5
+	VBROADCASTSD S_GT(R8), Y14
+	VMULPD R_POS(DI), Y14, Y14
+	VADDPD Y14, Y5, Y5
+	VMULPD R_R2(DI), Y15, Y6
+	VXORPD vsign<>(SB), Y6, Y6
+	VMULPD R_R1(DI), Y15, Y7
+	VXORPD vsign<>(SB), Y7, Y7
+	VMOVUPD Y3, R_X(DI)
+	VMOVUPD Y4, R_Y(DI)
+	VMOVUPD Y5, R_Z(DI)
+	VMOVUPD Y6, R_A(DI)
+	VMOVUPD Y7, R_C(DI)
+
+	// xy2 = x·x + y·y (Y8), z2 = z·z (Y9).
+	VMULPD Y3, Y3, Y8
+	VMULPD Y4, Y4, Y14
+	VADDPD Y14, Y8, Y8
+	VMULPD Y5, Y5, Y9
+	// −q1 = (a + a) + c (Y10).
+	VADDPD Y6, Y6, Y10
+	VADDPD Y7, Y10, Y10
+	// −q2 = −(((a·a + z2) + 2a·c) + xy2) (Y11).
+	VMULPD Y6, Y6, Y11
+	VADDPD Y9, Y11, Y11
+	VADDPD Y6, Y6, Y12
+	VMULPD Y7, Y12, Y12
+	VADDPD Y12, Y11, Y11
+	VADDPD Y8, Y11, Y11
+	VXORPD vsign<>(SB), Y11, Y11
+	// −q3 = ((a·a)·c + a·xy2) + c·z2 (Y12).
+	VMULPD Y6, Y6, Y12
+	VMULPD Y7, Y12, Y12
+	VMULPD Y8, Y6, Y13
+	VADDPD Y13, Y12, Y12
+	VMULPD Y9, Y7, Y13
+	VADDPD Y13, Y12, Y12
+
+	// Horner: (e0, e1, e2) = (c_K, 0, 0); for k = K−1 … 0:
+	// (e0, e1, e2) ← (c_k + q3·e2, e0 + q2·e2, e1 + q1·e2).
+	MOVQ S_TERMS(R8), DX
+	VBROADCASTSD (BX)(DX*8), Y3
+	VXORPD Y4, Y4, Y4
+	VXORPD Y5, Y5, Y5
+rterm:
+	DECQ DX
+	JLT rseries
+	VBROADCASTSD (BX)(DX*8), Y13
+	VMULPD Y5, Y12, Y6
+	VADDPD Y6, Y13, Y6
+	VMULPD Y5, Y11, Y7
+	VADDPD Y7, Y3, Y7
+	VMULPD Y5, Y10, Y14
+	VADDPD Y14, Y4, Y14
+	VMOVAPD Y6, Y3
+	VMOVAPD Y7, Y4
+	VMOVAPD Y14, Y5
+	JMP rterm
+
+rseries:
+	// sub substeps: w = X·M + t·b; M ← M + ((d0·w + d1·X·w) + d2·X²·w).
+	MOVQ S_SUB(R8), R9
+rsub:
+	XMUL(Y0, Y1, Y2, Y6, Y7, Y8, Y13)
+	VSUBPD R_C(DI), Y8, Y8
+	XMUL(Y6, Y7, Y8, Y9, Y10, Y11, Y13)
+	XMUL(Y9, Y10, Y11, Y12, Y14, Y15, Y13)
+	VMULPD Y6, Y3, Y6
+	VMULPD Y9, Y4, Y13
+	VADDPD Y13, Y6, Y6
+	VMULPD Y12, Y5, Y13
+	VADDPD Y13, Y6, Y6
+	VADDPD Y6, Y0, Y0
+	VMULPD Y7, Y3, Y7
+	VMULPD Y10, Y4, Y13
+	VADDPD Y13, Y7, Y7
+	VMULPD Y14, Y5, Y13
+	VADDPD Y13, Y7, Y7
+	VADDPD Y7, Y1, Y1
+	VMULPD Y8, Y3, Y8
+	VMULPD Y11, Y4, Y13
+	VADDPD Y13, Y8, Y8
+	VMULPD Y15, Y5, Y13
+	VADDPD Y13, Y8, Y8
+	VADDPD Y8, Y2, Y2
+	DECQ R9
+	JGT rsub
+
+	ADDQ $S_SIZE, R8
+	DECQ CX
+	JGT rstep
+
+rdone:
+	VMOVUPD Y0, R_MX(DI)
+	VMOVUPD Y1, R_MY(DI)
+	VMOVUPD Y2, R_MZ(DI)
+	VZEROUPPER
+	RET
