@@ -25,3 +25,25 @@ func TestVecArgsLayout(t *testing.T) {
 		}
 	}
 }
+
+// The offsets of relaxArgs and relaxStep that vector_amd64.s spells out (R_…, S_…).
+func TestRelaxArgsLayout(t *testing.T) {
+	var a relaxArgs
+	var r relaxStep
+	for _, c := range []struct {
+		name      string
+		got, want uintptr
+	}{
+		{"rec", unsafe.Offsetof(a.rec), 0}, {"steps", unsafe.Offsetof(a.steps), 8},
+		{"fact", unsafe.Offsetof(a.fact), 16}, {"spin", unsafe.Offsetof(a.spin), 24},
+		{"m", unsafe.Offsetof(a.m), 184}, {"x", unsafe.Offsetof(a.x), 280},
+		{"step.t", unsafe.Offsetof(r.t), 0}, {"step.wxt", unsafe.Offsetof(r.wxt), 8},
+		{"step.wyt", unsafe.Offsetof(r.wyt), 16}, {"step.gt", unsafe.Offsetof(r.gt), 24},
+		{"step.sub", unsafe.Offsetof(r.sub), 32}, {"step.terms", unsafe.Offsetof(r.terms), 40},
+		{"step size", unsafe.Sizeof(r), 48},
+	} {
+		if c.got != c.want {
+			t.Errorf("%s at offset %d, want %d (the assembly's constants)", c.name, c.got, c.want)
+		}
+	}
+}
