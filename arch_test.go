@@ -13,14 +13,15 @@ import (
 )
 
 // TestDependencyDirection enforces the layering of ../shared/STYLE.md: physics
-// imports only the standard library and gonum (its sub-packages may import physics
+// imports only the standard library, gonum and golang.org/x/sys/cpu (its sub-packages may import physics
 // packages); display knows nothing of the language or the protocol; the kernel knows
 // nothing of the language; install stands alone; the notebook format
 // (kernel/nbformat) needs only the standard library; presentation (dsl/present)
 // needs only display. main wires them.
 func TestDependencyDirection(t *testing.T) {
 	allowed := map[string][]string{
-		"physics": {"Nutate/physics", "gonum.org/v1/gonum"},
+		// x/sys/cpu tells physics which vector kernel the CPU runs.
+		"physics": {"Nutate/physics", "gonum.org/v1/gonum", "golang.org/x/sys/cpu"},
 		// fpdf is the library under gonum/plot's PDF back end; display sets its
 		// document defaults (fixed dates, sorted catalogs) for reproducible PDFs.
 		"display": {"gonum.org/v1/plot", "gonum.org/v1/gonum", "golang.org/x/image", "codeberg.org/go-pdf/fpdf"},

@@ -7,6 +7,7 @@ require (
 	github.com/go-zeromq/zmq4 v0.17.0
 	github.com/google/uuid v1.6.0
 	golang.org/x/image v0.30.0
+	golang.org/x/sys v0.41.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0
 )

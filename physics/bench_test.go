@@ -50,19 +50,26 @@ func linspace(a, b float64, n int) []float64 {
 // the rate per busy core whatever else the machine runs.
 //
 // Figures on the 2-core AMD EPYC (Turin) build machine, go1.26, GOAMD64=v1, with
-// other builds running (load average 8–10 on 2 cores, so wall-time figures are a
+// other builds running (load average 6–10 on 2 cores, so wall-time figures are a
 // fraction of a free machine's), 256 × 256 spins, best of 3:
 //
-//	                     ns/op    steps/cpu-s  steps/s (wall)
-//	rotation, 1 worker   2.07e9   1.30e8       6.5e7
-//	rotation, 2 workers  2.32e9   1.28e8       5.8e7
-//	relaxation, 1 worker 5.04e9   5.03e7       2.7e7
-//	relaxation, 2 workers 4.04e9  5.21e7       3.3e7
+//	                       ns/op    steps/cpu-s  steps/s (wall)
+//	rotation, 1 worker     1.26e8   1.11e9       1.07e9  (vector kernel, AVX-512)
+//	rotation, 2 workers    9.53e7   1.03e9       1.41e9  (vector kernel, AVX-512)
+//	rotation, 1 worker     3.35e8   5.2e8        4.0e8   (vector kernel, AVX2+FMA)
+//	rotation, 2 workers    5.63e8   5.5e8        2.4e8   (vector kernel, AVX2+FMA)
+//	rotation, 1 worker     2.07e9   1.30e8       6.5e7   (scalar kernel, earlier run)
+//	rotation, 2 workers    2.32e9   1.28e8       5.8e7   (scalar kernel, earlier run)
+//	relaxation, 1 worker   1.02e9   1.87e8       1.31e8  (vector kernel, AVX2+FMA)
+//	relaxation, 2 workers  8.78e8   1.82e8       1.53e8  (vector kernel, AVX2+FMA)
+//	relaxation, 1 worker   5.04e9   5.03e7       2.7e7   (scalar kernel, earlier run)
+//	relaxation, 2 workers  4.04e9   5.21e7       3.3e7   (scalar kernel, earlier run)
 //
-// Per busy core, relaxation is 2.6× slower than rotation alone, and two workers keep
-// the per-core rate (no sharing between workers), so on two free cores the wall
-// rate doubles. A plain scalar C loop with libm does 5.7e7 isochromat-steps/s per
-// core here; the rotation kernel does 1.3e8 (1.36e8 with GOAMD64=v3).
+// Two workers keep the per-core rate (no sharing between workers), so on two free
+// cores the wall rate doubles. C baselines
+// measured on this machine (same workload, per core): a plain scalar C loop with
+// libm 5.5e7–5.7e7 isochromat-steps/s, a division-free scalar C series 1.1e8, the
+// C series auto-vectorised for AVX-512 8.6e8.
 func BenchmarkSimulateHS(b *testing.B) {
 	w := hsWaveform(10e-3, 2048, 4000, 5.3, 800)
 	for _, relax := range []bool{false, true} {

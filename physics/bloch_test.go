@@ -397,7 +397,7 @@ func TestNormConserved(t *testing.T) {
 // to the double-precision rounding (Abramowitz & Stegun 4.3.65–66).
 func TestCosSinc(t *testing.T) {
 	for k := 0; k <= 4000; k++ {
-		x := seriesMax * 1.5 * float64(k) / 4000
+		x := seriesMax * float64(k) / 4000
 		c, s := cosSinc(x)
 		phi := math.Sqrt(x)
 		sw, cw := math.Sincos(phi)

@@ -189,9 +189,12 @@ func mat3Mul(p, q *[3][3]float64) (out [3][3]float64) {
 	return out
 }
 
-// relaxScratch holds per-spin series state for relaxBlock.
+// relaxScratch holds per-spin series state for relaxBlock, the series length of
+// each step and the vector kernel's per-step terms.
 type relaxScratch struct {
 	q1, q2, q3, v0, v1, v2 [blockSpins]float64
+	terms                  []int
+	rec                    []relaxStep
 }
 
 // relaxBlock advances the magnetization of a block of spins through steps
@@ -212,13 +215,33 @@ func relaxBlock(st *steps, j0, j1 int, off, pos, scale, r1, r2, mx, my, mz []flo
 		maxScale = max(maxScale, math.Abs(scale[i]))
 		maxR = max(maxR, r1[i], r2[i])
 	}
+	// The series length of each step, from the bound over the whole block, so
+	// that the vector kernel (on the leading spins) and the scalar loop below
+	// (on the rest) sum the same series.
+	sc.terms = sc.terms[:0]
+	for j := j0; j < j1; j++ {
+		t := st.dt[j]
+		// ‖X‖₂ ≤ t·(|ω| + max(R1, R2)) over the block, as in planRelax.
+		w1, wz := maxScale*st.w1[j], maxOff+maxPos*math.Abs(st.g[j])
+		sc.terms = append(sc.terms, relaxTerms(t*(math.Sqrt(w1*w1+wz*wz)+maxR)))
+	}
+	k := 0
+	if useVector {
+		k = relaxVector(st, j0, j1, off, pos, scale, r1, r2, mx, my, mz, sc)
+	}
+	if k == n {
+		return
+	}
+	off, pos, scale, r1, r2 = off[k:], pos[k:], scale[k:], r1[k:], r2[k:]
+	mx, my, mz = mx[k:], my[k:], mz[k:]
+	n -= k
+	q1, q2, q3 = q1[:n], q2[:n], q3[:n]
+	v0, v1, v2 = v0[:n], v1[:n], v2[:n]
 	for j := j0; j < j1; j++ {
 		t := st.dt[j]
 		wxt, wyt, gt := st.wx[j]*t, st.wy[j]*t, st.g[j]*t
 		sub := st.sub[j]
-		// ‖X‖₂ ≤ t·(|ω| + max(R1, R2)) over the block, as in planRelax.
-		w1, wz := maxScale*st.w1[j], maxOff+maxPos*math.Abs(st.g[j])
-		terms := relaxTerms(t * (math.Sqrt(w1*w1+wz*wz) + maxR))
+		terms := sc.terms[j-j0]
 		for i := range n {
 			// X = t·A = [[a, z, −y], [−z, a, x], [y, −x, c]]; its characteristic
 			// polynomial has q1 = −tr X, q2 = the sum of the principal 2×2 minors,
