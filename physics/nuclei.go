@@ -24,7 +24,7 @@ const (
 // nuclei pins the table the code uses: the proton from CODATA 2018 (unshielded),
 // the others from the IUPAC 2001 recommendations.
 var nuclei = []Nucleus{
-	{"1H", 42.577478518e6, codata2018},
+	{"1H", ProtonGammaBar, codata2018},
 	{"2H", 6.535901e6, iupac2001},
 	{"3He", -32.436030e6, iupac2001},
 	{"7Li", 16.548456e6, iupac2001},
