@@ -78,6 +78,10 @@ type Axis struct {
 	// decades). On a profile, points at or below zero are then left out of the
 	// figure (not of the JSON); a map draws such an axis linearly.
 	Log bool
+	// Shift says the values are absolute chemical shifts δ (ppm, a carrier's
+	// shift set): the axis and table column are then named "δ" whatever Label
+	// says (Label stays in the JSON), and the JSON says "shift": true.
+	Shift bool
 }
 
 // Curve is one plotted line over the profile's X axis: a quantity of one pulse.
@@ -91,10 +95,15 @@ type Curve struct {
 	Label string
 }
 
-// Mark is a vertical marker on a profile (band edges, FWHM) at X with a label.
+// Mark is a vertical marker on a profile at X with a label: a feature of the
+// curves (band edges, FWHM), drawn dashed with its label above the panels, or,
+// with Marker set, a labelled marker the user placed (a chemical shift, a
+// multiplet), drawn solid in its own colour with a leader up to its label (see
+// markers.go) and listed under the profile's table.
 type Mark struct {
-	X     float64
-	Label string
+	X      float64
+	Label  string
+	Marker bool
 }
 
 // Profile is one or more curves against one axis (offset in Hz or ppm, B1,
@@ -102,7 +111,9 @@ type Mark struct {
 // separate stacked panels sharing X; curves of one quantity overlay, one colour
 // and dash pattern per pulse, with a legend when there are several pulses. Marks
 // are dashed vertical lines on every panel, labelled above the top one; marks
-// on one line share one label ("p1, p2 band edge"). Phase curves (unit "deg")
+// on one line share one label ("p1, p2 band edge"). Labelled markers
+// (Mark.Marker) are solid lines whose labels stand in a band of their own
+// right above the top panel, kept apart however many there are. Phase curves (unit "deg")
 // get ticks at multiples of 90° and are not joined across a wrap.
 //
 // The x axis spans every finite value of X (every positive one on a log axis),

@@ -64,8 +64,8 @@ func (m Map) Bundle() Bundle { return m.Bundles()[0] }
 func (m Map) caption() string {
 	nx, ny := m.dims()
 	return fmt.Sprintf("(figure: %s over %s × %s, %d × %d points; data in "+ResultMIME+")",
-		axisLabel(orDefault(m.label(), "z"), m.Unit), axisLabel(orDefault(m.X.Label, "x"), m.X.Unit),
-		axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit), nx, ny)
+		axisLabel(orDefault(m.label(), "z"), m.Unit), m.X.title("x"),
+		m.Y.title("y"), nx, ny)
 }
 
 // label names the map's quantity on the colour bar and in the caption.
@@ -113,7 +113,7 @@ func (m Map) table() Table {
 	}
 	nx, ny := m.dims()
 	t := Table{Columns: []Column{{Name: "feature"}, {Name: orDefault(m.Quantity, "z"), Unit: m.Unit},
-		{Name: orDefault(m.X.Label, "x"), Unit: m.X.Unit}, {Name: orDefault(m.Y.Label, "y"), Unit: m.Y.Unit}}}
+		{Name: m.X.name("x"), Unit: m.X.unit()}, {Name: m.Y.name("y"), Unit: m.Y.unit()}}}
 	lo, hi := [2]int{-1, -1}, [2]int{-1, -1}
 	for j := range ny {
 		for i := range nx {
@@ -200,8 +200,8 @@ func (m Map) draw(nc canvasMaker) vg.CanvasWriterTo {
 	full.Fill(full.Rectangle.Path())
 
 	p := newPlot()
-	p.X.Label.Text = axisLabel(orDefault(m.X.Label, "x"), m.X.Unit) + xnote
-	p.Y.Label.Text = axisLabel(orDefault(m.Y.Label, "y"), m.Y.Unit) + ynote
+	p.X.Label.Text = m.X.title("x") + xnote
+	p.Y.Label.Text = m.Y.title("y") + ynote
 	xl.setAxis(&p.X, m.X.Reverse)
 	yl.setAxis(&p.Y, m.Y.Reverse)
 	if nx > 0 {

@@ -149,8 +149,12 @@ func (t Table) json() json.RawMessage {
 }
 
 func (a Axis) json() []byte {
-	return newObject().str("label", a.Label).str("unit", a.Unit).
-		raw("reverse", jsonBool(a.Reverse)).raw("values", jsonFloats(a.Values)).done()
+	o := newObject().str("label", a.Label).str("unit", a.Unit).
+		raw("reverse", jsonBool(a.Reverse))
+	if a.Shift {
+		o = o.raw("shift", []byte("true"))
+	}
+	return o.raw("values", jsonFloats(a.Values)).done()
 }
 
 // JSON is the profile's data as its bundle carries it under ResultMIME.
@@ -164,7 +168,11 @@ func (p Profile) JSON() json.RawMessage {
 		curves = append(curves, co.raw("y", jsonRounded(c.Y, roundingFor(c.Unit, c.Y))).done())
 	}
 	for _, m := range p.Marks {
-		marks = append(marks, newObject().raw("x", jsonNum(m.X)).str("label", m.Label).done())
+		mo := newObject().raw("x", jsonNum(m.X)).str("label", m.Label)
+		if m.Marker {
+			mo = mo.raw("marker", []byte("true"))
+		}
+		marks = append(marks, mo.done())
 	}
 	o := newObject().str("kind", "profile").str("title", p.Title).raw("x", p.X.json()).
 		raw("curves", jsonArray(curves)).raw("marks", jsonArray(marks)).

@@ -2,8 +2,10 @@ package display
 
 import (
 	"fmt"
-	"gonum.org/v1/plot/vg"
+	"slices"
 	"strings"
+
+	"gonum.org/v1/plot/vg"
 )
 
 // maxListed is the longest curve listed row by row in a table; longer curves are
@@ -19,8 +21,9 @@ const maxDots = 30
 // rows or notes, otherwise the data itself when there are at most 50 points,
 // otherwise each curve's extremes. The data is {"kind": "profile", "title",
 // "x": {"label", "unit", "reverse", "values"}, "curves": [{"pulse", "quantity",
-// "unit", "label" (when set), "y"}], "marks": [{"x", "label"}], "summary":
-// table, "notes" (when any)}, numbers rounded as the package doc states;
+// "unit", "label" (when set), "y"}], "marks": [{"x", "label", "marker": true
+// (labelled markers only)}], "summary": table, "notes" (when any)}; the x axis
+// also says "shift": true when its values are absolute shifts δ, numbers rounded as the package doc states;
 // non-finite values are null.
 //
 // Curves of one quantity and unit share a panel; different quantities get stacked
@@ -44,7 +47,7 @@ func (p Profile) caption() string {
 		return "(no curves)"
 	}
 	return fmt.Sprintf("(figure: %s against %s, %d points; data in "+ResultMIME+")",
-		strings.Join(qs, ", "), axisLabel(orDefault(p.X.Label, "x"), p.X.Unit), len(p.X.Values))
+		strings.Join(qs, ", "), p.X.title("x"), len(p.X.Values))
 }
 
 func orDefault(s, d string) string {
@@ -104,7 +107,7 @@ func (p Profile) stack() stack {
 	}
 	s := stack{
 		title:   p.Title,
-		xlabel:  axisLabel(orDefault(p.X.Label, "x"), p.X.Unit),
+		xlabel:  p.X.title("x"),
 		reverse: p.X.Reverse,
 		marks:   p.Marks,
 		logX:    p.X.Log,
@@ -137,15 +140,22 @@ func (p Profile) stack() stack {
 	return s
 }
 
-// table is the table shown with the figure.
+// table is the table shown with the figure, with a note naming the labelled
+// markers when there are any.
 func (p Profile) table() Table {
-	if !p.Summary.isEmpty() {
-		return p.Summary
+	var t Table
+	switch {
+	case !p.Summary.isEmpty():
+		t = p.Summary
+	case len(p.X.Values) <= maxListed:
+		t = p.dataTable()
+	default:
+		t = p.extremes()
 	}
-	if len(p.X.Values) <= maxListed {
-		return p.dataTable()
+	if n := p.markerNote(); n != "" {
+		t.Notes = append(slices.Clone(t.Notes), n)
 	}
-	return p.extremes()
+	return t
 }
 
 // curveName names a curve in a table: "mxy" for one pulse, "p1 mxy" for several.
@@ -157,7 +167,7 @@ func (p Profile) curveName(c Curve) string {
 }
 
 func (p Profile) dataTable() Table {
-	t := Table{Columns: []Column{{Name: orDefault(p.X.Label, "x"), Unit: p.X.Unit}}}
+	t := Table{Columns: []Column{{Name: p.X.name("x"), Unit: p.X.unit()}}}
 	for _, c := range p.Curves {
 		t.Columns = append(t.Columns, Column{Name: p.curveName(c), Unit: c.Unit})
 	}
@@ -181,7 +191,7 @@ func (p Profile) dataTable() Table {
 
 // extremes lists each curve's lowest and highest value and where they occur.
 func (p Profile) extremes() Table {
-	xu := p.X.Unit
+	xu := p.X.unit()
 	t := Table{Columns: []Column{
 		{Name: "curve"}, {Name: "unit"},
 		{Name: "min"}, {Name: "at", Unit: xu},

@@ -228,18 +228,27 @@ type marks []Mark
 
 func (m marks) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, _ := p.Transforms(&c)
-	var path vg.Path
+	var path, solid vg.Path
 	for _, mk := range m {
 		if !finite(mk.X) || mk.X < p.X.Min || mk.X > p.X.Max || mk.X <= 0 && isLog(p.X.Scale) {
 			continue
 		}
 		x := trX(mk.X)
+		if mk.Marker {
+			solid.Move(vg.Point{X: x, Y: c.Min.Y})
+			solid.Line(vg.Point{X: x, Y: c.Max.Y})
+			continue
+		}
 		path.Move(vg.Point{X: x, Y: c.Min.Y})
 		path.Line(vg.Point{X: x, Y: c.Max.Y})
 	}
 	if len(path) > 0 {
 		c.SetLineStyle(draw.LineStyle{Color: markColor, Width: 0.7, Dashes: []vg.Length{3, 2}})
 		c.Stroke(path)
+	}
+	if len(solid) > 0 {
+		c.SetLineStyle(draw.LineStyle{Color: markerColor, Width: markerWidth})
+		c.Stroke(solid)
 	}
 }
 
@@ -418,7 +427,16 @@ func (s stack) draw(nc canvasMaker) vg.CanvasWriterTo {
 	trX, _ := ps[0].Transforms(&dc)
 	// Mark labels stay over the data area, so a mark at the end of the range is
 	// labelled inside the frame's width, not over the tick labels or the edge.
-	placed, markRows := placeMarks(shown, trX, ps[0].X.Min, ps[0].X.Max, dc.Min.X, dc.Max.X)
+	var features []Mark
+	for _, m := range shown {
+		if !m.Marker {
+			features = append(features, m)
+		}
+	}
+	placed, markRows := placeMarks(features, trX, ps[0].X.Min, ps[0].X.Max, dc.Min.X, dc.Max.X)
+	// Labelled markers stand in a band of their own right above the panel,
+	// under the feature labels.
+	markers := placeMarkers(shown, trX, ps[0].X.Min, ps[0].X.Max, dc.Min.X, dc.Max.X)
 
 	title := wrapText(s.title, boldStyle(titleSize), figWidth-24)
 	var headH vg.Length = headPad
@@ -430,6 +448,7 @@ func (s stack) draw(nc canvasMaker) vg.CanvasWriterTo {
 	if markRows > 0 {
 		headH += 2
 	}
+	headH += markers.height
 	notes := wrapNotes(s.notes)
 	footH := footHeight(notes)
 	H := headH + bodyH + footH
@@ -451,8 +470,10 @@ func (s stack) draw(nc canvasMaker) vg.CanvasWriterTo {
 	for i, row := range cs {
 		ps[i].Draw(row[0])
 	}
+	top := ps[0].DataCanvas(cs[0][0]).Max.Y
+	drawMarkerLabels(full, markers, top)
+	top += markers.height
 	if markRows > 0 {
-		top := ps[0].DataCanvas(cs[0][0]).Max.Y
 		ms := textStyle(markSize)
 		ms.Color = markColor
 		ms.XAlign, ms.YAlign = draw.XLeft, draw.YBottom
