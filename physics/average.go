@@ -52,6 +52,14 @@ type AverageOptions struct {
 	// MaxPoints bounds the quadrature points per isochromat (the product over
 	// the spreads); 0 means DefaultMaxAveragePoints.
 	MaxPoints int
+	// FirstPoints is where the automatic rule starts (at least 8);
+	// SimulateAveraged sets it from Spread.Turn when 0.
+	FirstPoints int
+	// Steps (samples per isochromat) and MaxSteps (0: DefaultMaxSteps) bound
+	// the work of AverageOver as Options.MaxSteps bounds Simulate's;
+	// SimulateAveraged sets them from the waveform and its Options.
+	Steps    int
+	MaxSteps float64
 }
 
 // Defaults of the automatic quadrature rule.
@@ -69,12 +77,17 @@ const (
 type Averaged struct {
 	Mx, My, Mz []float64
 	Echo       []complex128 // nil when any spin relaxes
+	AverageInfo
+}
+
+// AverageInfo says which quadrature an average used.
+type AverageInfo struct {
 	// Points is the number of Gauss–Legendre points used per spread.
 	Points []int
-	// Change is the largest difference, over every component of every
-	// isochromat, between the returned rule and the one with half the points
-	// per spread: an estimate (for these smooth integrands a generous one) of
-	// the quadrature error. It is NaN when every spread's points were given.
+	// Change is the largest difference, over every averaged value, between the
+	// returned rule and the one with half the points per spread: an estimate
+	// (for these smooth integrands a generous one) of the quadrature error. It
+	// is NaN when every spread's points were given.
 	Change float64
 	// Converged reports that Change is within the tolerance (always true when
 	// the points were given).
@@ -85,49 +98,108 @@ type Averaged struct {
 // (their product, each uniform), with the same engine, options and exactness as
 // Simulate: the quadrature points are simply more isochromats, and the average
 // is their weighted sum in a fixed order (results are identical bit for bit
-// whatever the number of workers).
+// whatever the number of workers). AverageOver does the same around any
+// simulation (a sequence, a trace).
 //
 // Quadrature: Gauss–Legendre on each spread's interval, the product rule over
 // several. An n-point rule integrates polynomials of degree 2n−1 exactly
 // (Abramowitz & Stegun 25.4.29), and its error falls geometrically with n for
-// the analytic integrands of the Bloch equations, more slowly only as the
-// magnetization oscillates faster across the spread (a long pulse over a wide
-// offset range). Rule, when a spread's Points is 0: start at 8 points per such
-// spread and double them until the averages with n and 2n points agree within
+// the analytic integrands of the Bloch equations once n resolves the
+// oscillation of the magnetization across the spread (about a quarter of its
+// range of rotation angle in radians: a long pulse over a wide offset range
+// needs many points). Rule, when a spread's Points is 0: start at 8 points per
+// such spread, or at a quarter of the spread's range of rotation angle (see
+// Spread.Turn) when that is larger, so that two coarse rules cannot agree by
+// chance; double them until the averages with n and 2n points agree within
 // Tolerance (default 1e-4 of M0) in every component of every isochromat; the
-// 2n-point result is returned, with Change the last difference. The first n is
-// raised to a quarter of the spread's range of rotation angle (see turn) when
-// that is larger, as a rule with fewer points does not resolve the
-// oscillation and two such rules could agree by chance. Doubling stops
-// before the points per isochromat would pass MaxPoints (default 4096) or the
-// engine's budgets, and the result then says Converged false. Spreads with a
-// zero width take one point.
+// 2n-point result is returned, with Change the last difference, its error then
+// typically far below the tolerance (see the tests). Doubling stops before the
+// points per isochromat would pass MaxPoints (default 4096) or the engine's
+// budgets, and the result then says Converged false. Spreads with a zero width
+// take one point.
 func SimulateAveraged(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats, spreads []Spread, opt Options, aopt AverageOptions) (*Averaged, error) {
-	if err := iso.validate(); err != nil {
+	if err := w.Validate(); err != nil {
 		return nil, err
+	}
+	if aopt.FirstPoints == 0 {
+		scale := 1.0
+		for _, v := range iso.B1Scale {
+			scale = math.Max(scale, math.Abs(v))
+		}
+		for _, s := range spreads {
+			if s.Points == 0 {
+				aopt.FirstPoints = max(aopt.FirstPoints, int(math.Ceil(s.Turn(w, gamma, scale)/4)))
+			}
+		}
+	}
+	aopt.Steps, aopt.MaxSteps = w.Len(), opt.MaxSteps
+	relax := false
+	vals, info, err := AverageOver(ctx, iso, spreads, aopt, func(ex *Isochromats) ([][]float64, error) {
+		r, err := Simulate(ctx, w, gamma, ex, opt)
+		if err != nil {
+			return nil, err
+		}
+		out := [][]float64{r.Mx, r.My, r.Mz}
+		if r.Beta == nil {
+			relax = true
+			return out, nil
+		}
+		re, im := make([]float64, len(r.Beta)), make([]float64, len(r.Beta))
+		for i, b := range r.Beta {
+			e := Echo(b)
+			re[i], im[i] = real(e), imag(e)
+		}
+		return append(out, re, im), nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	a := &Averaged{Mx: vals[0], My: vals[1], Mz: vals[2], AverageInfo: info}
+	if !relax && len(vals) == 5 {
+		a.Echo = make([]complex128, len(a.Mx))
+		for i := range a.Echo {
+			a.Echo[i] = complex(vals[3][i], vals[4][i])
+		}
+	}
+	return a, nil
+}
+
+// AverageOver averages what run computes over the spreads, by the rule
+// SimulateAveraged states: run gets the isochromats of iso expanded over the
+// quadrature points (each isochromat's points consecutive, in the order
+// Expand gives) and returns any number of arrays, each with one value per
+// expanded isochromat (the magnetization components, a trace's samples as
+// arrays per time, the state after a sequence); AverageOver returns their
+// weighted means, one value per isochromat of iso, in the same order. The
+// convergence test compares every returned value. aopt.Steps and MaxSteps
+// bound the work as Options.MaxSteps bounds Simulate's.
+func AverageOver(ctx context.Context, iso *Isochromats, spreads []Spread, aopt AverageOptions, run func(ex *Isochromats) ([][]float64, error)) ([][]float64, AverageInfo, error) {
+	var none AverageInfo
+	if err := iso.validate(); err != nil {
+		return nil, none, err
 	}
 	tol := aopt.Tolerance
 	if tol == 0 {
 		tol = DefaultAverageTolerance
 	}
 	if !(tol > 0) || math.IsInf(tol, 0) {
-		return nil, fmt.Errorf("averaged: tolerance is %g, want a positive number", tol)
+		return nil, none, fmt.Errorf("averaged: tolerance is %g, want a positive number", tol)
 	}
 	maxPts := aopt.MaxPoints
 	if maxPts == 0 {
 		maxPts = DefaultMaxAveragePoints
 	}
 	if maxPts < 1 {
-		return nil, fmt.Errorf("averaged: max points is %d, want at least 1", maxPts)
+		return nil, none, fmt.Errorf("averaged: max points is %d, want at least 1", maxPts)
 	}
 	seen := map[SpreadSetting]bool{}
 	auto := false
 	for _, s := range spreads {
 		if err := s.validate(); err != nil {
-			return nil, err
+			return nil, none, err
 		}
 		if seen[s.Setting] {
-			return nil, fmt.Errorf("averaged: %s is spread twice, want one spread per setting", s.Setting)
+			return nil, none, fmt.Errorf("averaged: %s is spread twice, want one spread per setting", s.Setting)
 		}
 		seen[s.Setting] = true
 		if s.Points == 0 && s.Lo != s.Hi {
@@ -158,60 +230,69 @@ func SimulateAveraged(ctx context.Context, w *Waveform, gamma float64, iso *Isoc
 		}
 		return t
 	}
+	limit := aopt.MaxSteps
+	if limit == 0 {
+		limit = DefaultMaxSteps
+	}
 	budget := func(ps []int) bool {
 		q := total(ps)
 		if q > maxPts || q > MaxIsochromats/iso.Len() {
 			return false
 		}
-		limit := opt.MaxSteps
-		if limit == 0 {
-			limit = DefaultMaxSteps
+		return float64(q)*float64(iso.Len())*float64(max(aopt.Steps, 1)) <= limit
+	}
+	tooBig := func(ps []int) error {
+		return fmt.Errorf("averaged: got %d points per isochromat over %d isochromats and %d samples, want at most %d points and %g isochromat-steps in all", total(ps), iso.Len(), aopt.Steps, maxPts, limit)
+	}
+	once := func(ps []int) ([][]float64, error) {
+		ex, wts := Expand(iso, spreads, ps)
+		vals, err := run(&ex)
+		if err != nil {
+			return nil, err
 		}
-		return float64(q)*float64(iso.Len())*float64(w.Len()) <= limit
+		out := make([][]float64, len(vals))
+		for k, v := range vals {
+			if len(v) != ex.Len() {
+				return nil, fmt.Errorf("averaged: run returned %d values, want %d", len(v), ex.Len())
+			}
+			out[k] = Reduce(v, wts)
+		}
+		return out, nil
 	}
 	if !auto {
 		ps := points(0)
 		if !budget(ps) {
-			return nil, fmt.Errorf("averaged: %d points per isochromat over %d isochromats and %d samples exceed the budget (at most %d points, %g isochromat-steps)", total(ps), iso.Len(), w.Len(), maxPts, opt.MaxSteps)
+			return nil, none, tooBig(ps)
 		}
-		a, err := simulateOn(ctx, w, gamma, iso, spreads, ps, opt)
-		if err != nil {
-			return nil, err
-		}
-		a.Change, a.Converged = math.NaN(), true
-		return a, nil
+		vals, err := once(ps)
+		return vals, AverageInfo{Points: ps, Change: math.NaN(), Converged: true}, err
 	}
-	n := firstAveragePoints
-	for _, s := range spreads {
-		if s.Points == 0 {
-			n = max(n, int(math.Ceil(s.turn(w, gamma, iso)/4)))
-		}
-	}
+	n := max(firstAveragePoints, aopt.FirstPoints)
 	for n > firstAveragePoints && !budget(points(n)) {
 		n /= 2
 	}
 	if !budget(points(n)) {
-		return nil, fmt.Errorf("averaged: %d points per isochromat over %d isochromats and %d samples exceed the budget (at most %d points, %g isochromat-steps)", total(points(n)), iso.Len(), w.Len(), maxPts, opt.MaxSteps)
+		return nil, none, tooBig(points(n))
 	}
-	prev, err := simulateOn(ctx, w, gamma, iso, spreads, points(n), opt)
+	prev, err := once(points(n))
 	if err != nil {
-		return nil, err
+		return nil, none, err
 	}
-	prev.Change = math.NaN()
+	info := AverageInfo{Points: points(n), Change: math.NaN()}
 	for budget(points(2 * n)) {
 		n *= 2
-		cur, err := simulateOn(ctx, w, gamma, iso, spreads, points(n), opt)
+		cur, err := once(points(n))
 		if err != nil {
-			return nil, err
+			return nil, none, err
 		}
-		cur.Change = maxDiff(prev, cur)
-		cur.Converged = cur.Change <= tol
+		info = AverageInfo{Points: points(n), Change: maxDiff(prev, cur)}
+		info.Converged = info.Change <= tol
 		prev = cur
-		if cur.Converged {
+		if info.Converged {
 			break
 		}
 	}
-	return prev, nil
+	return prev, info, nil
 }
 
 func (s Spread) validate() error {
@@ -236,13 +317,13 @@ func (s Spread) validate() error {
 	return nil
 }
 
-// turn is how far (rad) the magnetization's rotation angle can change across
-// the spread: the nutation angle times the B1 spread's width, the precession
-// over the pulse times the offset spread's width, the number of decay constants
-// across a T2 spread. The rule starts at a quarter of it, about where
-// Gauss–Legendre begins to resolve an oscillation of that many radians, so that
-// two coarse rules cannot agree by chance.
-func (s Spread) turn(w *Waveform, gamma float64, iso *Isochromats) float64 {
+// Turn is how far (rad) the magnetization's rotation angle can change across
+// the spread for the waveform w: the nutation angle (at B1 scale scale) times
+// the B1 spread's width, the precession over the pulse times the offset
+// spread's width, the number of decay constants across a T2 spread. The rule
+// starts at a quarter of it (AverageOptions.FirstPoints), about where
+// Gauss–Legendre begins to resolve an oscillation of that many radians.
+func (s Spread) Turn(w *Waveform, gamma, scale float64) float64 {
 	T := w.Duration()
 	switch s.Setting {
 	case SpreadB1:
@@ -250,11 +331,7 @@ func (s Spread) turn(w *Waveform, gamma float64, iso *Isochromats) float64 {
 		for j, b := range w.B1 {
 			area += math.Hypot(real(b), imag(b)) * w.Dwell[j]
 		}
-		scale := 1.0
-		for _, v := range iso.B1Scale {
-			scale = math.Max(scale, math.Abs(v))
-		}
-		return math.Abs(gamma) * area * scale * (s.Hi - s.Lo)
+		return math.Abs(gamma) * area * math.Abs(scale) * (s.Hi - s.Lo)
 	case SpreadOffset:
 		return 2 * math.Pi * T * (s.Hi - s.Lo)
 	case SpreadT2:
@@ -263,32 +340,32 @@ func (s Spread) turn(w *Waveform, gamma float64, iso *Isochromats) float64 {
 	return 0
 }
 
-// maxDiff is the largest difference between two averages, component by
-// component.
-func maxDiff(a, b *Averaged) float64 {
+// maxDiff is the largest difference between two sets of averages.
+func maxDiff(a, b [][]float64) float64 {
 	d := 0.0
-	for i := range a.Mx {
-		d = math.Max(d, math.Abs(a.Mx[i]-b.Mx[i]))
-		d = math.Max(d, math.Abs(a.My[i]-b.My[i]))
-		d = math.Max(d, math.Abs(a.Mz[i]-b.Mz[i]))
+	for k := range a {
+		for i := range a[k] {
+			d = math.Max(d, math.Abs(a[k][i]-b[k][i]))
+		}
 	}
 	return d
 }
 
-// simulateOn runs the isochromats expanded over the product rule with ps[k]
-// points on spread k and sums them with the rule's weights.
-func simulateOn(ctx context.Context, w *Waveform, gamma float64, iso *Isochromats, spreads []Spread, ps []int, opt Options) (*Averaged, error) {
-	// The product rule: q nodes, each a value per spread, and a weight.
+// Expand returns the isochromats of iso expanded over the product
+// Gauss–Legendre rule with points[k] points on spreads[k] (each isochromat's
+// points consecutive, the last spread varying fastest), and the rule's
+// weights (summing to 1), one per point: offsets are added, B1 scales
+// multiplied, T2 replaced (see Spread). Reduce averages values over it.
+func Expand(iso *Isochromats, spreads []Spread, points []int) (Isochromats, []float64) {
 	nodes := [][]float64{nil}
 	weights := []float64{1}
 	for k, s := range spreads {
-		x, wt := GaussLegendre(ps[k], s.Lo, s.Hi)
+		x, wt := GaussLegendre(points[k], s.Lo, s.Hi)
 		var nn [][]float64
 		var nw []float64
 		for i, base := range nodes {
 			for j := range x {
-				v := append(append([]float64(nil), base...), x[j])
-				nn = append(nn, v)
+				nn = append(nn, append(append([]float64(nil), base...), x[j]))
 				nw = append(nw, weights[i]*wt[j])
 			}
 		}
@@ -323,26 +400,20 @@ func simulateOn(ctx context.Context, w *Waveform, gamma float64, iso *Isochromat
 			}
 		}
 	}
-	r, err := Simulate(ctx, w, gamma, &ex, opt)
-	if err != nil {
-		return nil, err
-	}
-	a := &Averaged{Mx: make([]float64, L), My: make([]float64, L), Mz: make([]float64, L), Points: ps, Converged: true}
-	if r.Beta != nil {
-		a.Echo = make([]complex128, L)
-	}
-	for i := range L {
+	return ex, weights
+}
+
+// Reduce averages v, one value per isochromat expanded by Expand, with the
+// rule's weights: one value per original isochromat, summed in a fixed order.
+func Reduce(v, weights []float64) []float64 {
+	q := len(weights)
+	out := make([]float64, len(v)/q)
+	for i := range out {
 		for j, wt := range weights {
-			m := i*q + j
-			a.Mx[i] += wt * r.Mx[m]
-			a.My[i] += wt * r.My[m]
-			a.Mz[i] += wt * r.Mz[m]
-			if a.Echo != nil {
-				a.Echo[i] += complex(wt, 0) * Echo(r.Beta[m])
-			}
+			out[i] += wt * v[i*q+j]
 		}
 	}
-	return a, nil
+	return out
 }
 
 // GaussLegendre returns the n-point Gauss–Legendre nodes on [lo, hi] with

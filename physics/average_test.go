@@ -274,7 +274,7 @@ func TestAveragedErrors(t *testing.T) {
 		{[]Spread{{Setting: SpreadB1, Lo: 0.8, Hi: 1.2, Points: -1}}, AverageOptions{}, "want at least 1"},
 		{[]Spread{{Setting: SpreadB1, Lo: 0.8, Hi: 1.2}, {Setting: SpreadB1, Lo: 0.9, Hi: 1}}, AverageOptions{}, "spread twice"},
 		{[]Spread{{Setting: SpreadSetting(9), Lo: 0, Hi: 1}}, AverageOptions{}, "want offset, b1 or t2"},
-		{[]Spread{{Setting: SpreadB1, Lo: 0.8, Hi: 1.2, Points: 100}}, AverageOptions{MaxPoints: 50}, "exceed the budget"},
+		{[]Spread{{Setting: SpreadB1, Lo: 0.8, Hi: 1.2, Points: 100}}, AverageOptions{MaxPoints: 50}, "want at most 50 points"},
 		{[]Spread{{Setting: SpreadB1, Lo: 0.8, Hi: 1.2}}, AverageOptions{Tolerance: -1}, "want a positive number"},
 	} {
 		_, err := SimulateAveraged(context.Background(), w, 1, &iso, tc.spreads, Options{}, tc.aopt)
@@ -286,5 +286,52 @@ func TestAveragedErrors(t *testing.T) {
 	a, err := SimulateAveraged(context.Background(), w, 1, &iso, []Spread{{Setting: SpreadOffset, Lo: 5, Hi: 5}}, Options{}, AverageOptions{})
 	if err != nil || a.Points[0] != 1 || !a.Converged {
 		t.Errorf("zero-width spread: got %+v, %v", a, err)
+	}
+}
+
+// AverageOver around a simulation of its own: two hard 90° pulses in a row
+// (the second applied per isochromat through its Cayley–Klein parameters,
+// Rotate) averaged over B1 80–120 % and a ±200 Hz line equal the average of
+// one hard pulse of twice the duration (the same rotation) to 1e-12, and
+// Expand and Reduce keep each isochromat's points together.
+func TestAverageOverSequence(t *testing.T) {
+	half := &Waveform{Dwell: []float64{250e-6}, B1: []complex128{complex(2*math.Pi*1000, 0)}}
+	whole := &Waveform{Dwell: []float64{500e-6}, B1: []complex128{complex(2*math.Pi*1000, 0)}}
+	iso := Grid([]float64{0, 400, -900}, nil, nil, nil, nil)
+	spreads := []Spread{{Setting: SpreadB1, Lo: 0.8, Hi: 1.2}, {Setting: SpreadOffset, Lo: -200, Hi: 200}}
+	aopt := AverageOptions{Tolerance: 1e-10, FirstPoints: 8, Steps: 2}
+	got, info, err := AverageOver(context.Background(), &iso, spreads, aopt, func(ex *Isochromats) ([][]float64, error) {
+		r1, err := Simulate(context.Background(), half, 1, ex, Options{})
+		if err != nil {
+			return nil, err
+		}
+		mx, my, mz := make([]float64, ex.Len()), make([]float64, ex.Len()), make([]float64, ex.Len())
+		for i := range mx {
+			mx[i], my[i], mz[i] = Rotate(r1.Alpha[i], r1.Beta[i], [3]float64{r1.Mx[i], r1.My[i], r1.Mz[i]})
+		}
+		return [][]float64{mx, my, mz}, nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := SimulateAveraged(context.Background(), whole, 1, &iso, []Spread{
+		{Setting: SpreadB1, Lo: 0.8, Hi: 1.2, Points: info.Points[0]},
+		{Setting: SpreadOffset, Lo: -200, Hi: 200, Points: info.Points[1]},
+	}, Options{}, AverageOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !info.Converged {
+		t.Errorf("not converged: %+v", info)
+	}
+	for i := range iso.Offset {
+		checkVec(t, "two 90s", [3]float64{got[0][i], got[1][i], got[2][i]}, [3]float64{want.Mx[i], want.My[i], want.Mz[i]}, 1e-12)
+	}
+	ex, wts := Expand(&iso, spreads, []int{2, 3})
+	if ex.Len() != 18 || len(wts) != 6 || ex.Offset[6] != 400+ex.Offset[0] || ex.B1Scale[6] != ex.B1Scale[0] {
+		t.Errorf("Expand: %d isochromats, %d weights, offsets %v", ex.Len(), len(wts), ex.Offset)
+	}
+	if r := Reduce(ex.Offset, wts); math.Abs(r[1]-400) > 1e-12*400 || math.Abs(r[2]+900) > 1e-12*900 {
+		t.Errorf("Reduce of the offsets: %v, want the isochromats' own (the spread is symmetric)", r)
 	}
 }

@@ -32,6 +32,9 @@
 // Entry points: Lookup and Nuclei (gyromagnetic ratios), Waveform (the RF),
 // Isochromats and Grid (the spins), Simulate (magnetization and Cayley–Klein
 // parameters), StartState (named start magnetizations), Rotate, Echo and EchoOf
-// (quantities derived from α and β), and the Result methods Mxy, Phase,
-// Transverse and Echo.
+// (quantities derived from α and β), the Result methods Mxy, Phase,
+// Transverse and Echo, FieldFromProton and ShiftOffset (a magnet named by its
+// 1H frequency, absolute chemical shifts from a carrier's shift), and
+// SimulateAveraged and AverageOver (averages over uniform spreads of offset,
+// B1 or T2 by Gauss–Legendre quadrature, see average.go).
 package physics
